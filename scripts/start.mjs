@@ -1,0 +1,62 @@
+// `npm start`: installs what is missing, starts PostgreSQL under .data/pg, migrates and seeds the
+// demo, builds the client and serves everything from one process. Ctrl-C stops the server and the
+// database this command started.
+import { spawn, spawnSync } from 'node:child_process';
+import { mkdirSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { ensureNodeModules } from './lib/deps.mjs';
+import { ensureRoleAndDatabase, keptSecret, portInUse, startCluster } from './lib/pg.mjs';
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
+const dataDir = join(root, '.data');
+const pgPort = Number(process.env.PGPORT ?? 54329);
+const port = Number(process.env.PORT ?? 3000);
+
+ensureNodeModules(root);
+mkdirSync(dataDir, { recursive: true });
+
+const cluster = startCluster({ root: join(dataDir, 'pg'), port: pgPort });
+const password = keptSecret(join(dataDir, 'db-password'));
+const databaseUrl = ensureRoleAndDatabase(cluster, { role: 'holdpoint', password, database: 'holdpoint' });
+let stopped = false;
+const stopDb = () => {
+  if (stopped) return;
+  stopped = true;
+  cluster.stop();
+  console.log('[start] PostgreSQL stopped');
+};
+
+const env = { ...process.env, DATABASE_URL: databaseUrl, DATA_DIR: dataDir, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development', DEV_MAILBOX: process.env.SMTP_URL ? 'off' : 'on' };
+const run = (args) => spawnSync(process.execPath, args, { cwd: root, env, stdio: 'inherit' });
+
+try {
+  if (run(['--import', 'tsx', 'server/src/db/cli.ts', 'setup']).status !== 0) throw new Error('database set-up failed');
+  if (spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: root, env, stdio: 'inherit' }).status !== 0) throw new Error('client build failed');
+  if (await portInUse(port)) throw new Error(`Port ${port} is in use; set PORT to another port.`);
+} catch (err) {
+  console.error(`[start] ${err.message}`);
+  stopDb();
+  process.exit(1);
+}
+
+const server = spawn(process.execPath, ['--import', 'tsx', 'server/src/index.ts'], { cwd: root, env, stdio: ['ignore', 'inherit', 'inherit'] });
+console.log(`
+  Holdpoint is starting on http://127.0.0.1:${port}
+  Demo sign-ins (password "holdpoint-demo"):
+    admin@bramblecote.example        tenant admin
+    authoriser@bramblecote.example   authoriser
+    control@bramblecote.example      control room
+    lead@oxbow-repair.example        contractor lead (Oxbow Line Repair)
+    tech@oxbow-repair.example        isolation technician and gas tester
+    auditor@bramblecote.example      auditor
+    authoriser@harlowridge.example   authoriser, second tenant
+  Mail sent by the demo: http://127.0.0.1:${port}/dev/mail
+  Ctrl-C stops the server and its database; 'npm run stop' stops a database left running.
+`);
+const finish = (code) => {
+  stopDb();
+  process.exit(code ?? 0);
+};
+for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => server.kill('SIGTERM'));
+server.on('exit', (code) => finish(code));

@@ -1,0 +1,79 @@
+import express, { Router } from 'express';
+import helmet from 'helmet';
+import { pinoHttp } from 'pino-http';
+import { existsSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import { randomUUID } from 'node:crypto';
+import type { AppDeps } from './deps';
+import { errorHandler, notFoundApi } from './middleware/error-handler';
+import { sessionMiddleware } from './middleware/session';
+import { csrfProtection } from './middleware/csrf';
+import { authenticate } from './middleware/authenticate';
+import { createHealthRouter } from './modules/health/health.routes';
+import { createAuthRouter, type AuthLimits } from './modules/auth/auth.routes';
+import { featureRouters } from './modules';
+import type { DevMailbox } from './modules/dev-mail/dev-mailbox';
+import { createDevMailRouter } from './modules/dev-mail/dev-mail.routes';
+
+export interface AppOptions {
+  authLimits?: AuthLimits;
+  devMailbox?: DevMailbox | null;
+}
+
+/** Builds the Express app without listening, so tests can start it on port 0. */
+export function createApp(deps: AppDeps, options: AppOptions = {}) {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.set('query parser', 'simple');
+
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          defaultSrc: ["'self'"],
+          scriptSrc: ["'self'"],
+          styleSrc: ["'self'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'"],
+          connectSrc: ["'self'"],
+          objectSrc: ["'none'"],
+          frameAncestors: ["'none'"],
+          baseUri: ["'self'"],
+          formAction: ["'self'"],
+          upgradeInsecureRequests: deps.config.PUBLIC_URL.startsWith('https://') ? [] : null,
+        },
+      },
+      strictTransportSecurity: deps.config.PUBLIC_URL.startsWith('https://'),
+    }),
+  );
+  app.use(
+    pinoHttp({
+      logger: deps.logger,
+      genReqId: (req) => (req.headers['x-request-id'] as string)?.slice(0, 64) || randomUUID(),
+      autoLogging: { ignore: (req) => req.url === '/api/health' || req.url?.startsWith('/assets/') === true },
+      serializers: { req: (req) => ({ id: req.id, method: req.method, url: req.url }), res: (res) => ({ statusCode: res.statusCode }) },
+    }),
+  );
+
+  const api = Router();
+  api.use(express.json({ limit: '100kb', strict: true }));
+  api.use(createHealthRouter(deps));
+  api.use(sessionMiddleware(deps));
+  api.use(csrfProtection(deps.config.SESSION_SECRET));
+  api.use(authenticate(deps));
+  api.use(createAuthRouter(deps, options.authLimits));
+  for (const make of featureRouters) api.use(make(deps));
+  api.use(notFoundApi());
+  app.use('/api', api);
+
+  if (options.devMailbox) app.use('/dev/mail', createDevMailRouter(options.devMailbox));
+
+  const dist = resolve(deps.config.CLIENT_DIST);
+  if (existsSync(join(dist, 'index.html'))) {
+    app.use(express.static(dist, { index: false, maxAge: '1h', setHeaders: (res, path) => path.includes('/assets/') && res.setHeader('Cache-Control', 'public, max-age=31536000, immutable') }));
+    app.get('/{*splat}', (_req, res) => res.sendFile(join(dist, 'index.html')));
+  }
+  app.use(errorHandler());
+  return app;
+}

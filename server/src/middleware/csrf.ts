@@ -1,0 +1,49 @@
+import { createHmac, randomBytes, timingSafeEqual } from 'node:crypto';
+import type { RequestHandler } from 'express';
+import { AppError } from '../errors/app-error';
+
+export const CSRF_COOKIE = 'hp.csrf';
+const SAFE = new Set(['GET', 'HEAD', 'OPTIONS']);
+
+function sign(secret: string, nonce: string) {
+  return createHmac('sha256', secret).update(nonce).digest('base64url');
+}
+
+export function issueCsrfToken(secret: string) {
+  const nonce = randomBytes(18).toString('base64url');
+  return `${nonce}.${sign(secret, nonce)}`;
+}
+
+function valid(secret: string, token: string | undefined): boolean {
+  if (!token) return false;
+  const [nonce, mac] = token.split('.');
+  if (!nonce || !mac) return false;
+  const expected = Buffer.from(sign(secret, nonce));
+  const given = Buffer.from(mac);
+  return expected.length === given.length && timingSafeEqual(expected, given);
+}
+
+function readCookie(header: string | undefined, name: string) {
+  if (!header) return undefined;
+  for (const part of header.split(';')) {
+    const [k, ...v] = part.trim().split('=');
+    if (k === name) return decodeURIComponent(v.join('='));
+  }
+  return undefined;
+}
+
+/**
+ * Double-submit token: the signed token sits in an HttpOnly cookie and must come back, equal, in the
+ * x-csrf-token header of every state-changing request. The signature stops a planted cookie.
+ */
+export function csrfProtection(secret: string): RequestHandler {
+  return (req, _res, next) => {
+    if (SAFE.has(req.method)) return next();
+    const header = req.get('x-csrf-token');
+    const cookie = readCookie(req.headers.cookie, CSRF_COOKIE);
+    if (!header || !cookie || header !== cookie || !valid(secret, header)) {
+      return next(new AppError('csrf_failed', 'The form has expired or the security token is missing. Reload the page and try again.'));
+    }
+    next();
+  };
+}

@@ -1,0 +1,49 @@
+import type { ErrorRequestHandler, RequestHandler } from 'express';
+import { ForbiddenError } from '@casl/ability';
+import { ZodError } from 'zod';
+import { BaseError, ConnectionError, ConnectionRefusedError, ConnectionTimedOutError, HostNotReachableError, UniqueConstraintError, ForeignKeyConstraintError } from 'sequelize';
+import { AppError } from '../errors/app-error';
+import { zodDetails } from './validate';
+import { CalcInputError } from '@shared/calc';
+
+function isDatabaseDown(err: unknown): boolean {
+  if (err instanceof ConnectionError || err instanceof ConnectionRefusedError || err instanceof ConnectionTimedOutError || err instanceof HostNotReachableError) return true;
+  const e = err as { code?: string; original?: { code?: string }; parent?: { code?: string }; message?: string };
+  const code = e?.original?.code ?? e?.parent?.code ?? e?.code;
+  if (code && ['ECONNREFUSED', 'ECONNRESET', '57P01', '57P02', '57P03', '08006', '08003', '08001'].includes(code)) return true;
+  return /Connection terminated|connection to server|ECONNREFUSED|Operation timeout|ResourceRequest timed out/i.test(e?.message ?? '');
+}
+
+/** Maps every error to the one JSON shape; never leaks stacks or SQL. */
+export function errorHandler(): ErrorRequestHandler {
+  return (err, req, res, _next) => {
+    let appErr: AppError;
+    const status = (err as { status?: number; statusCode?: number }).status ?? (err as { statusCode?: number }).statusCode;
+    const type = (err as { type?: string }).type;
+    if (err instanceof AppError) appErr = err;
+    else if (err instanceof ZodError) appErr = AppError.validation('Some fields are missing or not valid.', zodDetails(err));
+    else if (err instanceof CalcInputError) appErr = AppError.validation(err.message, [{ path: err.field, message: err.message }]);
+    else if (err instanceof ForbiddenError) appErr = AppError.forbidden(err.message || 'Your role does not allow this action.');
+    else if (type === 'entity.too.large' || status === 413 || (err as { code?: string }).code === 'LIMIT_FILE_SIZE')
+      appErr = new AppError('payload_too_large', 'The request is too large.');
+    else if (type === 'entity.parse.failed') appErr = AppError.validation('The request body is not valid JSON.');
+    else if (type === 'encoding.unsupported' || type === 'charset.unsupported') appErr = new AppError('unsupported_media_type', 'That content encoding is not supported.');
+    else if (err instanceof UniqueConstraintError) appErr = AppError.conflict('A record with the same key already exists.', {});
+    else if (err instanceof ForeignKeyConstraintError) appErr = AppError.validation('A referenced record does not exist.');
+    else if (isDatabaseDown(err)) appErr = new AppError('service_unavailable', 'The database is not reachable right now. Try again in a moment.');
+    else if (status && status >= 400 && status < 500) appErr = new AppError(status === 404 ? 'not_found' : status === 415 ? 'unsupported_media_type' : 'validation_failed', status === 404 ? 'Not found.' : 'The request could not be processed.');
+    else {
+      req.log?.error({ err }, 'unhandled error');
+      appErr = new AppError('internal', 'Something went wrong on our side. The error has been logged.');
+    }
+    if (appErr.status >= 500 && appErr.code !== 'internal') req.log?.warn({ err: (err as Error).message }, appErr.code);
+    if (appErr.status === 403) req.log?.info({ event: 'authorisation_refused', path: req.path, method: req.method, user: req.session?.userId }, 'refused');
+    res.status(appErr.status).json({ error: { code: appErr.code, message: appErr.message, details: appErr.details, ...appErr.extra } });
+  };
+}
+
+export function notFoundApi(): RequestHandler {
+  return (_req, _res, next) => next(new AppError('not_found', 'There is no such API route.'));
+}
+
+export { BaseError };

@@ -1,0 +1,98 @@
+// Tenant administration.
+//   GET    /api/organisations                 everyone in the tenant (read)
+//   POST   /api/organisations                 tenant admin
+//   GET    /api/users                         tenant admin, authoriser, auditor, control room (contractor leads: own organisation)
+//   PATCH  /api/memberships/:id               tenant admin (change role)
+//   DELETE /api/memberships/:id               tenant admin
+//   GET    /api/qualifications                tenant admin, authoriser, auditor
+//   POST   /api/qualifications                tenant admin
+//   POST   /api/invitations                   tenant admin
+import { Router } from 'express';
+import { subject } from '@casl/ability';
+import { inviteInputSchema, membershipRoleInputSchema, organisationInputSchema, qualificationInputSchema, usersQuerySchema } from '@shared/schemas/auth.schema';
+import { pageQuerySchema, uuidSchema } from '@shared/schemas/common.schema';
+import type { AppDeps } from '../../deps';
+import { actorOf, requireTenant } from '../../middleware/authenticate';
+import { parse } from '../../middleware/validate';
+import { authorizeRecord, authorizeType } from '../../lib/authorize';
+import { AppError } from '../../errors/app-error';
+import { invite } from '../auth/auth.service';
+import * as admin from './admin.service';
+
+export function createAdminRouter(deps: AppDeps) {
+  const router = Router();
+  const { sequelize } = deps;
+  router.use(['/organisations', '/users', '/memberships', '/qualifications', '/invitations'], requireTenant);
+
+  router.get('/organisations', async (req, res) => {
+    const { actor, ability } = actorOf(req);
+    authorizeType(ability, 'read', 'Organisation', { tenantId: actor.tenantId }, 'organisations');
+    const q = parse(pageQuerySchema, req.query, 'query');
+    res.json(await admin.listOrganisations(sequelize, actor.tenantId, q.page, q.pageSize));
+  });
+
+  router.post('/organisations', async (req, res) => {
+    const { actor, ability } = actorOf(req);
+    authorizeType(ability, 'create', 'Organisation', { tenantId: actor.tenantId }, 'organisations');
+    const input = parse(organisationInputSchema, req.body, 'organisation');
+    res.status(201).json(await admin.createOrganisation(sequelize, actor.tenantId, input));
+  });
+
+  router.get('/users', async (req, res) => {
+    const { actor, ability } = actorOf(req);
+    const q = parse(usersQuerySchema, req.query, 'query');
+    if (ability.can('read', subject('User', { tenantId: actor.tenantId }))) return res.json(await admin.listUsers(sequelize, actor.tenantId, q));
+    // A contractor lead sees the members of their own organisation only.
+    const own = actor.memberships.find((m) => ability.can('read', subject('Membership', { tenantId: actor.tenantId, organisationId: m.organisationId })));
+    if (!own) throw AppError.forbidden('Your role does not allow you to list people.');
+    res.json(await admin.listUsers(sequelize, actor.tenantId, q, own.organisationId));
+  });
+
+  router.patch('/memberships/:id', async (req, res) => {
+    const { actor, ability } = actorOf(req);
+    const id = parse(uuidSchema, req.params.id, 'path');
+    const record = authorizeRecord(ability, 'update', 'Membership', await admin.findMembership(sequelize, actor.tenantId, id), 'membership');
+    const { role } = parse(membershipRoleInputSchema, req.body, 'membership');
+    if (record.userId === actor.userId && record.role === 'tenant_admin' && role !== 'tenant_admin') {
+      throw AppError.unprocessable('You cannot remove your own tenant admin role; ask another admin.');
+    }
+    await admin.changeMembershipRole(sequelize, actor.tenantId, id, role);
+    req.log.info({ event: 'role_changed', membershipId: id, from: record.role, to: role, by: actor.userId }, 'role changed');
+    res.json({ ...record, role });
+  });
+
+  router.delete('/memberships/:id', async (req, res) => {
+    const { actor, ability } = actorOf(req);
+    const id = parse(uuidSchema, req.params.id, 'path');
+    const record = authorizeRecord(ability, 'delete', 'Membership', await admin.findMembership(sequelize, actor.tenantId, id), 'membership');
+    if (record.userId === actor.userId) throw AppError.unprocessable('You cannot remove your own membership.');
+    await admin.removeMembership(sequelize, actor.tenantId, id);
+    req.log.info({ event: 'membership_removed', membershipId: id, by: actor.userId }, 'membership removed');
+    res.status(204).end();
+  });
+
+  router.get('/qualifications', async (req, res) => {
+    const { actor, ability } = actorOf(req);
+    authorizeType(ability, 'read', 'Qualification', { tenantId: actor.tenantId }, 'qualifications');
+    const q = parse(pageQuerySchema.extend({ userId: uuidSchema.optional() }), req.query, 'query');
+    res.json(await admin.listQualifications(sequelize, actor.tenantId, q.page, q.pageSize, q.userId));
+  });
+
+  router.post('/qualifications', async (req, res) => {
+    const { actor, ability } = actorOf(req);
+    authorizeType(ability, 'create', 'Qualification', { tenantId: actor.tenantId }, 'qualifications');
+    const input = parse(qualificationInputSchema, req.body, 'qualification');
+    res.status(201).json(await admin.createQualification(sequelize, actor.tenantId, input));
+  });
+
+  router.post('/invitations', async (req, res) => {
+    const { actor, ability } = actorOf(req);
+    authorizeType(ability, 'create', 'Invitation', { tenantId: actor.tenantId }, 'invitations');
+    const input = parse(inviteInputSchema, req.body, 'invitation');
+    await invite(deps, actor.tenantId, actor.userId, input);
+    res.status(202).json({ ok: true, email: input.email });
+  });
+
+  return router;
+}
+

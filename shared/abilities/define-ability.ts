@@ -1,0 +1,127 @@
+import { AbilityBuilder, createMongoAbility, type ForcedSubject, type MongoAbility, type MongoQuery, type RawRuleOf } from '@casl/ability';
+import type { OrganisationKind, Role } from './roles';
+
+export const actions = [
+  'manage', 'read', 'create', 'update', 'delete',
+  // permit events
+  'request', 'approve', 'reject', 'accept', 'cancel', 'revalidate', 'suspend', 'resume', 'hand_back', 'return_to_service', 'close', 'handover',
+  // isolation steps and checks
+  'apply', 'verify', 'remove', 'acknowledge', 'record', 'verify_chain',
+] as const;
+export type Action = (typeof actions)[number];
+
+export const subjects = [
+  'Tenant', 'Organisation', 'User', 'Membership', 'Qualification', 'Invitation',
+  'Pipeline', 'IsolationPoint', 'Lock', 'Tag',
+  'Permit', 'IsolationStep', 'GasTest', 'Instrument', 'Check', 'Attachment', 'AuditEvent', 'Board', 'Calculator',
+  'all',
+] as const;
+export type SubjectName = (typeof subjects)[number];
+
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+type AnyRecord = Record<string, any>;
+export type AppAbility = MongoAbility<[Action, SubjectName | (ForcedSubject<Exclude<SubjectName, 'all'>> & AnyRecord)], MongoQuery<AnyRecord>>;
+export type AppRule = RawRuleOf<AppAbility>;
+
+export interface ActorMembership {
+  role: Role;
+  organisationId: string;
+  organisationKind: OrganisationKind;
+}
+
+export interface Actor {
+  userId: string;
+  tenantId: string;
+  memberships: ActorMembership[];
+}
+
+type Can = AbilityBuilder<AppAbility>['can'];
+
+const readAllInTenant: SubjectName[] = ['Tenant', 'Organisation', 'Pipeline', 'IsolationPoint', 'Lock', 'Tag', 'Instrument', 'Calculator'];
+
+/** What a permit-scoped read looks like: tenant-wide for operator staff, own organisation's permits for contractors. */
+function permitScope(actor: Actor, m: ActorMembership) {
+  return m.organisationKind === 'contractor'
+    ? { tenantId: actor.tenantId, contractorOrganisationId: m.organisationId }
+    : { tenantId: actor.tenantId };
+}
+
+const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => void> = {
+  tenant_admin(can, a) {
+    const t = { tenantId: a.tenantId };
+    can(['read', 'update'], 'Tenant', t);
+    can(['read', 'create', 'update', 'delete'], ['Organisation', 'Membership', 'Qualification', 'Invitation'], t);
+    can('read', 'User', t);
+    can(['read', 'create', 'update'], ['Pipeline', 'IsolationPoint', 'Lock', 'Tag', 'Instrument'], t);
+    can('read', ['Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment', 'AuditEvent', 'Board'], t);
+    can('verify_chain', 'AuditEvent', t);
+  },
+  authoriser(can, a) {
+    const t = { tenantId: a.tenantId };
+    can(['read', 'create', 'update'], ['Pipeline', 'IsolationPoint', 'Lock', 'Tag', 'Instrument'], t);
+    can('read', ['User', 'Membership', 'Qualification', 'AuditEvent', 'Board', 'IsolationStep', 'GasTest', 'Check', 'Attachment'], t);
+    can(['read', 'create', 'update', 'request'], 'Permit', t);
+    can(['approve', 'reject', 'cancel', 'revalidate', 'suspend', 'resume', 'return_to_service', 'close', 'acknowledge'], 'Permit', t);
+    can('create', 'Attachment', t);
+    can('verify_chain', 'AuditEvent', t);
+  },
+  contractor_lead(can, a, m) {
+    const scope = permitScope(a, m);
+    can(['read', 'request', 'accept', 'cancel', 'hand_back', 'handover', 'resume'], 'Permit', scope);
+    can(['create', 'update'], 'Permit', scope);
+    can('read', ['IsolationStep', 'GasTest', 'Check', 'Attachment'], scope);
+    can('create', 'Attachment', scope);
+    can('record', 'Check', scope);
+    const ownOrganisation = { tenantId: a.tenantId, organisationId: m.organisationId };
+    can('read', 'Membership', ownOrganisation);
+  },
+  isolation_technician(can, a, m) {
+    const scope = permitScope(a, m);
+    can('read', ['Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment'], scope);
+    can(['apply', 'verify', 'remove'], 'IsolationStep', scope);
+    can('record', 'Check', scope);
+    can('create', 'Attachment', scope);
+  },
+  gas_tester(can, a, m) {
+    const scope = permitScope(a, m);
+    can('read', ['Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment'], scope);
+    can('create', 'GasTest', scope);
+    can('record', 'Check', scope);
+    can('create', 'Attachment', scope);
+  },
+  control_room(can, a) {
+    const t = { tenantId: a.tenantId };
+    can('read', ['Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment', 'Board', 'User'], t);
+    can('acknowledge', ['IsolationStep', 'Permit'], t);
+    can('suspend', 'Permit', t);
+  },
+  auditor(can, a) {
+    const t = { tenantId: a.tenantId };
+    can('read', ['User', 'Membership', 'Qualification', 'Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment', 'AuditEvent', 'Board'], t);
+    can('verify_chain', 'AuditEvent', t);
+  },
+};
+
+export function defineRulesFor(actor: Actor): AppRule[] {
+  const builder = new AbilityBuilder<AppAbility>(createMongoAbility);
+  const tenant = { tenantId: actor.tenantId };
+  if (actor.memberships.length > 0) builder.can('read', readAllInTenant, tenant);
+  for (const m of actor.memberships) {
+    const add = rulesByRole[m.role];
+    if (!add) throw new Error(`Unknown role: ${String(m.role)}`);
+    add(builder.can, actor, m);
+  }
+  return builder.rules;
+}
+
+export function defineAbilityFor(actor: Actor): AppAbility {
+  return createMongoAbility<AppAbility>(defineRulesFor(actor));
+}
+
+export function abilityFromRules(rules: AppRule[]): AppAbility {
+  return createMongoAbility<AppAbility>(rules);
+}
+
+export function hasRole(actor: Actor, role: Role) {
+  return actor.memberships.some((m) => m.role === role);
+}

@@ -1,0 +1,88 @@
+import { z } from 'zod';
+import { roles, qualificationKinds } from '../abilities/roles';
+import { requiredText, uuidSchema } from './common.schema';
+
+export const emailSchema = z
+  .string({ message: 'E-mail is required.' })
+  .trim()
+  .toLowerCase()
+  .max(254, 'E-mail is too long.')
+  .pipe(z.email({ message: 'Enter a valid e-mail address.' }));
+
+// ASVS 6.2.x: length over composition rules, and a refusal of well-known passwords.
+const commonPasswords = new Set([
+  'password1234', '123456789012', 'qwertyuiop12', 'passwordpassword', 'letmein12345', 'welcome12345', 'iloveyou1234',
+  'administrator', 'changeme1234', 'holdpoint123', 'qwerty123456', '111111111111', '000000000000', 'abc123456789',
+]);
+
+export const newPasswordSchema = z
+  .string({ message: 'Password is required.' })
+  .min(12, 'Use at least 12 characters.')
+  .max(128, 'Use at most 128 characters.')
+  .refine((p) => !commonPasswords.has(p.toLowerCase()), 'That password is too common; choose another.');
+
+export const signInInputSchema = z.object({
+  email: emailSchema,
+  password: z.string({ message: 'Password is required.' }).min(1, 'Password is required.').max(256, 'Password is too long.'),
+});
+export type SignInInput = z.infer<typeof signInInputSchema>;
+
+export const switchTenantInputSchema = z.object({ tenantId: uuidSchema });
+
+export const inviteInputSchema = z.object({
+  email: emailSchema,
+  organisationId: uuidSchema,
+  role: z.enum(roles, { message: 'Choose a role.' }),
+});
+export type InviteInput = z.infer<typeof inviteInputSchema>;
+
+export const acceptInvitationInputSchema = z.object({
+  token: z.string().min(20).max(200),
+  name: requiredText(120, 'Name'),
+  password: newPasswordSchema,
+});
+export type AcceptInvitationInput = z.infer<typeof acceptInvitationInputSchema>;
+
+export const forgotPasswordInputSchema = z.object({ email: emailSchema });
+export const resetPasswordInputSchema = z.object({ token: z.string().min(20).max(200), password: newPasswordSchema });
+export type ResetPasswordInput = z.infer<typeof resetPasswordInputSchema>;
+
+export const organisationInputSchema = z.object({
+  name: requiredText(160, 'Name'),
+  kind: z.enum(['operator', 'contractor'], { message: 'Choose operator or contractor.' }),
+});
+export type OrganisationInput = z.infer<typeof organisationInputSchema>;
+
+const isoDate = z.iso.date({ message: 'Use a date like 2026-12-31.' });
+
+export const qualificationInputSchema = z
+  .object({
+    userId: uuidSchema,
+    kind: z.enum(qualificationKinds, { message: 'Choose a qualification.' }),
+    reference: z.string().trim().max(120).optional(),
+    issuedOn: isoDate,
+    expiresOn: isoDate,
+  })
+  .refine((q) => q.expiresOn >= q.issuedOn, { message: 'The expiry date must not be before the issue date.', path: ['expiresOn'] });
+export type QualificationInput = z.infer<typeof qualificationInputSchema>;
+
+export const membershipRoleInputSchema = z.object({ role: z.enum(roles, { message: 'Choose a role.' }) });
+
+export const usersQuerySchema = z.object({
+  page: z.coerce.number().int().min(1).max(100_000).default(1),
+  pageSize: z.coerce.number().int().min(1).max(200).default(25),
+  q: z.string().trim().max(100).optional(),
+  role: z.enum(roles).optional(),
+  organisationId: uuidSchema.optional(),
+  sort: z.enum(['name', 'email', 'role', 'organisation']).default('name'),
+  dir: z.enum(['asc', 'desc']).default('asc'),
+});
+export type UsersQuery = z.infer<typeof usersQuerySchema>;
+
+export interface MeResponse {
+  user: { id: string; email: string; name: string };
+  memberships: { id: string; tenantId: string; tenantName: string; organisationId: string; organisationName: string; organisationKind: 'operator' | 'contractor'; role: (typeof roles)[number] }[];
+  activeTenantId: string | null;
+  activeTenant: { id: string; name: string; timeZone: string; locationUnit: 'mi' | 'km' } | null;
+  rules: unknown[];
+}

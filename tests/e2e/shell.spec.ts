@@ -1,0 +1,45 @@
+import { expect, test } from '@playwright/test';
+import { signIn } from './helpers';
+
+test('the sign-in page shows the product name in Noto Sans, the font shipped with the app', async ({ page }) => {
+  await page.goto('/');
+  await expect(page).toHaveURL(/\/sign-in/);
+  await expect(page.getByText('Holdpoint', { exact: true }).first()).toBeVisible();
+  await page.evaluate(() => document.fonts.ready);
+  const family = await page.locator('h1').evaluate((el) => getComputedStyle(el).fontFamily);
+  expect(family).toContain('Noto Sans');
+  const loaded = await page.evaluate(() => [...document.fonts].some((f) => f.family.includes('Noto Sans') && f.status === 'loaded'));
+  expect(loaded).toBe(true);
+});
+
+test('an unknown address inside the app shows the not-found page', async ({ page }) => {
+  await signIn(page, 'auditor@bramblecote.example');
+  await page.goto('/no/such/page');
+  await expect(page.getByRole('heading', { name: 'Not found' })).toBeVisible();
+});
+
+const expectations: Record<string, { sees: string[]; hidden: string[] }> = {
+  'admin@bramblecote.example': { sees: ['People', 'Organisations', 'Qualifications'], hidden: [] },
+  'authoriser@bramblecote.example': { sees: ['Qualifications'], hidden: ['People', 'Organisations'] },
+  'control@bramblecote.example': { sees: ['Overview'], hidden: ['People', 'Organisations', 'Qualifications'] },
+  'lead@oxbow-repair.example': { sees: ['Overview'], hidden: ['People', 'Organisations', 'Qualifications'] },
+  'tech@oxbow-repair.example': { sees: ['Overview'], hidden: ['People', 'Organisations', 'Qualifications'] },
+  'auditor@bramblecote.example': { sees: ['Qualifications'], hidden: ['People', 'Organisations'] },
+  'authoriser@harlowridge.example': { sees: ['Qualifications'], hidden: ['People', 'Organisations'] },
+};
+
+for (const [email, { sees, hidden }] of Object.entries(expectations)) {
+  test(`${email} sees only the navigation their role allows`, async ({ page }) => {
+    await signIn(page, email);
+    const nav = page.getByRole('navigation', { name: 'Main' });
+    for (const label of sees) await expect(nav.getByRole('link', { name: label, exact: true })).toBeVisible();
+    for (const label of hidden) await expect(nav.getByRole('link', { name: label, exact: true })).toHaveCount(0);
+  });
+}
+
+test('the tenant admin sees the invite form; the authoriser opening the people page gets no invite form', async ({ page }) => {
+  await signIn(page, 'admin@bramblecote.example');
+  await page.goto('/admin/users');
+  await expect(page.getByRole('heading', { name: 'Invite someone' })).toBeVisible();
+  await expect(page.getByTestId('user-row').first()).toBeVisible();
+});
