@@ -1,6 +1,17 @@
 import { Sequelize, type Transaction } from 'sequelize';
 import pg from 'pg';
+import { AsyncLocalStorage } from 'node:async_hooks';
 import type { Logger } from 'pino';
+
+// Sequelize's "CLS" hook, backed by AsyncLocalStorage: every query inside a managed transaction
+// joins it without passing `transaction` by hand, so a tenant set at the start cannot be skipped.
+const store = new AsyncLocalStorage<Map<string, unknown>>();
+Sequelize.useCLS({
+  get: (key: string) => store.getStore()?.get(key),
+  set: (key: string, value: unknown) => store.getStore()?.set(key, value),
+  run: (fn: (ctx: unknown) => unknown) => store.run(new Map(), () => fn(store.getStore())),
+  bind: <F>(fn: F) => fn,
+});
 
 // DATE columns come back as JS Dates; BIGINT counts as numbers (our counts stay far below 2^53).
 pg.types.setTypeParser(20, (v) => Number(v));
@@ -18,16 +29,18 @@ export function createSequelize(databaseUrl: string, logger?: Logger): Sequelize
   return sequelize;
 }
 
-/** Runs `fn` in one transaction with the tenant set for row-level security. */
-export async function inTenantTransaction<T>(
-  sequelize: Sequelize,
-  tenantId: string | null,
-  fn: (t: Transaction) => Promise<T>,
-): Promise<T> {
+/**
+ * Runs `fn` in one transaction with `app.tenant_id` set (the key row-level security reads). Inside an
+ * open transaction of the same tenant it just joins it, so services can call each other.
+ * Every query on tenant-owned tables goes through here.
+ */
+export async function withTenant<T>(sequelize: Sequelize, tenantId: string, fn: (t: Transaction) => Promise<T>): Promise<T> {
+  const current = store.getStore();
+  const open = current?.get('transaction') as Transaction | null | undefined;
+  if (open && current?.get('tenantId') === tenantId && (open as unknown as { sequelize: Sequelize }).sequelize === sequelize) return fn(open);
   return sequelize.transaction(async (t) => {
-    if (tenantId) {
-      await sequelize.query(`SELECT set_config('app.tenant_id', :tenantId, true)`, { replacements: { tenantId }, transaction: t });
-    }
+    store.getStore()?.set('tenantId', tenantId);
+    await sequelize.query(`SELECT set_config('app.tenant_id', :tenantId, true)`, { replacements: { tenantId }, transaction: t });
     return fn(t);
   });
 }

@@ -18,6 +18,7 @@ import { authorizeRecord, authorizeType } from '../../lib/authorize';
 import { AppError } from '../../errors/app-error';
 import { invite } from '../auth/auth.service';
 import * as admin from './admin.service';
+import { withTenant } from '../../db/sequelize';
 
 export function createAdminRouter(deps: AppDeps) {
   const router = Router();
@@ -28,35 +29,35 @@ export function createAdminRouter(deps: AppDeps) {
     const { actor, ability } = actorOf(req);
     authorizeType(ability, 'read', 'Organisation', { tenantId: actor.tenantId }, 'organisations');
     const q = parse(pageQuerySchema, req.query, 'query');
-    res.json(await admin.listOrganisations(sequelize, actor.tenantId, q.page, q.pageSize));
+    res.json(await withTenant(sequelize, actor.tenantId, () => admin.listOrganisations(sequelize, actor.tenantId, q.page, q.pageSize)));
   });
 
   router.post('/organisations', async (req, res) => {
     const { actor, ability } = actorOf(req);
     authorizeType(ability, 'create', 'Organisation', { tenantId: actor.tenantId }, 'organisations');
     const input = parse(organisationInputSchema, req.body, 'organisation');
-    res.status(201).json(await admin.createOrganisation(sequelize, actor.tenantId, input));
+    res.status(201).json(await withTenant(sequelize, actor.tenantId, () => admin.createOrganisation(sequelize, actor.tenantId, input)));
   });
 
   router.get('/users', async (req, res) => {
     const { actor, ability } = actorOf(req);
     const q = parse(usersQuerySchema, req.query, 'query');
-    if (ability.can('read', subject('User', { tenantId: actor.tenantId }))) return res.json(await admin.listUsers(sequelize, actor.tenantId, q));
+    if (ability.can('read', subject('User', { tenantId: actor.tenantId }))) return res.json(await withTenant(sequelize, actor.tenantId, () => admin.listUsers(sequelize, actor.tenantId, q)));
     // A contractor lead sees the members of their own organisation only.
     const own = actor.memberships.find((m) => ability.can('read', subject('Membership', { tenantId: actor.tenantId, organisationId: m.organisationId })));
     if (!own) throw AppError.forbidden('Your role does not allow you to list people.');
-    res.json(await admin.listUsers(sequelize, actor.tenantId, q, own.organisationId));
+    res.json(await withTenant(sequelize, actor.tenantId, () => admin.listUsers(sequelize, actor.tenantId, q, own.organisationId)));
   });
 
   router.patch('/memberships/:id', async (req, res) => {
     const { actor, ability } = actorOf(req);
     const id = parse(uuidSchema, req.params.id, 'path');
-    const record = authorizeRecord(ability, 'update', 'Membership', await admin.findMembership(sequelize, actor.tenantId, id), 'membership');
+    const record = authorizeRecord(ability, 'update', 'Membership', await withTenant(sequelize, actor.tenantId, () => admin.findMembership(sequelize, actor.tenantId, id)), 'membership');
     const { role } = parse(membershipRoleInputSchema, req.body, 'membership');
     if (record.userId === actor.userId && record.role === 'tenant_admin' && role !== 'tenant_admin') {
       throw AppError.unprocessable('You cannot remove your own tenant admin role; ask another admin.');
     }
-    await admin.changeMembershipRole(sequelize, actor.tenantId, id, role);
+    await withTenant(sequelize, actor.tenantId, () => admin.changeMembershipRole(sequelize, actor.tenantId, id, role));
     req.log.info({ event: 'role_changed', membershipId: id, from: record.role, to: role, by: actor.userId }, 'role changed');
     res.json({ ...record, role });
   });
@@ -64,9 +65,9 @@ export function createAdminRouter(deps: AppDeps) {
   router.delete('/memberships/:id', async (req, res) => {
     const { actor, ability } = actorOf(req);
     const id = parse(uuidSchema, req.params.id, 'path');
-    const record = authorizeRecord(ability, 'delete', 'Membership', await admin.findMembership(sequelize, actor.tenantId, id), 'membership');
+    const record = authorizeRecord(ability, 'delete', 'Membership', await withTenant(sequelize, actor.tenantId, () => admin.findMembership(sequelize, actor.tenantId, id)), 'membership');
     if (record.userId === actor.userId) throw AppError.unprocessable('You cannot remove your own membership.');
-    await admin.removeMembership(sequelize, actor.tenantId, id);
+    await withTenant(sequelize, actor.tenantId, () => admin.removeMembership(sequelize, actor.tenantId, id));
     req.log.info({ event: 'membership_removed', membershipId: id, by: actor.userId }, 'membership removed');
     res.status(204).end();
   });
@@ -75,14 +76,14 @@ export function createAdminRouter(deps: AppDeps) {
     const { actor, ability } = actorOf(req);
     authorizeType(ability, 'read', 'Qualification', { tenantId: actor.tenantId }, 'qualifications');
     const q = parse(pageQuerySchema.extend({ userId: uuidSchema.optional() }), req.query, 'query');
-    res.json(await admin.listQualifications(sequelize, actor.tenantId, q.page, q.pageSize, q.userId));
+    res.json(await withTenant(sequelize, actor.tenantId, () => admin.listQualifications(sequelize, actor.tenantId, q.page, q.pageSize, q.userId)));
   });
 
   router.post('/qualifications', async (req, res) => {
     const { actor, ability } = actorOf(req);
     authorizeType(ability, 'create', 'Qualification', { tenantId: actor.tenantId }, 'qualifications');
     const input = parse(qualificationInputSchema, req.body, 'qualification');
-    res.status(201).json(await admin.createQualification(sequelize, actor.tenantId, input));
+    res.status(201).json(await withTenant(sequelize, actor.tenantId, () => admin.createQualification(sequelize, actor.tenantId, input)));
   });
 
   router.post('/invitations', async (req, res) => {
