@@ -9,6 +9,7 @@ import { createApp } from './app';
 import { startDevMailbox, type DevMailbox } from './modules/dev-mail/dev-mailbox';
 import { startWorkers } from './workers';
 import type { AppDeps } from './deps';
+import { closeChangeFeed } from './lib/change-feed';
 
 async function main() {
   let config;
@@ -51,6 +52,7 @@ async function main() {
     workers?.stop();
     server.close();
     server.closeAllConnections?.();
+    await closeChangeFeed(deps);
     await devMailbox?.stop();
     await deps.pgPool.end().catch(() => undefined);
     await sequelize.close().catch(() => undefined);

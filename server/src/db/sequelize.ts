@@ -37,7 +37,13 @@ export function createSequelize(databaseUrl: string, logger?: Logger): Sequelize
 export async function withTenant<T>(sequelize: Sequelize, tenantId: string, fn: (t: Transaction) => Promise<T>): Promise<T> {
   const current = store.getStore();
   const open = current?.get('transaction') as Transaction | null | undefined;
-  if (open && current?.get('tenantId') === tenantId && (open as unknown as { sequelize: Sequelize }).sequelize === sequelize) return fn(open);
+  if (open && (open as unknown as { sequelize: Sequelize }).sequelize === sequelize) {
+    if (current?.get('tenantId') !== tenantId) {
+      await sequelize.query(`SELECT set_config('app.tenant_id', :tenantId, true)`, { replacements: { tenantId }, transaction: open });
+      current?.set('tenantId', tenantId);
+    }
+    return fn(open);
+  }
   return sequelize.transaction(async (t) => {
     store.getStore()?.set('tenantId', tenantId);
     await sequelize.query(`SELECT set_config('app.tenant_id', :tenantId, true)`, { replacements: { tenantId }, transaction: t });

@@ -3,7 +3,7 @@ import type { Action, AppAbility, SubjectName } from '@shared/abilities/define-a
 import { AppError } from '../errors/app-error';
 
 /** Checks one record; a record the caller may not even read answers 404 so its existence stays hidden. */
-export function authorizeRecord<T extends Record<string, unknown>>(ability: AppAbility, action: Action, type: Exclude<SubjectName, 'all'>, record: T | null | undefined, what: string): T {
+export function authorizeRecord<T extends object>(ability: AppAbility, action: Action, type: Exclude<SubjectName, 'all'>, record: T | null | undefined, what: string): T {
   if (!record) throw AppError.notFound(what);
   const subj = caslSubject(type, { ...record });
   if (!ability.can('read', subj)) throw AppError.notFound(what);

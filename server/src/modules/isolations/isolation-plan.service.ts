@@ -1,0 +1,123 @@
+import { QueryTypes } from 'sequelize';
+import { conditionForKind, type PlanStepInput, type SavePlanInput, type StepKind } from '@shared/schemas/isolation.schema';
+import type { AppDeps } from '../../deps';
+import { withTenant } from '../../db/sequelize';
+import { AppError } from '../../errors/app-error';
+import { authorizeRecord } from '../../lib/authorize';
+import { appendAudit } from '../audit/audit.service';
+import { findPermit } from '../permits/permits.repository';
+import { auditActor, type CallerContext } from '../permits/permits.service';
+import { listSteps } from './isolation-queries';
+
+interface PointRow {
+  id: string;
+  tagCode: string;
+  kind: string;
+  position: number;
+  remotelyOperable: boolean | null;
+}
+
+const kindForPoint: Record<string, StepKind> = {
+  block_valve: 'block_valve',
+  vent: 'vent',
+  drain: 'drain',
+  plug_position: 'plug',
+  mechanical_plug_position: 'plug',
+  blind_position: 'blind',
+  isolator: 'isolator',
+};
+
+export async function getPlan(deps: AppDeps, caller: CallerContext, permitId: string) {
+  const { tenantId } = caller.actor;
+  return withTenant(deps.sequelize, tenantId, async () => {
+    authorizeRecord(caller.ability, 'read', 'Permit', await findPermit(deps.sequelize, tenantId, permitId), 'permit');
+    return { items: await listSteps(deps.sequelize, tenantId, permitId) };
+  });
+}
+
+async function pipelinePoints(deps: AppDeps, tenantId: string, pipelineId: string) {
+  return deps.sequelize.query<PointRow>(
+    `SELECT id, tag_code AS "tagCode", kind, position::float8 AS position, remotely_operable AS "remotelyOperable"
+     FROM isolation_points WHERE tenant_id = :tenantId AND pipeline_id = :pipelineId ORDER BY position, tag_code`,
+    { replacements: { tenantId, pipelineId }, type: QueryTypes.SELECT },
+  );
+}
+
+/**
+ * A first plan for a cut-out between two positions: the nearest block valve on each side, the vents
+ * and drains between them, and a plug on each side of the cut. The planner edits it before saving.
+ */
+export async function proposePlan(deps: AppDeps, caller: CallerContext, permitId: string, from: number, to: number) {
+  const { tenantId } = caller.actor;
+  return withTenant(deps.sequelize, tenantId, async () => {
+    const permit = authorizeRecord(caller.ability, 'read', 'Permit', await findPermit(deps.sequelize, tenantId, permitId), 'permit');
+    const [pipe] = await deps.sequelize.query<{ id: number; insideDiameterIn: number }>(
+      `SELECT inside_diameter_in::float8 AS "insideDiameterIn" FROM pipelines WHERE tenant_id = :tenantId AND id = :id`,
+      { replacements: { tenantId, id: permit.pipelineId }, type: QueryTypes.SELECT },
+    );
+    const points = await pipelinePoints(deps, tenantId, permit.pipelineId);
+    const valves = points.filter((p) => p.kind === 'block_valve');
+    const upstream = [...valves].reverse().find((v) => v.position <= from);
+    const downstream = valves.find((v) => v.position >= to);
+    const warnings: string[] = [];
+    if (!upstream) warnings.push('No block valve found before the start of the cut; add an isolation by hand.');
+    if (!downstream) warnings.push('No block valve found after the end of the cut; add an isolation by hand.');
+    const lo = upstream?.position ?? from;
+    const hi = downstream?.position ?? to;
+    const between = points.filter((p) => (p.kind === 'vent' || p.kind === 'drain') && p.position >= lo && p.position <= hi);
+    const steps: (PlanStepInput & { label: string; position: number })[] = [];
+    for (const v of [upstream, downstream]) if (v) steps.push({ pointId: v.id, kind: 'block_valve', label: v.tagCode, position: v.position });
+    for (const p of between.filter((x) => x.kind === 'drain')) steps.push({ pointId: p.id, kind: 'drain', label: p.tagCode, position: p.position });
+    for (const p of between.filter((x) => x.kind === 'vent')) steps.push({ pointId: p.id, kind: 'vent', label: p.tagCode, position: p.position });
+    const d = pipe?.insideDiameterIn;
+    steps.push({ tempLabel: 'Plug upstream of cut', tempPosition: from, kind: 'plug', plugDiameterIn: d, label: 'Plug upstream of cut', position: from });
+    steps.push({ tempLabel: 'Plug downstream of cut', tempPosition: to, kind: 'plug', plugDiameterIn: d, label: 'Plug downstream of cut', position: to });
+    return { steps, warnings, insideDiameterIn: d ?? null };
+  });
+}
+
+/** Replaces the plan of a draft permit in one go; the plan is reviewed with the permit, so it is frozen once sent. */
+export async function savePlan(deps: AppDeps, caller: CallerContext, permitId: string, input: SavePlanInput) {
+  const { tenantId } = caller.actor;
+  return withTenant(deps.sequelize, tenantId, async () => {
+    const permit = authorizeRecord(caller.ability, 'update', 'Permit', await findPermit(deps.sequelize, tenantId, permitId, { lock: true }), 'permit');
+    if (permit.state !== 'draft') throw AppError.unprocessable('The isolation plan can only change while the permit is a draft.');
+    if (permit.version !== input.version) throw AppError.conflict('Someone changed this permit in the meantime. Reload it and try again.', { current: { state: permit.state, version: permit.version } });
+    const points = new Map((await pipelinePoints(deps, tenantId, permit.pipelineId)).map((p) => [p.id, p]));
+    const details: { path: string; message: string }[] = [];
+    input.steps.forEach((s, i) => {
+      if (s.pointId) {
+        const p = points.get(s.pointId);
+        if (!p) details.push({ path: `steps.${i}.pointId`, message: 'That point is not on this permit’s pipeline.' });
+        else if (kindForPoint[p.kind] !== s.kind) details.push({ path: `steps.${i}.kind`, message: `${p.tagCode} is a ${p.kind.replace(/_/g, ' ')}, not a ${s.kind.replace(/_/g, ' ')}.` });
+      }
+      if (s.kind === 'plug' && !s.plugDiameterIn) details.push({ path: `steps.${i}.plugDiameterIn`, message: 'Give the pipe diameter the plug fills.' });
+    });
+    const seen = new Set<string>();
+    input.steps.forEach((s, i) => {
+      if (!s.pointId) return;
+      if (seen.has(s.pointId)) details.push({ path: `steps.${i}.pointId`, message: 'This point is already in the plan.' });
+      seen.add(s.pointId);
+    });
+    if (details.length) throw AppError.validation('Some steps of the plan are not valid.', details);
+    await deps.sequelize.query(`DELETE FROM isolation_steps WHERE tenant_id = :tenantId AND permit_id = :permitId`, { replacements: { tenantId, permitId } });
+    for (const [i, s] of input.steps.entries()) {
+      await deps.sequelize.query(
+        `INSERT INTO isolation_steps (tenant_id, permit_id, seq, point_id, temp_label, temp_position, kind, condition, remotely_operable, plug_diameter_in)
+         VALUES (:tenantId, :permitId, :seq, :pointId, :tempLabel, :tempPosition, :kind, :condition, :remote, :plugDiameterIn)`,
+        {
+          replacements: {
+            tenantId, permitId, seq: i + 1, pointId: s.pointId ?? null, tempLabel: s.pointId ? null : s.tempLabel, tempPosition: s.pointId ? null : s.tempPosition,
+            kind: s.kind, condition: conditionForKind[s.kind], remote: Boolean(s.pointId && points.get(s.pointId)?.remotelyOperable), plugDiameterIn: s.plugDiameterIn ?? null,
+          },
+        },
+      );
+    }
+    await deps.sequelize.query(`UPDATE permits SET version = version + 1, updated_at = :now WHERE tenant_id = :tenantId AND id = :permitId`, { replacements: { tenantId, permitId, now: deps.clock.now() } });
+    await appendAudit(deps.sequelize, {
+      tenantId, entityType: 'permit', entityId: permitId, permitId, action: 'plan_saved', actor: auditActor(caller, 'update'), ip: caller.ip,
+      data: { steps: input.steps.length }, occurredAt: deps.clock.now(),
+    });
+    return { items: await listSteps(deps.sequelize, tenantId, permitId) };
+  });
+}

@@ -1,0 +1,80 @@
+import { QueryTypes, type Sequelize } from 'sequelize';
+
+export interface StepRow {
+  id: string;
+  permitId: string;
+  seq: number;
+  pointId: string | null;
+  label: string;
+  position: number;
+  kind: string;
+  condition: string;
+  status: 'planned' | 'applied' | 'verified' | 'removed';
+  remotelyOperable: boolean;
+  lockId: string | null;
+  lockNumber: string | null;
+  tagId: string | null;
+  tagNumber: string | null;
+  appliedBy: string | null;
+  appliedByName: string | null;
+  appliedAt: Date | null;
+  photoAttachmentId: string | null;
+  remoteAckAt: Date | null;
+  remoteAckByName: string | null;
+  verifiedBy: string | null;
+  verifiedByName: string | null;
+  verifiedAt: Date | null;
+  verificationMethod: string | null;
+  verificationReading: number | null;
+  verificationUnit: string | null;
+  verificationNotes: string | null;
+  removedByName: string | null;
+  removedAt: Date | null;
+  removalNote: string | null;
+  controlRoomAckAppliedAt: Date | null;
+  controlRoomAckRemovedAt: Date | null;
+  plugDiameterIn: number | null;
+  plugAsBuilt: { bentoniteLb: number; waterLb: number; lengthIn: number; builtAt: string } | null;
+  plugWarnings: { code: string; message: string }[];
+  plugWarningsAckAt: Date | null;
+}
+
+export const stepSelect = `
+  SELECT s.id, s.permit_id AS "permitId", s.seq, s.point_id AS "pointId", coalesce(ip.tag_code, s.temp_label) AS label,
+         coalesce(ip.position, s.temp_position)::float8 AS position, s.kind, s.condition, s.status, s.remotely_operable AS "remotelyOperable",
+         s.lock_id AS "lockId", l.number AS "lockNumber", s.tag_id AS "tagId", t.number AS "tagNumber",
+         s.applied_by AS "appliedBy", ua.name AS "appliedByName", s.applied_at AS "appliedAt", s.photo_attachment_id AS "photoAttachmentId",
+         s.remote_ack_at AS "remoteAckAt", ur.name AS "remoteAckByName",
+         s.verified_by AS "verifiedBy", uv.name AS "verifiedByName", s.verified_at AS "verifiedAt", s.verification_method AS "verificationMethod",
+         s.verification_reading::float8 AS "verificationReading", s.verification_unit AS "verificationUnit", s.verification_notes AS "verificationNotes",
+         ux.name AS "removedByName", s.removed_at AS "removedAt", s.removal_note AS "removalNote",
+         s.control_room_ack_applied_at AS "controlRoomAckAppliedAt", s.control_room_ack_removed_at AS "controlRoomAckRemovedAt",
+         s.plug_diameter_in::float8 AS "plugDiameterIn", s.plug_as_built AS "plugAsBuilt", s.plug_warnings AS "plugWarnings", s.plug_warnings_ack_at AS "plugWarningsAckAt"
+  FROM isolation_steps s
+  LEFT JOIN isolation_points ip ON ip.tenant_id = s.tenant_id AND ip.id = s.point_id
+  LEFT JOIN locks l ON l.tenant_id = s.tenant_id AND l.id = s.lock_id
+  LEFT JOIN tags t ON t.tenant_id = s.tenant_id AND t.id = s.tag_id
+  LEFT JOIN users ua ON ua.id = s.applied_by
+  LEFT JOIN users uv ON uv.id = s.verified_by
+  LEFT JOIN users ur ON ur.id = s.remote_ack_by
+  LEFT JOIN users ux ON ux.id = s.removed_by`;
+
+export async function listSteps(sequelize: Sequelize, tenantId: string, permitId: string): Promise<StepRow[]> {
+  return sequelize.query<StepRow>(`${stepSelect} WHERE s.tenant_id = :tenantId AND s.permit_id = :permitId ORDER BY s.seq`, {
+    replacements: { tenantId, permitId },
+    type: QueryTypes.SELECT,
+  });
+}
+
+export async function findStep(sequelize: Sequelize, tenantId: string, permitId: string, stepId: string, lock = false): Promise<StepRow | null> {
+  if (lock) await sequelize.query(`SELECT 1 FROM isolation_steps WHERE tenant_id = :tenantId AND id = :stepId FOR UPDATE`, { replacements: { tenantId, stepId } });
+  const rows = await sequelize.query<StepRow>(`${stepSelect} WHERE s.tenant_id = :tenantId AND s.permit_id = :permitId AND s.id = :stepId`, {
+    replacements: { tenantId, permitId, stepId },
+    type: QueryTypes.SELECT,
+  });
+  return rows[0] ?? null;
+}
+
+export async function notifyChange(sequelize: Sequelize, payload: Record<string, unknown>) {
+  await sequelize.query(`SELECT pg_notify('holdpoint_changes', :payload)`, { replacements: { payload: JSON.stringify(payload) } });
+}

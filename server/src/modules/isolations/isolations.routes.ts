@@ -1,0 +1,85 @@
+// Isolation plans, steps and the control room's live board.
+//   GET  /api/permits/:id/isolations                   readers of the permit: the plan and each step's record
+//   PUT  /api/permits/:id/isolations                   who may edit the draft permit: replace the plan
+//   GET  /api/permits/:id/isolations/proposal          readers of the permit: a proposed plan for ?fromPosition&toPosition
+//   POST /api/permits/:id/isolations/:stepId/apply     isolation technician (lockout/tagout qualified)
+//   POST /api/permits/:id/isolations/:stepId/verify    isolation technician other than the applier (isolation verifier qualified)
+//   POST /api/permits/:id/isolations/:stepId/acknowledge control room (remote inhibited, applied, removed); authoriser (plug warnings)
+//   POST /api/permits/:id/isolations/:stepId/remove    isolation technician, after hand-back
+//   GET  /api/board                                    control room, authoriser, tenant admin, auditor
+//   GET  /api/board/stream                             the same: text/event-stream of changes
+import { Router, type Request } from 'express';
+import { acknowledgeStepInputSchema, applyStepInputSchema, proposePlanQuerySchema, removeStepInputSchema, savePlanInputSchema, verifyStepInputSchema } from '@shared/schemas/isolation.schema';
+import { uuidSchema } from '@shared/schemas/common.schema';
+import type { AppDeps } from '../../deps';
+import { actorOf, requireTenant } from '../../middleware/authenticate';
+import { parse } from '../../middleware/validate';
+import { authorizeType } from '../../lib/authorize';
+import { withTenant } from '../../db/sequelize';
+import { changeFeed } from '../../lib/change-feed';
+import type { CallerContext } from '../permits/permits.service';
+import { getPlan, proposePlan, savePlan } from './isolation-plan.service';
+import { acknowledgeStep, applyStep, removeStep, verifyStep } from './isolation-steps.service';
+import { boardItems, boardQuerySchema } from './board.service';
+
+export function createIsolationsRouter(deps: AppDeps) {
+  const router = Router();
+  router.use(['/permits', '/board'], requireTenant);
+  const caller = (req: Request): CallerContext => ({ ...actorOf(req), ip: req.ip });
+  const ids = (req: Request) => ({ permitId: parse(uuidSchema, req.params.id, 'path'), stepId: parse(uuidSchema, req.params.stepId ?? '00000000-0000-4000-8000-000000000000', 'path') });
+
+  router.get('/permits/:id/isolations', async (req, res) => {
+    res.json(await getPlan(deps, caller(req), ids(req).permitId));
+  });
+  router.put('/permits/:id/isolations', async (req, res) => {
+    res.json(await savePlan(deps, caller(req), ids(req).permitId, parse(savePlanInputSchema, req.body, 'isolation plan')));
+  });
+  router.get('/permits/:id/isolations/proposal', async (req, res) => {
+    const q = parse(proposePlanQuerySchema, req.query, 'query');
+    res.json(await proposePlan(deps, caller(req), ids(req).permitId, q.fromPosition, q.toPosition));
+  });
+  router.post('/permits/:id/isolations/:stepId/apply', async (req, res) => {
+    const { permitId, stepId } = ids(req);
+    res.json(await applyStep(deps, caller(req), permitId, stepId, parse(applyStepInputSchema, req.body, 'isolation')));
+  });
+  router.post('/permits/:id/isolations/:stepId/verify', async (req, res) => {
+    const { permitId, stepId } = ids(req);
+    res.json(await verifyStep(deps, caller(req), permitId, stepId, parse(verifyStepInputSchema, req.body, 'verification')));
+  });
+  router.post('/permits/:id/isolations/:stepId/acknowledge', async (req, res) => {
+    const { permitId, stepId } = ids(req);
+    res.json(await acknowledgeStep(deps, caller(req), permitId, stepId, parse(acknowledgeStepInputSchema, req.body, 'acknowledgement')));
+  });
+  router.post('/permits/:id/isolations/:stepId/remove', async (req, res) => {
+    const { permitId, stepId } = ids(req);
+    res.json(await removeStep(deps, caller(req), permitId, stepId, parse(removeStepInputSchema, req.body, 'removal')));
+  });
+
+  router.get('/board', async (req, res) => {
+    const { actor, ability } = actorOf(req);
+    authorizeType(ability, 'read', 'Board', { tenantId: actor.tenantId }, 'the isolation board');
+    const q = parse(boardQuerySchema, req.query, 'query');
+    const items = await withTenant(deps.sequelize, actor.tenantId, () => boardItems(deps.sequelize, actor.tenantId, q));
+    res.json({ items, total: items.length, generatedAt: deps.clock.now().toISOString() });
+  });
+
+  router.get('/board/stream', (req, res) => {
+    const { actor, ability } = actorOf(req);
+    authorizeType(ability, 'read', 'Board', { tenantId: actor.tenantId }, 'the isolation board');
+    res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
+    res.write(`retry: 2000\nevent: ready\ndata: {}\n\n`);
+    const unsubscribe = changeFeed(deps).subscribe((change) => {
+      // Only this tenant's changes; "resync" goes to everyone after the feed reconnects.
+      if (change.tenantId !== actor.tenantId && change.tenantId !== '*') return;
+      const { tenantId: _t, ...rest } = change;
+      res.write(`event: change\ndata: ${JSON.stringify(rest)}\n\n`);
+    });
+    const heartbeat = setInterval(() => res.write(`: keep-alive\n\n`), 25_000);
+    req.on('close', () => {
+      clearInterval(heartbeat);
+      unsubscribe();
+    });
+  });
+
+  return router;
+}

@@ -1,0 +1,83 @@
+import { QueryTypes, type Sequelize } from 'sequelize';
+import type { ActorFacts, PermitFacts } from '@shared/permit/state-machine';
+import type { Actor } from '@shared/abilities/define-ability';
+import type { PermitRow } from './permits.repository';
+
+/** Gathers from the database everything the lifecycle guards need about one permit. */
+export async function loadPermitFacts(sequelize: Sequelize, permit: PermitRow): Promise<PermitFacts> {
+  const r = { tenantId: permit.tenantId, permitId: permit.id };
+  const [iso] = await sequelize.query<{
+    steps: number; applied: number; verified: number; self_verified: number; remote_without_ack: number;
+    still_applied: number; vents_open: number; plugs_in_place: number; plug_warnings: number;
+  }>(
+    `SELECT count(*)::int AS steps,
+            count(*) FILTER (WHERE status IN ('applied','verified'))::int AS applied,
+            count(*) FILTER (WHERE status = 'verified' AND verified_by IS DISTINCT FROM applied_by
+                             AND (NOT remotely_operable OR remote_ack_at IS NOT NULL))::int AS verified,
+            count(*) FILTER (WHERE status = 'verified' AND verified_by = applied_by)::int AS self_verified,
+            count(*) FILTER (WHERE status IN ('applied','verified') AND remotely_operable AND remote_ack_at IS NULL)::int AS remote_without_ack,
+            count(*) FILTER (WHERE status IN ('applied','verified'))::int AS still_applied,
+            count(*) FILTER (WHERE kind = 'vent' AND status IN ('applied','verified'))::int AS vents_open,
+            count(*) FILTER (WHERE kind = 'plug' AND status IN ('applied','verified'))::int AS plugs_in_place,
+            count(*) FILTER (WHERE jsonb_array_length(plug_warnings) > 0 AND plug_warnings_ack_at IS NULL AND status <> 'removed')::int AS plug_warnings
+     FROM isolation_steps WHERE tenant_id = :tenantId AND permit_id = :permitId`,
+    { replacements: r, type: QueryTypes.SELECT },
+  );
+  const [gas] = await sequelize.query<{ last_pass: Date | null; last_fail: Date | null }>(
+    `SELECT max(tested_at) FILTER (WHERE verdict = 'pass') AS last_pass, max(tested_at) FILTER (WHERE verdict = 'fail') AS last_fail
+     FROM gas_tests WHERE tenant_id = :tenantId AND permit_id = :permitId`,
+    { replacements: r, type: QueryTypes.SELECT },
+  );
+  const conflicts = await sequelize.query<{ number: string }>(
+    `SELECT DISTINCT other.number FROM isolation_steps mine
+     JOIN isolation_steps theirs ON theirs.tenant_id = mine.tenant_id AND theirs.point_id = mine.point_id AND theirs.permit_id <> mine.permit_id
+       AND theirs.status IN ('applied','verified')
+     JOIN permits other ON other.tenant_id = theirs.tenant_id AND other.id = theirs.permit_id AND other.state IN ('isolated','live','suspended')
+     WHERE mine.tenant_id = :tenantId AND mine.permit_id = :permitId AND mine.condition IN ('drained','vent_open')
+     ORDER BY other.number`,
+    { replacements: r, type: QueryTypes.SELECT },
+  );
+  const fireWatchEndsAt =
+    permit.kinds.includes('hot_work') && permit.hotWorkEndedAt ? new Date(new Date(permit.hotWorkEndedAt).getTime() + permit.fireWatchMinutes * 60_000) : null;
+  return {
+    state: permit.state,
+    kinds: permit.kinds,
+    requesterUserId: permit.requesterUserId,
+    contractorOrganisationId: permit.contractorOrganisationId,
+    contractorLeadUserId: permit.contractorLeadUserId,
+    validFrom: new Date(permit.validFrom),
+    validTo: new Date(permit.validTo),
+    stateBeforeExpiry: permit.stateBeforeExpiry,
+    checklist: permit.checklist,
+    isolation: {
+      steps: iso.steps,
+      applied: iso.applied,
+      verified: iso.verified,
+      selfVerified: iso.self_verified,
+      remoteValvesWithoutAck: iso.remote_without_ack,
+      stillApplied: iso.still_applied,
+      ventsOpen: iso.vents_open,
+      plugsInPlace: iso.plugs_in_place,
+      plugWarningsUnacknowledged: iso.plug_warnings,
+    },
+    gas: { lastPassAt: gas.last_pass, lastFailAt: gas.last_fail, windowMinutes: permit.gasTestWindowMinutes },
+    fireWatchEndsAt,
+    walkdownComplete: permit.walkdown.filter((w) => w.required).every((w) => w.confirmed),
+    controlRoomAcknowledged: Boolean(permit.controlRoomAckAt),
+    conflicts: conflicts.map((c) => c.number),
+    hasExpiredFlag: permit.expiredFlag,
+  };
+}
+
+export async function loadActorFacts(sequelize: Sequelize, actor: Actor, on: Date): Promise<ActorFacts> {
+  const quals = await sequelize.query<{ kind: string }>(
+    `SELECT DISTINCT kind FROM qualifications WHERE tenant_id = :tenantId AND user_id = :userId AND issued_on <= CAST(:on AS date) AND expires_on >= CAST(:on AS date)`,
+    { replacements: { tenantId: actor.tenantId, userId: actor.userId, on: on.toISOString().slice(0, 10) }, type: QueryTypes.SELECT },
+  );
+  return {
+    userId: actor.userId,
+    organisationIds: [...new Set(actor.memberships.map((m) => m.organisationId))],
+    roles: actor.memberships.map((m) => m.role),
+    qualifications: quals.map((q) => q.kind),
+  };
+}

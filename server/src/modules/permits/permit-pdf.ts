@@ -1,0 +1,126 @@
+import PDFDocument from 'pdfkit';
+import QRCode from 'qrcode';
+import { QueryTypes } from 'sequelize';
+import { format } from 'date-fns';
+import { mudPlug, MUD_PLUG_CAUTION } from '@shared/calc';
+import { permitStateLabels, workKindLabels } from '@shared/permit/states';
+import { permitEventLabels, type PermitEvent } from '@shared/permit/state-machine';
+import type { AppDeps } from '../../deps';
+import type { PermitRow } from './permits.repository';
+
+interface PdfInput extends PermitRow {
+  signatures: unknown[];
+  timeline: unknown[];
+  nextGasTestDue: string | null;
+}
+
+// The standard PDF fonts cover Latin-1 only; keep text inside it rather than print blanks.
+const latin1 = (s: unknown) =>
+  String(s ?? '')
+    .replace(/[‐-―]/g, '-')
+    .replace(/[‘’]/g, "'")
+    .replace(/[“”]/g, '"')
+    .replace(/≥/g, '>=')
+    .replace(/≤/g, '<=')
+    .replace(/[^\x09\x0A\x0D\x20-\x7E\xA0-\xFF]/g, '?');
+
+const when = (d: unknown) => (d ? format(new Date(d as string), 'd MMM yyyy HH:mm') : '-');
+
+/** The printable permit, posted at the work site; the QR code opens the live record. */
+export async function renderPermitPdf(deps: AppDeps, tenantId: string, p: PdfInput): Promise<Buffer> {
+  const steps = await deps.sequelize.query<{
+    seq: number; kind: string; condition: string; status: string; label: string; position: number; lock_number: string | null; tag_number: string | null;
+    applied_by: string | null; verified_by: string | null; removed_at: Date | null; plug_diameter_in: number | null;
+  }>(
+    `SELECT s.seq, s.kind, s.condition, s.status, coalesce(ip.tag_code, s.temp_label) AS label, coalesce(ip.position, s.temp_position)::float8 AS position,
+            l.number AS lock_number, t.number AS tag_number, ua.name AS applied_by, uv.name AS verified_by, s.removed_at, s.plug_diameter_in::float8 AS plug_diameter_in
+     FROM isolation_steps s
+     LEFT JOIN isolation_points ip ON ip.tenant_id = s.tenant_id AND ip.id = s.point_id
+     LEFT JOIN locks l ON l.tenant_id = s.tenant_id AND l.id = s.lock_id
+     LEFT JOIN tags t ON t.tenant_id = s.tenant_id AND t.id = s.tag_id
+     LEFT JOIN users ua ON ua.id = s.applied_by LEFT JOIN users uv ON uv.id = s.verified_by
+     WHERE s.tenant_id = :tenantId AND s.permit_id = :id ORDER BY s.seq`,
+    { replacements: { tenantId, id: p.id }, type: QueryTypes.SELECT },
+  );
+  const gas = await deps.sequelize.query<{ tested_at: Date; place: string; verdict: string; readings: Record<string, number> }>(
+    `SELECT tested_at, place, verdict, readings FROM gas_tests WHERE tenant_id = :tenantId AND permit_id = :id ORDER BY tested_at DESC LIMIT 6`,
+    { replacements: { tenantId, id: p.id }, type: QueryTypes.SELECT },
+  );
+  const url = `${deps.config.PUBLIC_URL}/permits/${p.id}`;
+  const qr = await QRCode.toBuffer(url, { errorCorrectionLevel: 'M', margin: 1, width: 180 });
+
+  const doc = new PDFDocument({ size: 'A4', margin: 40, info: { Title: `Permit to work ${p.number}`, Author: 'Holdpoint', Subject: latin1(p.title) } });
+  const chunks: Buffer[] = [];
+  doc.on('data', (c: Buffer) => chunks.push(c));
+  const done = new Promise<Buffer>((resolve) => doc.on('end', () => resolve(Buffer.concat(chunks))));
+
+  const heading = (t: string) => {
+    doc.moveDown(0.6).font('Helvetica-Bold').fontSize(12).fillColor('#10252f').text(latin1(t)).moveDown(0.2);
+    doc.font('Helvetica').fontSize(9.5).fillColor('#14202b');
+  };
+  const row = (k: string, v: unknown) => doc.font('Helvetica-Bold').text(`${latin1(k)}: `, { continued: true }).font('Helvetica').text(latin1(v));
+
+  doc.image(qr, doc.page.width - 40 - 90, 40, { width: 90 });
+  doc.font('Helvetica-Bold').fontSize(18).fillColor('#10252f').text('PERMIT TO WORK', 40, 40);
+  doc.fontSize(14).text(latin1(`${p.number}  -  ${permitStateLabels[p.state]}`));
+  doc.font('Helvetica').fontSize(10).fillColor('#14202b').text(latin1(p.title), { width: 400 });
+  doc.fontSize(8).fillColor('#3d4b57').text(latin1(`Scan for the live record: ${url}`), { width: 400 });
+  doc.moveDown(0.5);
+  doc.rect(40, doc.y, doc.page.width - 80, 34).fill('#fff6cc');
+  doc.fillColor('#14202b').fontSize(8.5).text(latin1(`Caution: Holdpoint records and checks the permit and isolation process. It does not replace the operator's procedures, local codes, or a competent person's judgement. This copy was printed ${when(deps.clock.now())}; the live record is the authority.`), 46, doc.y + 5, { width: doc.page.width - 92 });
+  doc.moveDown(1.2);
+  doc.x = 40;
+
+  heading('Job');
+  row('Kinds of work', p.kinds.map((k) => workKindLabels[k]).join(', '));
+  row('Pipeline', `${p.pipelineName}, from ${p.fromPosition} to ${p.toPosition}`);
+  row('Job reference', p.jobReference ?? '-');
+  row('Contractor', `${p.contractorName}; lead ${p.contractorLeadName ?? 'not named yet'}`);
+  row('Requested by', p.requesterName);
+  row('Valid', `${when(p.validFrom)} to ${when(p.validTo)}`);
+  if (p.kinds.includes('hot_work')) row('Fire watch', `${p.fireWatchMinutes} minutes after hot work stops${p.fireWatchPerson ? `; ${p.fireWatchPerson}` : ''}`);
+  row('Gas tests', `within ${p.gasTestWindowMinutes} min before work starts, then every ${p.gasTestIntervalMinutes} min`);
+  heading('Scope and method');
+  doc.text(latin1(p.scope || '-'));
+  if (p.methodStatement) doc.moveDown(0.3).text(latin1(p.methodStatement));
+  heading('Hazards and precautions');
+  doc.text(latin1(p.hazards || '-'));
+  for (const c of p.checklist) doc.text(latin1(`[${c.confirmed ? 'x' : ' '}] ${c.label}${c.required ? ' (required)' : ''}${c.confirmedByName ? ` - ${c.confirmedByName}` : ''}`));
+  row('PPE', p.ppe.join(', ') || '-');
+
+  heading('Isolation plan');
+  if (!steps.length) doc.text('No steps yet.');
+  for (const s of steps) {
+    let line = `${s.seq}. ${s.label} at ${s.position} - ${s.kind.replace(/_/g, ' ')}, ${s.condition.replace(/_/g, ' ')}; ${s.status}`;
+    if (s.lock_number) line += `; lock ${s.lock_number}`;
+    if (s.tag_number) line += `; tag ${s.tag_number}`;
+    if (s.applied_by) line += `; applied by ${s.applied_by}`;
+    if (s.verified_by) line += `; verified by ${s.verified_by}`;
+    doc.text(latin1(line));
+    if (s.kind === 'plug' && s.plug_diameter_in) {
+      const m = mudPlug({ diameterIn: s.plug_diameter_in });
+      doc.fontSize(8.5).text(latin1(`   Plug for ${s.plug_diameter_in} in: about ${m.mudLb.toFixed(1)} lb of paste (${m.mudLbRange[0].toFixed(1)}-${m.mudLbRange[1].toFixed(1)}), ${m.bentoniteLb.toFixed(1)} lb bentonite, ${m.waterGal.toFixed(2)} US gal water, ${m.plugLengthIn.toFixed(1)} in long, about ${m.mudBalls} balls.`)).fontSize(9.5);
+    }
+  }
+  if (steps.some((s) => s.kind === 'plug')) doc.fontSize(8).fillColor('#b3261e').text(latin1(MUD_PLUG_CAUTION)).fillColor('#14202b').fontSize(9.5);
+
+  heading('Latest gas tests');
+  if (!gas.length) doc.text('None recorded.');
+  for (const g of gas) {
+    const r = g.readings;
+    doc.text(latin1(`${when(g.tested_at)} ${g.place.replace(/_/g, ' ')}: ${g.verdict.toUpperCase()} - O2 ${r.o2Pct ?? '-'} %, LEL ${r.lelPct ?? '-'} %, H2S ${r.h2sPpm ?? '-'} ppm, CO ${r.coPpm ?? '-'} ppm`));
+  }
+
+  heading('Signatures');
+  const signed = p.signatures as { event: PermitEvent; signedName: string; signedAt: string }[];
+  for (const ev of ['approve', 'accept', 'hand_back', 'return_to_service'] as PermitEvent[]) {
+    const s = [...signed].reverse().find((x) => x.event === ev);
+    doc.text(latin1(`${permitEventLabels[ev]}: ${s ? `${s.signedName}, ${when(s.signedAt)} (password re-entered)` : '________________________'}`));
+  }
+  heading('Record');
+  for (const e of (p.timeline as { occurredAt: string; action: string; actorName: string | null; toState: string | null; reason: string | null }[]).slice(-25)) {
+    doc.fontSize(8.5).text(latin1(`${when(e.occurredAt)}  ${e.action.replace(/_/g, ' ')}${e.toState ? ` -> ${e.toState.replace(/_/g, ' ')}` : ''}  ${e.actorName ?? 'Holdpoint'}${e.reason ? ` - ${e.reason}` : ''}`));
+  }
+  doc.end();
+  return done;
+}

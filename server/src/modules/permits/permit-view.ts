@@ -1,0 +1,30 @@
+import { QueryTypes, type Sequelize } from 'sequelize';
+import type { PermitRow } from './permits.repository';
+
+export async function permitTimeline(sequelize: Sequelize, tenantId: string, permitId: string) {
+  return sequelize.query(
+    `SELECT seq, action, from_state AS "fromState", to_state AS "toState", actor_name AS "actorName", actor_role AS "actorRole",
+            reason, data, occurred_at AS "occurredAt", entity_type AS "entityType"
+     FROM audit_events WHERE tenant_id = :tenantId AND permit_id = :permitId ORDER BY seq`,
+    { replacements: { tenantId, permitId }, type: QueryTypes.SELECT },
+  );
+}
+
+export async function permitSignatures(sequelize: Sequelize, tenantId: string, permitId: string) {
+  return sequelize.query(
+    `SELECT s.event, s.signed_name AS "signedName", s.password_confirmed AS "passwordConfirmed", s.signed_at AS "signedAt", u.email
+     FROM permit_signatures s JOIN users u ON u.id = s.user_id WHERE s.tenant_id = :tenantId AND s.permit_id = :permitId ORDER BY s.signed_at`,
+    { replacements: { tenantId, permitId }, type: QueryTypes.SELECT },
+  );
+}
+
+/** When the next repeat gas test is due on a live permit (null otherwise). */
+export async function nextGasTestDue(sequelize: Sequelize, permit: PermitRow): Promise<string | null> {
+  if (permit.state !== 'live') return null;
+  const [row] = await sequelize.query<{ last: Date | null }>(
+    `SELECT max(tested_at) AS last FROM gas_tests WHERE tenant_id = :tenantId AND permit_id = :permitId AND verdict = 'pass'`,
+    { replacements: { tenantId: permit.tenantId, permitId: permit.id }, type: QueryTypes.SELECT },
+  );
+  if (!row.last) return new Date().toISOString();
+  return new Date(new Date(row.last).getTime() + permit.gasTestIntervalMinutes * 60_000).toISOString();
+}

@@ -1,0 +1,155 @@
+import { QueryTypes, type Sequelize } from 'sequelize';
+import type { PermitState, WorkKind } from '@shared/permit/states';
+import type { ChecklistItem, PermitSummary, PermitsQuery } from '@shared/schemas/permit.schema';
+import type { Page } from '@shared/schemas/common.schema';
+import type { SqlScope } from '../../lib/casl-sql';
+
+export interface PermitRow {
+  id: string;
+  tenantId: string;
+  number: string;
+  state: PermitState;
+  version: number;
+  kinds: WorkKind[];
+  title: string;
+  scope: string;
+  pipelineId: string;
+  pipelineName: string;
+  fromPosition: number;
+  toPosition: number;
+  jobReference: string | null;
+  methodStatement: string;
+  hazards: string;
+  ppe: string[];
+  checklist: ChecklistItem[];
+  walkdown: ChecklistItem[];
+  validFrom: Date;
+  validTo: Date;
+  contractorOrganisationId: string;
+  contractorName: string;
+  contractorLeadUserId: string | null;
+  contractorLeadName: string | null;
+  requesterUserId: string;
+  requesterName: string;
+  authoriserUserId: string | null;
+  authoriserName: string | null;
+  holderUserId: string | null;
+  holderName: string | null;
+  fireWatchMinutes: number;
+  fireWatchPerson: string | null;
+  gasTestWindowMinutes: number;
+  gasTestIntervalMinutes: number;
+  hotWorkEndedAt: Date | null;
+  controlRoomAckAt: Date | null;
+  rejectionReason: string | null;
+  stateBeforeExpiry: PermitState | null;
+  expiredFlag: boolean;
+  createdAt: Date;
+  updatedAt: Date;
+}
+
+const permitColumns = `
+  p.id, p.tenant_id AS "tenantId", p.number, p.state, p.version, p.kinds, p.title, p.scope, p.pipeline_id AS "pipelineId", pl.name AS "pipelineName",
+  p.from_position::float8 AS "fromPosition", p.to_position::float8 AS "toPosition", p.job_reference AS "jobReference", p.method_statement AS "methodStatement",
+  p.hazards, p.ppe, p.checklist, p.walkdown, p.valid_from AS "validFrom", p.valid_to AS "validTo",
+  p.contractor_organisation_id AS "contractorOrganisationId", o.name AS "contractorName",
+  p.contractor_lead_user_id AS "contractorLeadUserId", lead.name AS "contractorLeadName",
+  p.requester_user_id AS "requesterUserId", req.name AS "requesterName",
+  p.authoriser_user_id AS "authoriserUserId", auth.name AS "authoriserName",
+  p.holder_user_id AS "holderUserId", holder.name AS "holderName",
+  p.fire_watch_minutes AS "fireWatchMinutes", p.fire_watch_person AS "fireWatchPerson",
+  p.gas_test_window_minutes AS "gasTestWindowMinutes", p.gas_test_interval_minutes AS "gasTestIntervalMinutes",
+  p.hot_work_ended_at AS "hotWorkEndedAt", p.control_room_ack_at AS "controlRoomAckAt", p.rejection_reason AS "rejectionReason",
+  p.state_before_expiry AS "stateBeforeExpiry", p.expired_flag AS "expiredFlag", p.created_at AS "createdAt", p.updated_at AS "updatedAt"`;
+
+const permitJoins = `
+  JOIN pipelines pl ON pl.tenant_id = p.tenant_id AND pl.id = p.pipeline_id
+  JOIN organisations o ON o.tenant_id = p.tenant_id AND o.id = p.contractor_organisation_id
+  JOIN users req ON req.id = p.requester_user_id
+  LEFT JOIN users lead ON lead.id = p.contractor_lead_user_id
+  LEFT JOIN users auth ON auth.id = p.authoriser_user_id
+  LEFT JOIN users holder ON holder.id = p.holder_user_id`;
+
+export async function findPermit(sequelize: Sequelize, tenantId: string, id: string, opts: { lock?: boolean } = {}): Promise<PermitRow | null> {
+  if (opts.lock) await sequelize.query(`SELECT 1 FROM permits WHERE tenant_id = :tenantId AND id = :id FOR UPDATE`, { replacements: { tenantId, id } });
+  const rows = await sequelize.query<PermitRow>(`SELECT ${permitColumns} FROM permits p ${permitJoins} WHERE p.tenant_id = :tenantId AND p.id = :id`, {
+    replacements: { tenantId, id },
+    type: QueryTypes.SELECT,
+  });
+  return rows[0] ?? null;
+}
+
+const sortColumns: Record<PermitsQuery['sort'], string> = { number: 'p.number', title: 'lower(p.title)', state: 'p.state', validFrom: 'p.valid_from', updatedAt: 'p.updated_at' };
+
+export async function listPermits(sequelize: Sequelize, tenantId: string, q: PermitsQuery, scope: SqlScope): Promise<Page<PermitSummary>> {
+  const where = ['p.tenant_id = :tenantId', scope.sql];
+  const r: Record<string, unknown> = { tenantId, ...scope.replacements, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
+  if (q.state?.length) {
+    where.push('p.state IN (:states)');
+    r.states = q.state;
+  }
+  if (q.pipelineId) {
+    where.push('p.pipeline_id = :pipelineId');
+    r.pipelineId = q.pipelineId;
+  }
+  if (q.contractorOrganisationId) {
+    where.push('p.contractor_organisation_id = :org');
+    r.org = q.contractorOrganisationId;
+  }
+  if (q.kind) {
+    where.push(':kind = ANY (p.kinds)');
+    r.kind = q.kind;
+  }
+  if (q.from) {
+    where.push('p.valid_to >= CAST(:from AS date)');
+    r.from = q.from;
+  }
+  if (q.to) {
+    where.push(`p.valid_from < CAST(:to AS date) + interval '1 day'`);
+    r.to = q.to;
+  }
+  if (q.q) {
+    where.push(`(p.number ILIKE :q OR p.title ILIKE :q)`);
+    r.q = `%${q.q.replace(/[%_\\]/g, (c) => `\\${c}`)}%`;
+  }
+  const whereSql = where.join(' AND ');
+  const [{ n }] = await sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM permits p WHERE ${whereSql}`, { replacements: r, type: QueryTypes.SELECT });
+  const items = await sequelize.query<PermitSummary>(
+    `SELECT p.id, p.number, p.state, p.version, p.kinds, p.title, p.pipeline_id AS "pipelineId", pl.name AS "pipelineName",
+            p.from_position::float8 AS "fromPosition", p.to_position::float8 AS "toPosition", p.valid_from AS "validFrom", p.valid_to AS "validTo",
+            p.contractor_organisation_id AS "contractorOrganisationId", o.name AS "contractorName", p.updated_at AS "updatedAt",
+            CASE WHEN p.state = 'live' THEN coalesce(
+              (SELECT max(g.tested_at) FROM gas_tests g WHERE g.tenant_id = p.tenant_id AND g.permit_id = p.id AND g.verdict = 'pass') + make_interval(mins => p.gas_test_interval_minutes),
+              now()) END AS "nextGasTestDue"
+     FROM permits p
+     JOIN pipelines pl ON pl.tenant_id = p.tenant_id AND pl.id = p.pipeline_id
+     JOIN organisations o ON o.tenant_id = p.tenant_id AND o.id = p.contractor_organisation_id
+     WHERE ${whereSql}
+     ORDER BY ${sortColumns[q.sort]} ${q.dir === 'asc' ? 'ASC' : 'DESC'}, p.id
+     LIMIT :limit OFFSET :offset`,
+    { replacements: r, type: QueryTypes.SELECT },
+  );
+  return { items, total: n, page: q.page, pageSize: q.pageSize };
+}
+
+/** Next readable number for the tenant and year, e.g. PW-2026-0042; the row lock keeps numbers unique and gap-free. */
+export async function nextPermitNumber(sequelize: Sequelize, tenantId: string, year: number): Promise<string> {
+  const [row] = await sequelize.query<{ last: number }>(
+    `INSERT INTO permit_sequences (tenant_id, year, last) VALUES (:tenantId, :year, 1)
+     ON CONFLICT (tenant_id, year) DO UPDATE SET last = permit_sequences.last + 1 RETURNING last`,
+    { replacements: { tenantId, year }, type: QueryTypes.SELECT },
+  );
+  return `PW-${year}-${String(row.last).padStart(4, '0')}`;
+}
+
+export async function checklistTemplate(sequelize: Sequelize, tenantId: string, kinds: string[]) {
+  const rows = await sequelize.query<{ key: string; label: string; required_for: string[]; stage: 'before_work' | 'walkdown' }>(
+    `SELECT key, label, required_for, stage FROM checklist_templates WHERE tenant_id = :tenantId ORDER BY stage, sort, key`,
+    { replacements: { tenantId }, type: QueryTypes.SELECT },
+  );
+  const toItem = (r: (typeof rows)[number]): ChecklistItem => ({ key: r.key, label: r.label, required: r.required_for.some((k) => kinds.includes(k)) || r.required_for.includes('all'), confirmed: false });
+  return {
+    checklist: rows.filter((r) => r.stage === 'before_work').map(toItem),
+    walkdown: rows.filter((r) => r.stage === 'walkdown').map(toItem),
+  };
+}

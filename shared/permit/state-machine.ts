@@ -1,0 +1,227 @@
+import type { Action } from '../abilities/define-ability';
+import { qualificationForKind, type PermitState, type WorkKind } from './states';
+
+export const permitEvents = [
+  'submit',
+  'reject',
+  'approve',
+  'accept',
+  'confirm_isolated',
+  'start_work',
+  'suspend',
+  'resume',
+  'hand_back',
+  'return_to_service',
+  'acknowledge_return',
+  'close',
+  'cancel',
+  'expire',
+  'revalidate',
+] as const;
+export type PermitEvent = (typeof permitEvents)[number];
+
+export const permitEventLabels: Record<PermitEvent, string> = {
+  submit: 'Send for approval',
+  reject: 'Send back with reasons',
+  approve: 'Approve and issue',
+  accept: 'Accept for the crew',
+  confirm_isolated: 'Confirm isolation complete',
+  start_work: 'Start work',
+  suspend: 'Suspend work',
+  resume: 'Resume work',
+  hand_back: 'Hand back',
+  return_to_service: 'Return to service',
+  acknowledge_return: 'Acknowledge return to service',
+  close: 'Close permit',
+  cancel: 'Cancel permit',
+  expire: 'Expire',
+  revalidate: 'Re-validate',
+};
+
+/** Events that are signatures: the signer re-enters the password and types their name. */
+export const signedEvents: readonly PermitEvent[] = ['approve', 'accept', 'hand_back', 'return_to_service'];
+/** Events that need a reason in words. */
+export const reasonedEvents: readonly PermitEvent[] = ['reject', 'suspend', 'cancel'];
+/** Events only the server fires (scheduler, failing gas test). */
+export const systemEvents: readonly PermitEvent[] = ['expire'];
+
+/** The CASL action a person needs on the permit to fire each event. */
+export const eventAction: Record<PermitEvent, Action> = {
+  submit: 'request',
+  reject: 'reject',
+  approve: 'approve',
+  accept: 'accept',
+  confirm_isolated: 'start_work',
+  start_work: 'start_work',
+  suspend: 'suspend',
+  resume: 'resume',
+  hand_back: 'hand_back',
+  return_to_service: 'return_to_service',
+  acknowledge_return: 'acknowledge',
+  close: 'close',
+  cancel: 'cancel',
+  expire: 'suspend',
+  revalidate: 'revalidate',
+};
+
+const table: Record<PermitEvent, Partial<Record<PermitState, PermitState>>> = {
+  submit: { draft: 'requested' },
+  reject: { requested: 'draft' },
+  approve: { requested: 'approved' },
+  accept: { approved: 'accepted' },
+  confirm_isolated: { accepted: 'isolated' },
+  start_work: { isolated: 'live' },
+  suspend: { live: 'suspended' },
+  resume: { suspended: 'live' },
+  hand_back: { live: 'work_complete', suspended: 'work_complete' },
+  return_to_service: { work_complete: 'returned_to_service' },
+  acknowledge_return: { returned_to_service: 'returned_to_service' },
+  close: { returned_to_service: 'closed' },
+  cancel: { draft: 'cancelled', requested: 'cancelled', approved: 'cancelled', accepted: 'cancelled', isolated: 'cancelled', expired: 'cancelled' },
+  // A live permit whose time runs out is suspended, not expired: the crew must stop but the record stays open.
+  expire: { approved: 'expired', accepted: 'expired', isolated: 'expired', live: 'suspended' },
+  revalidate: { expired: 'approved', suspended: 'suspended' },
+};
+
+/** What the guards need to know, gathered by the server from the database. */
+export interface PermitFacts {
+  state: PermitState;
+  kinds: WorkKind[];
+  requesterUserId: string;
+  contractorOrganisationId: string;
+  contractorLeadUserId: string | null;
+  validFrom: Date;
+  validTo: Date;
+  /** The state an expired permit returns to when re-validated. */
+  stateBeforeExpiry: PermitState | null;
+  checklist: { key: string; label: string; required: boolean; confirmed: boolean }[];
+  isolation: {
+    steps: number;
+    applied: number;
+    verified: number;
+    /** Steps verified by the same person who applied them: never counted. */
+    selfVerified: number;
+    remoteValvesWithoutAck: number;
+    /** Steps of this permit still applied (for return to service). */
+    stillApplied: number;
+    ventsOpen: number;
+    plugsInPlace: number;
+    plugWarningsUnacknowledged: number;
+  };
+  gas: { lastPassAt: Date | null; lastFailAt: Date | null; windowMinutes: number };
+  fireWatchEndsAt: Date | null;
+  walkdownComplete: boolean;
+  controlRoomAcknowledged: boolean;
+  /** Live permits whose isolations this permit's plan would operate. */
+  conflicts: string[];
+  hasExpiredFlag: boolean;
+}
+
+export interface ActorFacts {
+  userId: string;
+  organisationIds: string[];
+  roles: string[];
+  /** In-date qualification kinds held today. */
+  qualifications: string[];
+  isSystem?: boolean;
+}
+
+export type TransitionResult = { ok: true; to: PermitState } | { ok: false; reasons: string[] };
+
+const minutes = (ms: number) => Math.round(ms / 60_000);
+
+/**
+ * The permit lifecycle as a pure function: given the facts, the actor and the event, either the next
+ * state or every reason the event is refused, each phrased so the person knows what is missing.
+ * Role permission (who may fire which event) is checked separately with CASL via `eventAction`.
+ */
+export function decide(event: PermitEvent, facts: PermitFacts, actor: ActorFacts, now: Date, input: { reason?: string } = {}): TransitionResult {
+  const to = table[event]?.[facts.state];
+  if (!to) return { ok: false, reasons: [`A permit that is ${facts.state.replace(/_/g, ' ')} cannot be sent "${permitEventLabels[event]}".`] };
+  if (systemEvents.includes(event) && !actor.isSystem) return { ok: false, reasons: ['Only Holdpoint itself expires a permit, when its validity window ends.'] };
+
+  const reasons: string[] = [];
+  if (reasonedEvents.includes(event) && !(input.reason && input.reason.trim().length >= 3)) reasons.push('Give a reason in words.');
+  const windowOpen = now >= facts.validFrom && now <= facts.validTo;
+
+  switch (event) {
+    case 'submit':
+      if (facts.validTo <= facts.validFrom) reasons.push('The validity window must end after it starts.');
+      break;
+    case 'approve':
+      if (actor.userId === facts.requesterUserId) reasons.push('You requested this permit, so someone else must approve it (two-person rule).');
+      if (facts.validTo < now) reasons.push('The validity window has already ended; change it before approving.');
+      if (facts.conflicts.length) reasons.push(`The plan would operate points that live permits hold isolated: ${facts.conflicts.join(', ')}.`);
+      break;
+    case 'accept': {
+      if (!actor.organisationIds.includes(facts.contractorOrganisationId) || !actor.roles.includes('contractor_lead'))
+        reasons.push('Only a contractor lead of the named contractor organisation can accept this permit.');
+      if (facts.contractorLeadUserId && facts.contractorLeadUserId !== actor.userId) reasons.push('This permit names another contractor lead.');
+      const needed = facts.kinds.map((k) => qualificationForKind[k]).filter((q) => !actor.qualifications.includes(q));
+      if (needed.length) reasons.push(`You need an in-date qualification for: ${needed.map((q) => q.replace(/_/g, ' ')).join(', ')}.`);
+      if (facts.validTo < now) reasons.push('The validity window has already ended.');
+      break;
+    }
+    case 'confirm_isolated':
+      reasons.push(...isolationGaps(facts));
+      break;
+    case 'start_work':
+    case 'resume':
+      reasons.push(...isolationGaps(facts));
+      if (!windowOpen) reasons.push(now < facts.validFrom ? 'The permit is not valid yet.' : 'The validity window has ended; the authoriser must re-validate it.');
+      if (!facts.gas.lastPassAt) reasons.push('Record a passing gas test first.');
+      else {
+        const age = minutes(now.getTime() - facts.gas.lastPassAt.getTime());
+        if (age > facts.gas.windowMinutes) reasons.push(`The last passing gas test is ${age} minutes old; a new one is needed within ${facts.gas.windowMinutes} minutes of starting.`);
+        if (facts.gas.lastFailAt && facts.gas.lastFailAt > facts.gas.lastPassAt) reasons.push('The latest gas test failed; record a passing test first.');
+      }
+      {
+        const open = facts.checklist.filter((c) => c.required && !c.confirmed);
+        if (open.length) reasons.push(`Confirm the required checklist items: ${open.map((c) => c.label).join('; ')}.`);
+      }
+      if (facts.isolation.plugWarningsUnacknowledged) reasons.push(`${facts.isolation.plugWarningsUnacknowledged} plug record(s) have warnings the authoriser must acknowledge.`);
+      break;
+    case 'hand_back':
+      if (facts.fireWatchEndsAt && facts.fireWatchEndsAt > now)
+        reasons.push(`The fire watch runs until ${facts.fireWatchEndsAt.toISOString()} (${minutes(facts.fireWatchEndsAt.getTime() - now.getTime())} minutes more).`);
+      break;
+    case 'return_to_service':
+      if (facts.isolation.stillApplied) reasons.push(`${facts.isolation.stillApplied} isolation(s) of this permit are still applied; remove them first.`);
+      if (facts.isolation.ventsOpen) reasons.push(`${facts.isolation.ventsOpen} vent(s) are still open.`);
+      if (facts.isolation.plugsInPlace) reasons.push(`${facts.isolation.plugsInPlace} plug(s) are still in place or not recorded as removed or displaced.`);
+      if (!facts.walkdownComplete) reasons.push('Complete the walk-down checklist.');
+      break;
+    case 'close':
+      if (!facts.controlRoomAcknowledged) reasons.push('The control room has not acknowledged the return to service yet.');
+      break;
+    case 'revalidate':
+      if (facts.state === 'suspended' && !facts.hasExpiredFlag) reasons.push('Only a permit suspended because its time ran out can be re-validated.');
+      if (facts.validTo <= now) reasons.push('Set a new validity window that ends in the future.');
+      break;
+    default:
+      break;
+  }
+  if (reasons.length) return { ok: false, reasons };
+  if (event === 'revalidate' && facts.state === 'expired') return { ok: true, to: facts.stateBeforeExpiry ?? 'approved' };
+  return { ok: true, to };
+}
+
+
+function isolationGaps(facts: PermitFacts): string[] {
+  const r: string[] = [];
+  const i = facts.isolation;
+  if (i.steps === 0) r.push('The isolation plan has no steps.');
+  else if (i.verified < i.steps) r.push(`${i.steps - i.verified} of ${i.steps} isolation step(s) are not yet applied and verified by a second person.`);
+  if (i.selfVerified) r.push(`${i.selfVerified} step(s) were verified by the person who applied them; someone else must verify.`);
+  if (i.remoteValvesWithoutAck) r.push(`${i.remoteValvesWithoutAck} remotely operable valve(s) lack the control room's acknowledgement that remote operation is inhibited.`);
+  return r;
+}
+
+/** The events that exist from a state (ignoring guards and roles), for listing possible actions. */
+export function eventsFrom(state: PermitState): PermitEvent[] {
+  return permitEvents.filter((e) => table[e][state] !== undefined && !systemEvents.includes(e));
+}
+
+export function targetOf(event: PermitEvent, state: PermitState): PermitState | undefined {
+  return table[event][state];
+}
