@@ -18,7 +18,8 @@ export async function startTestDatabase(projectRoot) {
   const templateUrl = ensureRoleAndDatabase(cluster, { role: TEST_ROLE, password: TEST_PASSWORD, database: TEMPLATE_DB, createdb: true });
   const r = spawnSync(process.execPath, ['--import', 'tsx', 'server/src/db/cli.ts', 'setup'], {
     cwd: projectRoot,
-    env: { ...process.env, DATABASE_URL: templateUrl },
+    // Tests start without the demo permits: each test file creates the permits it needs.
+    env: { ...process.env, DATABASE_URL: templateUrl, SEED_DEMO_PERMITS: 'off' },
     stdio: ['ignore', 'ignore', 'inherit'],
   });
   if (r.status !== 0) {

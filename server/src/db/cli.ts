@@ -16,7 +16,7 @@ try {
     if (done.length) console.log(`[db] applied ${done.length} migration(s)`);
   }
   if (command === 'seed' || command === 'setup') {
-    await seedDemo(sequelize);
+    await seedDemo(sequelize, { permits: process.env.SEED_DEMO_PERMITS !== 'off' });
     console.log('[db] demo data is in place');
   }
   if (!['migrate', 'seed', 'setup'].includes(command ?? '')) {

@@ -1,0 +1,72 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { QueryTypes } from 'sequelize';
+import { createTestDatabase } from '../fixtures/test-server';
+import { createSequelize } from '../../server/src/db/sequelize';
+import { seedDemo } from '../../server/src/db/seed';
+import { verifyChain } from '../../server/src/modules/audit/audit.service';
+
+describe('the demo scenario that npm start seeds', () => {
+  let db: Awaited<ReturnType<typeof createTestDatabase>>;
+  let sequelize: ReturnType<typeof createSequelize>;
+  const states = async () =>
+    sequelize.query<{ job_reference: string; state: string }>(`SELECT job_reference, state FROM permits WHERE job_reference LIKE 'BM-DEMO-%' ORDER BY job_reference`, { type: QueryTypes.SELECT });
+
+  beforeAll(async () => {
+    db = await createTestDatabase();
+    sequelize = createSequelize(db.url);
+    await seedDemo(sequelize, { permits: true });
+  }, 120_000);
+  afterAll(async () => {
+    await sequelize.close();
+    await db.drop();
+  });
+
+  it('when seeded, then Bramblecote has one permit at every stage of the job', async () => {
+    const byRef = Object.fromEntries((await states()).map((r) => [r.job_reference, r.state]));
+    expect(byRef).toEqual({
+      'BM-DEMO-0411': 'returned_to_service',
+      'BM-DEMO-1730': 'live',
+      'BM-DEMO-1260': 'isolated',
+      'BM-DEMO-0820': 'suspended',
+      'BM-DEMO-3100': 'approved',
+      'BM-DEMO-2530': 'requested',
+    });
+  });
+
+  it('when seeded, then the live cut-out holds both valves, drains, vents and two as-built plugs, and CR-BV-149 is shared', async () => {
+    const steps = await sequelize.query<{ label: string; status: string; kind: string }>(
+      `SELECT coalesce(ip.tag_code, s.temp_label) AS label, s.status, s.kind FROM isolation_steps s JOIN permits p ON p.id = s.permit_id
+       LEFT JOIN isolation_points ip ON ip.id = s.point_id WHERE p.job_reference = 'BM-DEMO-1730' ORDER BY s.seq`,
+      { type: QueryTypes.SELECT },
+    );
+    expect(steps.every((s) => s.status === 'verified')).toBe(true);
+    expect(steps.map((s) => s.label)).toEqual(expect.arrayContaining(['CR-BV-149', 'CR-BV-197', 'CR-DR-151', 'CR-DR-195', 'CR-VT-150', 'CR-VT-196']));
+    expect(steps.filter((s) => s.kind === 'plug')).toHaveLength(2);
+    const [shared] = await sequelize.query<{ n: number }>(
+      `SELECT count(DISTINCT s.permit_id)::int AS n FROM isolation_steps s JOIN isolation_points ip ON ip.id = s.point_id WHERE ip.tag_code = 'CR-BV-149' AND s.status IN ('applied','verified')`,
+      { type: QueryTypes.SELECT },
+    );
+    expect(shared.n).toBe(2);
+  });
+
+  it('when seeded, then the live permit has a gas test overdue and the suspended one a failing reading', async () => {
+    const [live] = await sequelize.query<{ last: Date; interval: number }>(
+      `SELECT max(g.tested_at) AS last, p.gas_test_interval_minutes AS interval FROM gas_tests g JOIN permits p ON p.id = g.permit_id
+       WHERE p.job_reference = 'BM-DEMO-1730' AND g.verdict = 'pass' GROUP BY p.gas_test_interval_minutes`,
+      { type: QueryTypes.SELECT },
+    );
+    expect(new Date(live.last).getTime() + live.interval * 60_000).toBeLessThan(Date.now());
+    const fails = await sequelize.query(`SELECT 1 FROM gas_tests g JOIN permits p ON p.id = g.permit_id WHERE p.job_reference = 'BM-DEMO-0820' AND g.verdict = 'fail'`, { type: QueryTypes.SELECT });
+    expect(fails).toHaveLength(1);
+  });
+
+  it('when seeded twice, then nothing is duplicated and the audit chain still verifies', async () => {
+    const before = await sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM audit_events`, { type: QueryTypes.SELECT });
+    await seedDemo(sequelize, { permits: true });
+    const after = await sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM audit_events`, { type: QueryTypes.SELECT });
+    expect(after[0].n).toBe(before[0].n);
+    expect(await states()).toHaveLength(6);
+    const [tenant] = await sequelize.query<{ id: string }>(`SELECT id FROM tenants WHERE slug = 'bramblecote'`, { type: QueryTypes.SELECT });
+    expect(await verifyChain(sequelize, tenant.id)).toMatchObject({ ok: true });
+  });
+});
