@@ -9,6 +9,7 @@ import { errorHandler, notFoundApi } from './middleware/error-handler';
 import { sessionMiddleware } from './middleware/session';
 import { csrfProtection } from './middleware/csrf';
 import { authenticate } from './middleware/authenticate';
+import { idempotency } from './middleware/idempotency';
 import { createHealthRouter } from './modules/health/health.routes';
 import { createAuthRouter, type AuthLimits } from './modules/auth/auth.routes';
 import { featureRouters } from './modules';
@@ -62,6 +63,7 @@ export function createApp(deps: AppDeps, options: AppOptions = {}) {
   api.use(sessionMiddleware(deps));
   api.use(csrfProtection(deps.config.SESSION_SECRET));
   api.use(authenticate(deps));
+  api.use(idempotency(deps));
   api.use(createAuthRouter(deps, options.authLimits));
   for (const make of featureRouters) api.use(make(deps));
   api.use(notFoundApi());
