@@ -2,6 +2,7 @@ import { QueryTypes, type Sequelize, type Transaction } from 'sequelize';
 import type { Actor } from '@shared/abilities/define-ability';
 import type { Role, OrganisationKind } from '@shared/abilities/roles';
 import type { MeResponse } from '@shared/schemas/auth.schema';
+import { withTenant } from '../../db/sequelize';
 
 export interface UserRow {
   id: string;
@@ -30,12 +31,12 @@ export async function findUserByEmail(sequelize: Sequelize, email: string, trans
   return rows[0] ?? null;
 }
 
+/** Every membership of the user across tenants, through the one owner-run function that may cross them. */
 export async function membershipsOf(sequelize: Sequelize, userId: string): Promise<MembershipView[]> {
   return sequelize.query<MembershipView>(
-    `SELECT m.id, m.tenant_id AS "tenantId", t.name AS "tenantName", m.organisation_id AS "organisationId",
-            o.name AS "organisationName", o.kind AS "organisationKind", m.role
-     FROM memberships m JOIN tenants t ON t.id = m.tenant_id JOIN organisations o ON o.id = m.organisation_id
-     WHERE m.user_id = :userId ORDER BY t.name, o.name, m.role`,
+    `SELECT id, tenant_id AS "tenantId", tenant_name AS "tenantName", organisation_id AS "organisationId",
+            organisation_name AS "organisationName", organisation_kind AS "organisationKind", role
+     FROM hp_memberships_of(:userId)`,
     { replacements: { userId }, type: QueryTypes.SELECT },
   );
 }
@@ -56,9 +57,9 @@ export async function loadActor(sequelize: Sequelize, userId: string, tenantId: 
 }
 
 export async function tenantSummary(sequelize: Sequelize, tenantId: string): Promise<MeResponse['activeTenant']> {
-  const rows = await sequelize.query<{ id: string; name: string; timeZone: string; locationUnit: 'mi' | 'km' }>(
+  const rows = await withTenant(sequelize, tenantId, () => sequelize.query<{ id: string; name: string; timeZone: string; locationUnit: 'mi' | 'km' }>(
     `SELECT id, name, time_zone AS "timeZone", location_unit AS "locationUnit" FROM tenants WHERE id = :tenantId`,
     { replacements: { tenantId }, type: QueryTypes.SELECT },
-  );
+  ));
   return rows[0] ?? null;
 }
