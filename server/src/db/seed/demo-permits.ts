@@ -1,4 +1,4 @@
-import { QueryTypes, type Sequelize } from 'sequelize';
+import { QueryTypes } from 'sequelize';
 import { defineAbilityFor } from '@shared/abilities/define-ability';
 import { assessAtmosphere, DEFAULT_ATMOSPHERE_LIMITS, mudPlug } from '@shared/calc';
 import type { PermitEvent } from '@shared/permit/state-machine';

@@ -22,6 +22,7 @@ const latin1 = (s: unknown) =>
     .replace(/[“”]/g, '"')
     .replace(/≥/g, '>=')
     .replace(/≤/g, '<=')
+    // eslint-disable-next-line no-control-regex -- keeping tabs and line breaks is the point
     .replace(/[^\x09\x0A\x0D\x20-\x7E\xA0-\xFF]/g, '?');
 
 const when = (d: unknown) => (d ? format(new Date(d as string), 'd MMM yyyy HH:mm') : '-');
