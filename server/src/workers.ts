@@ -1,5 +1,6 @@
 import type { AppDeps } from './deps';
 import { deliverDueMail } from './lib/mailer';
+import { runSchedulerTick } from './modules/gas-tests/scheduler';
 
 /** Background loops of one server process; safe to run in several processes at once (SKIP LOCKED). */
 export function startWorkers(deps: AppDeps, intervalMs = 1_000) {
@@ -10,6 +11,7 @@ export function startWorkers(deps: AppDeps, intervalMs = 1_000) {
     running = true;
     try {
       await deliverDueMail(deps.sequelize, deps.mailTransport, deps.config.MAIL_FROM, deps.logger);
+      await runSchedulerTick(deps);
     } catch (err) {
       deps.logger.debug({ err: (err as Error).message }, 'worker tick failed');
     } finally {

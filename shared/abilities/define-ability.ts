@@ -4,7 +4,7 @@ import type { OrganisationKind, Role } from './roles';
 export const actions = [
   'manage', 'read', 'create', 'update', 'delete',
   // permit events
-  'request', 'approve', 'reject', 'accept', 'cancel', 'revalidate', 'suspend', 'resume', 'hand_back', 'return_to_service', 'close', 'handover',
+  'request', 'approve', 'reject', 'accept', 'cancel', 'revalidate', 'suspend', 'resume', 'start_work', 'hand_back', 'return_to_service', 'close', 'handover',
   // isolation steps and checks
   'apply', 'verify', 'remove', 'acknowledge', 'record', 'verify_chain',
 ] as const;
@@ -67,7 +67,7 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
   },
   contractor_lead(can, a, m) {
     const scope = permitScope(a, m);
-    can(['read', 'request', 'accept', 'cancel', 'hand_back', 'handover', 'resume'], 'Permit', scope);
+    can(['read', 'request', 'accept', 'cancel', 'start_work', 'hand_back', 'handover', 'resume'], 'Permit', scope);
     can(['create', 'update'], 'Permit', scope);
     can('read', ['IsolationStep', 'GasTest', 'Check', 'Attachment'], scope);
     can('create', 'Attachment', scope);

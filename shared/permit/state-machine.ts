@@ -171,8 +171,10 @@ export function decide(event: PermitEvent, facts: PermitFacts, actor: ActorFacts
       if (!windowOpen) reasons.push(now < facts.validFrom ? 'The permit is not valid yet.' : 'The validity window has ended; the authoriser must re-validate it.');
       if (!facts.gas.lastPassAt) reasons.push('Record a passing gas test first.');
       else {
-        const age = minutes(now.getTime() - facts.gas.lastPassAt.getTime());
-        if (age > facts.gas.windowMinutes) reasons.push(`The last passing gas test is ${age} minutes old; a new one is needed within ${facts.gas.windowMinutes} minutes of starting.`);
+        // To the millisecond, never rounded: a test 30 min 20 s old is outside a 30-minute window.
+        const ageMs = now.getTime() - facts.gas.lastPassAt.getTime();
+        if (ageMs > facts.gas.windowMinutes * 60_000)
+          reasons.push(`The last passing gas test is ${Math.ceil(ageMs / 60_000)} minutes old; a new one is needed within ${facts.gas.windowMinutes} minutes of starting.`);
         if (facts.gas.lastFailAt && facts.gas.lastFailAt > facts.gas.lastPassAt) reasons.push('The latest gas test failed; record a passing test first.');
       }
       {
@@ -182,7 +184,9 @@ export function decide(event: PermitEvent, facts: PermitFacts, actor: ActorFacts
       if (facts.isolation.plugWarningsUnacknowledged) reasons.push(`${facts.isolation.plugWarningsUnacknowledged} plug record(s) have warnings the authoriser must acknowledge.`);
       break;
     case 'hand_back':
-      if (facts.fireWatchEndsAt && facts.fireWatchEndsAt > now)
+      // The fire watch runs from when hot work stopped; without that record it has not started.
+      if (facts.kinds.includes('hot_work') && !facts.fireWatchEndsAt) reasons.push('Record that hot work has stopped; the fire watch must run its full time before hand-back.');
+      else if (facts.fireWatchEndsAt && facts.fireWatchEndsAt > now)
         reasons.push(`The fire watch runs until ${facts.fireWatchEndsAt.toISOString()} (${minutes(facts.fireWatchEndsAt.getTime() - now.getTime())} minutes more).`);
       break;
     case 'return_to_service':

@@ -9,6 +9,16 @@ const appRoutes: RouteObject[] = [
   { path: 'admin/users', lazy: page(() => import('@client/features/admin/pages/users-page')) },
   { path: 'admin/organisations', lazy: page(() => import('@client/features/admin/pages/organisations-page')) },
   { path: 'admin/qualifications', lazy: page(() => import('@client/features/admin/pages/qualifications-page')) },
+  { path: 'calculator', lazy: page(() => import('@client/features/calculator/pages/calculator-page')) },
+  { path: 'permits', lazy: page(() => import('@client/features/permits/pages/permits-page')) },
+  { path: 'permits/new', lazy: page(() => import('@client/features/permits/pages/new-permit-page')) },
+  { path: 'permits/:id', lazy: page(() => import('@client/features/permits/pages/permit-page')) },
+  { path: 'permits/:id/edit', lazy: page(() => import('@client/features/permits/pages/edit-permit-page')) },
+  { path: 'pipelines', lazy: page(() => import('@client/features/assets/pages/pipelines-page')) },
+  { path: 'pipelines/:id', lazy: page(() => import('@client/features/assets/pages/pipeline-page')) },
+  { path: 'locks', lazy: page(() => import('@client/features/assets/pages/locks-page')) },
+  { path: 'board', lazy: page(() => import('@client/features/isolations/pages/board-page')) },
+  { path: 'instruments', lazy: page(() => import('@client/features/gas-tests/pages/instruments-page')) },
   { path: '*', lazy: page(() => import('./routes/not-found')) },
 ];
 

@@ -19,6 +19,9 @@ class ChangeFeed {
   private listeners = new Set<Listener>();
   private stopped = false;
   private retry: NodeJS.Timeout | null = null;
+  private listening = false;
+  private lostLink = false;
+  private waiters: (() => void)[] = [];
 
   constructor(private readonly deps: AppDeps) {}
 
@@ -28,6 +31,22 @@ class ChangeFeed {
     return () => this.listeners.delete(fn);
   }
 
+  /**
+   * Resolves once LISTEN is in place (or after `timeoutMs`), so a stream can say "ready" only when
+   * a change committed from then on is sure to reach it.
+   */
+  whenListening(timeoutMs = 3_000): Promise<void> {
+    if (this.listening || this.stopped) return Promise.resolve();
+    return new Promise((resolve) => {
+      const timer = setTimeout(done, timeoutMs);
+      function done() {
+        clearTimeout(timer);
+        resolve();
+      }
+      this.waiters.push(done);
+    });
+  }
+
   private async connect() {
     this.retry = null;
     if (this.stopped) return;
@@ -35,10 +54,10 @@ class ChangeFeed {
     const fail = (err?: Error) => {
       if (this.client !== client) return;
       this.client = null;
+      this.listening = false;
+      this.lostLink = true;
       client.end().catch(() => undefined);
       if (err) this.deps.logger.warn({ err: err.message }, 'change feed lost its connection; reconnecting');
-      // Tell listeners to refetch: they may have missed changes while the link was down.
-      this.emit({ tenantId: '*', kind: 'resync' });
       if (!this.stopped) this.retry = setTimeout(() => void this.connect(), 1_000);
     };
     client.on('error', fail);
@@ -56,6 +75,16 @@ class ChangeFeed {
       await client.query('LISTEN holdpoint_changes');
     } catch (err) {
       fail(err as Error);
+      return;
+    }
+    if (this.client !== client) return;
+    this.listening = true;
+    for (const done of this.waiters.splice(0)) done();
+    // Changes committed while the link was down were never heard: tell listeners to refetch, now
+    // that anything later will reach them.
+    if (this.lostLink) {
+      this.lostLink = false;
+      this.emit({ tenantId: '*', kind: 'resync' });
     }
   }
 
@@ -65,6 +94,7 @@ class ChangeFeed {
 
   async close() {
     this.stopped = true;
+    for (const done of this.waiters.splice(0)) done();
     if (this.retry) clearTimeout(this.retry);
     const c = this.client;
     this.client = null;

@@ -1,6 +1,13 @@
 import type { Router } from 'express';
 import type { AppDeps } from '../deps';
 import { createAdminRouter } from './admin/admin.routes';
+import { createCalcRouter } from './calc/calc.routes';
+import { createPermitsRouter } from './permits/permits.routes';
+import { createAuditRouter } from './audit/audit.routes';
+import { createIsolationsRouter } from './isolations/isolations.routes';
+import { createAssetsRouter } from './assets/assets.routes';
+import { createAttachmentsRouter } from './attachments/attachments.routes';
+import { createGasTestsRouter } from './gas-tests/gas-tests.routes';
 
 /** Every feature's router, mounted under /api after sign-in checks. Add one line per feature. */
-export const featureRouters: Array<(deps: AppDeps) => Router> = [createAdminRouter];
+export const featureRouters: Array<(deps: AppDeps) => Router> = [createAdminRouter, createCalcRouter, createPermitsRouter, createIsolationsRouter, createAuditRouter, createAssetsRouter, createAttachmentsRouter, createGasTestsRouter];

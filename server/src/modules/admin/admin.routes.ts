@@ -8,6 +8,7 @@
 //   POST   /api/qualifications                tenant admin
 //   POST   /api/invitations                   tenant admin
 import { Router } from 'express';
+import { z } from 'zod';
 import { subject } from '@casl/ability';
 import { inviteInputSchema, membershipRoleInputSchema, organisationInputSchema, qualificationInputSchema, usersQuerySchema } from '@shared/schemas/auth.schema';
 import { pageQuerySchema, uuidSchema } from '@shared/schemas/common.schema';
@@ -19,6 +20,19 @@ import { AppError } from '../../errors/app-error';
 import { invite } from '../auth/auth.service';
 import * as admin from './admin.service';
 import { withTenant } from '../../db/sequelize';
+
+const idParams = z.object({ id: uuidSchema });
+
+// Checks the shared schema does not make yet (they belong there): dates PostgreSQL can store and that
+// make sense for a certificate, and a reference free of control characters.
+// eslint-disable-next-line no-control-regex -- refusing control characters is the point
+const controlCharacters = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/;
+const qualificationBodySchema = qualificationInputSchema.superRefine((q, ctx) => {
+  for (const field of ['issuedOn', 'expiresOn'] as const) {
+    if (q[field] < '1900-01-01' || q[field] > '2199-12-31') ctx.addIssue({ code: 'custom', path: [field], message: 'Use a date between 1900 and 2199.' });
+  }
+  if (q.reference && controlCharacters.test(q.reference)) ctx.addIssue({ code: 'custom', path: ['reference'], message: 'Reference contains characters that are not allowed.' });
+});
 
 export function createAdminRouter(deps: AppDeps) {
   const router = Router();
@@ -51,7 +65,7 @@ export function createAdminRouter(deps: AppDeps) {
 
   router.patch('/memberships/:id', async (req, res) => {
     const { actor, ability } = actorOf(req);
-    const id = parse(uuidSchema, req.params.id, 'path');
+    const { id } = parse(idParams, req.params, 'path');
     const record = authorizeRecord(ability, 'update', 'Membership', await withTenant(sequelize, actor.tenantId, () => admin.findMembership(sequelize, actor.tenantId, id)), 'membership');
     const { role } = parse(membershipRoleInputSchema, req.body, 'membership');
     if (record.userId === actor.userId && record.role === 'tenant_admin' && role !== 'tenant_admin') {
@@ -64,7 +78,7 @@ export function createAdminRouter(deps: AppDeps) {
 
   router.delete('/memberships/:id', async (req, res) => {
     const { actor, ability } = actorOf(req);
-    const id = parse(uuidSchema, req.params.id, 'path');
+    const { id } = parse(idParams, req.params, 'path');
     const record = authorizeRecord(ability, 'delete', 'Membership', await withTenant(sequelize, actor.tenantId, () => admin.findMembership(sequelize, actor.tenantId, id)), 'membership');
     if (record.userId === actor.userId) throw AppError.unprocessable('You cannot remove your own membership.');
     await withTenant(sequelize, actor.tenantId, () => admin.removeMembership(sequelize, actor.tenantId, id));
@@ -82,7 +96,7 @@ export function createAdminRouter(deps: AppDeps) {
   router.post('/qualifications', async (req, res) => {
     const { actor, ability } = actorOf(req);
     authorizeType(ability, 'create', 'Qualification', { tenantId: actor.tenantId }, 'qualifications');
-    const input = parse(qualificationInputSchema, req.body, 'qualification');
+    const input = parse(qualificationBodySchema, req.body, 'qualification');
     res.status(201).json(await withTenant(sequelize, actor.tenantId, () => admin.createQualification(sequelize, actor.tenantId, input)));
   });
 

@@ -38,7 +38,8 @@ interface StoredEvent {
   hash: string;
 }
 
-function eventHash(prevHash: string, e: Omit<StoredEvent, 'hash' | 'prev_hash'>): string {
+/** Exported so a bulk import (the scale dataset) chains its events exactly as appendAudit does. */
+export function eventHash(prevHash: string, e: Omit<StoredEvent, 'hash' | 'prev_hash'>): string {
   const body = canonicalJson([
     e.tenant_id, e.seq, e.entity_type, e.entity_id, e.permit_id, e.action, e.from_state, e.to_state,
     e.actor_user_id, e.actor_name, e.actor_role, e.membership_id, e.reason, e.ip, e.data, new Date(e.occurred_at).toISOString(),
@@ -93,17 +94,30 @@ export interface ChainReport {
   problem?: string;
 }
 
-/** Recomputes every hash of the tenant's chain, in pages, and reports the first break. */
+/**
+ * Recomputes every hash of the tenant's chain, in pages, and reports the first break. The head and the
+ * last sequence are read first, in one statement (one snapshot): events appended while the check runs
+ * commit together with their head and are left for the next check instead of being reported missing,
+ * while an event sitting beyond the head in that snapshot was not written by appendAudit.
+ */
 export async function verifyChain(sequelize: Sequelize, tenantId: string, pageSize = 5_000): Promise<ChainReport> {
+  const [start] = await sequelize.query<{ seq: number | null; last_hash: string | null; last_seq: number | null }>(
+    `SELECT h.seq, h.last_hash, (SELECT max(e.seq) FROM audit_events e WHERE e.tenant_id = :tenantId) AS last_seq
+     FROM (SELECT 1) one LEFT JOIN audit_chain_heads h ON h.tenant_id = :tenantId`,
+    { replacements: { tenantId }, type: QueryTypes.SELECT },
+  );
+  const headSeq = start.seq === null ? 0 : Number(start.seq);
+  if (start.last_seq !== null && Number(start.last_seq) > headSeq)
+    return { ok: false, events: 0, brokenAtSeq: headSeq + 1, problem: start.seq === null ? 'the chain head is missing' : 'an event lies beyond the end of the chain' };
   let prev = '';
   let expectedSeq = 1;
   let count = 0;
-  for (;;) {
+  while (expectedSeq <= headSeq) {
     const rows = await sequelize.query<StoredEvent>(
       `SELECT seq, tenant_id, entity_type, entity_id, permit_id, action, from_state, to_state, actor_user_id, actor_name, actor_role,
               membership_id, reason, ip, data, occurred_at, prev_hash, hash
-       FROM audit_events WHERE tenant_id = :tenantId AND seq >= :from ORDER BY seq LIMIT :limit`,
-      { replacements: { tenantId, from: expectedSeq, limit: pageSize }, type: QueryTypes.SELECT },
+       FROM audit_events WHERE tenant_id = :tenantId AND seq >= :from AND seq <= :to ORDER BY seq LIMIT :limit`,
+      { replacements: { tenantId, from: expectedSeq, to: headSeq, limit: pageSize }, type: QueryTypes.SELECT },
     );
     for (const row of rows) {
       const seq = Number(row.seq);
@@ -117,10 +131,6 @@ export async function verifyChain(sequelize: Sequelize, tenantId: string, pageSi
     }
     if (rows.length < pageSize) break;
   }
-  const [head] = await sequelize.query<{ seq: number; last_hash: string }>(`SELECT seq, last_hash FROM audit_chain_heads WHERE tenant_id = :tenantId`, {
-    replacements: { tenantId },
-    type: QueryTypes.SELECT,
-  });
-  if (head && (Number(head.seq) !== count || head.last_hash !== prev)) return { ok: false, events: count, brokenAtSeq: count + 1, problem: 'events at the end of the chain are missing' };
+  if (count !== headSeq || (start.last_hash ?? '') !== prev) return { ok: false, events: count, brokenAtSeq: count + 1, problem: 'events at the end of the chain are missing' };
   return { ok: true, events: count };
 }

@@ -5,9 +5,11 @@ import { defineRulesFor } from '@shared/abilities/define-ability';
 import type { AcceptInvitationInput, InviteInput, MeResponse, ResetPasswordInput, SignInInput } from '@shared/schemas/auth.schema';
 import type { AppDeps } from '../../deps';
 import { AppError } from '../../errors/app-error';
+import { withTenant } from '../../db/sequelize';
 import { enqueueMail } from '../../lib/mailer';
 import { hashPassword, verifyPassword } from '../../lib/passwords';
 import { hashToken, newToken } from '../../lib/tokens';
+import { csrfNonceOf, newCsrfNonce } from '../../middleware/csrf';
 import { findUserByEmail, loadActor, membershipsOf, tenantSummary } from './auth.repository';
 
 const INVITE_HOURS = 72;
@@ -42,6 +44,8 @@ export async function signIn(deps: AppDeps, req: Request, input: SignInInput): P
     throw new AppError('unauthenticated', SIGN_IN_FAILED);
   }
   const memberships = await membershipsOf(deps.sequelize, user.id);
+  // Whoever held the session this browser carried may know its CSRF nonce: then the new session gets a fresh one.
+  const carriedSession = Boolean(req.session.userId);
   // A new session id at sign-in stops session fixation.
   await regenerate(req);
   const now = deps.clock.now().getTime();
@@ -49,6 +53,9 @@ export async function signIn(deps: AppDeps, req: Request, input: SignInInput): P
   req.session.tenantId = memberships[0]?.tenantId ?? null;
   req.session.createdAt = now;
   req.session.lastSeenAt = now;
+  // From now on the session accepts only tokens with this nonce: the one this sign-in used (the page
+  // keeps it), or a fresh one the page fetches again from /api/auth/csrf after its next csrf_failed.
+  req.session.csrfNonce = (carriedSession ? undefined : csrfNonceOf(req.get('x-csrf-token'))) ?? newCsrfNonce();
   await save(req);
   req.log?.info({ event: 'sign_in', userId: user.id }, 'signed in');
   return buildMe(deps, user.id, req.session.tenantId ?? null);
@@ -69,14 +76,15 @@ export async function signOut(req: Request) {
 }
 
 export async function invite(deps: AppDeps, tenantId: string, invitedBy: string, input: InviteInput) {
-  const orgs = await deps.sequelize.query<{ name: string }>(`SELECT name FROM organisations WHERE id = :id AND tenant_id = :tenantId`, {
-    replacements: { id: input.organisationId, tenantId },
-    type: QueryTypes.SELECT,
-  });
-  if (!orgs[0]) throw AppError.validation('Choose an organisation of this tenant.', [{ path: 'organisationId', message: 'Unknown organisation.' }]);
-  const token = newToken();
-  const tenant = await tenantSummary(deps.sequelize, tenantId);
-  await deps.sequelize.transaction(async (t) => {
+  // Organisations, the tenant and the outbox row are tenant data: one withTenant transaction for all of it.
+  await withTenant(deps.sequelize, tenantId, async (t) => {
+    const orgs = await deps.sequelize.query<{ name: string }>(`SELECT name FROM organisations WHERE id = :id AND tenant_id = :tenantId`, {
+      replacements: { id: input.organisationId, tenantId },
+      type: QueryTypes.SELECT,
+    });
+    if (!orgs[0]) throw AppError.validation('Choose an organisation of this tenant.', [{ path: 'organisationId', message: 'Unknown organisation.' }]);
+    const token = newToken();
+    const tenant = await tenantSummary(deps.sequelize, tenantId);
     await deps.sequelize.query(
       `INSERT INTO auth_tokens (kind, token_hash, email, tenant_id, organisation_id, role, created_by, expires_at)
        VALUES ('invite', :hash, :email, :tenantId, :organisationId, :role, :by, :expires)`,

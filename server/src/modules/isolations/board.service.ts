@@ -28,7 +28,8 @@ export interface BoardItem {
   remoteAckAt: string | null;
   controlRoomAckAppliedAt: string | null;
   plugBuiltAt: string | null;
-  permit: { id: string; number: string; state: string };
+  /** The permit this step belongs to, with its work range (for the envelope on the strip). */
+  permit: { id: string; number: string; state: string; fromPosition: number; toPosition: number };
   permits: { id: string; number: string; state: string }[];
   nextGasTestDue: string | null;
 }
@@ -36,18 +37,22 @@ export interface BoardItem {
 /**
  * Every isolation applied right now in the tenant, one row per applied step, ordered by pipeline and
  * position. `permits` lists every permit holding the same point (group lockout). One query.
+ * A live permit that has never had a passing gas test is due one now (the clock's now, so tests can move it).
  */
-export async function boardItems(sequelize: Sequelize, tenantId: string, q: BoardQuery): Promise<BoardItem[]> {
+export async function boardItems(sequelize: Sequelize, tenantId: string, q: BoardQuery, now: Date): Promise<BoardItem[]> {
   return sequelize.query<BoardItem>(
     `WITH live AS (
-       SELECT s.*, p.number, p.state AS permit_state, p.pipeline_id, p.gas_test_interval_minutes
+       SELECT s.*, p.number, p.state AS permit_state, p.pipeline_id, p.gas_test_interval_minutes, p.from_position::float8 AS work_from, p.to_position::float8 AS work_to
        FROM isolation_steps s JOIN permits p ON p.tenant_id = s.tenant_id AND p.id = s.permit_id
        WHERE s.tenant_id = :tenantId AND s.status IN ('applied','verified')
          AND (CAST(:pipelineId AS uuid) IS NULL OR p.pipeline_id = CAST(:pipelineId AS uuid))
          AND (CAST(:permitState AS text) IS NULL OR p.state = CAST(:permitState AS text))
      ), holders AS (
-       SELECT point_id, jsonb_agg(DISTINCT jsonb_build_object('id', permit_id, 'number', number, 'state', permit_state)) AS permits
-       FROM live WHERE point_id IS NOT NULL GROUP BY point_id
+       -- Every permit holding the point, whatever the filters: a filtered board must not hide a group lockout.
+       SELECT s.point_id, jsonb_agg(DISTINCT jsonb_build_object('id', p.id, 'number', p.number, 'state', p.state)) AS permits
+       FROM isolation_steps s JOIN permits p ON p.tenant_id = s.tenant_id AND p.id = s.permit_id
+       WHERE s.tenant_id = :tenantId AND s.status IN ('applied','verified') AND s.point_id IN (SELECT point_id FROM live WHERE point_id IS NOT NULL)
+       GROUP BY s.point_id
      ), gas AS (
        SELECT g.permit_id, max(g.tested_at) AS last_pass FROM gas_tests g
        WHERE g.tenant_id = :tenantId AND g.verdict = 'pass' AND g.permit_id IN (SELECT DISTINCT permit_id FROM live) GROUP BY g.permit_id
@@ -57,9 +62,9 @@ export async function boardItems(sequelize: Sequelize, tenantId: string, q: Boar
             lk.number AS "lockNumber", tg.number AS "tagNumber", l.applied_at AS "appliedAt", ua.name AS "appliedByName",
             l.verified_at AS "verifiedAt", uv.name AS "verifiedByName", l.remotely_operable AS "remotelyOperable", l.remote_ack_at AS "remoteAckAt",
             l.control_room_ack_applied_at AS "controlRoomAckAppliedAt", l.plug_as_built->>'builtAt' AS "plugBuiltAt",
-            jsonb_build_object('id', l.permit_id, 'number', l.number, 'state', l.permit_state) AS permit,
+            jsonb_build_object('id', l.permit_id, 'number', l.number, 'state', l.permit_state, 'fromPosition', l.work_from, 'toPosition', l.work_to) AS permit,
             coalesce(h.permits, jsonb_build_array(jsonb_build_object('id', l.permit_id, 'number', l.number, 'state', l.permit_state))) AS permits,
-            CASE WHEN l.permit_state = 'live' THEN coalesce(gas.last_pass + make_interval(mins => l.gas_test_interval_minutes), now()) END AS "nextGasTestDue"
+            CASE WHEN l.permit_state = 'live' THEN coalesce(gas.last_pass + make_interval(mins => l.gas_test_interval_minutes), CAST(:now AS timestamptz)) END AS "nextGasTestDue"
      FROM live l
      JOIN pipelines pl ON pl.tenant_id = l.tenant_id AND pl.id = l.pipeline_id
      LEFT JOIN isolation_points ip ON ip.tenant_id = l.tenant_id AND ip.id = l.point_id
@@ -70,6 +75,6 @@ export async function boardItems(sequelize: Sequelize, tenantId: string, q: Boar
      LEFT JOIN holders h ON h.point_id = l.point_id
      LEFT JOIN gas ON gas.permit_id = l.permit_id
      ORDER BY pl.name, position, l.number`,
-    { replacements: { tenantId, pipelineId: q.pipelineId ?? null, permitState: q.permitState ?? null }, type: QueryTypes.SELECT },
+    { replacements: { tenantId, pipelineId: q.pipelineId ?? null, permitState: q.permitState ?? null, now }, type: QueryTypes.SELECT },
   );
 }

@@ -32,9 +32,20 @@ async function requireQualification(deps: AppDeps, caller: CallerContext, kind: 
     throw AppError.unprocessable(`You need an in-date ${kind.replace(/_/g, ' ')} qualification to ${what}.`);
 }
 
+/** The CASL action behind each audited step event, so the audit names the role the person acted in. */
+const actionOfEvent: Record<string, StepAction> = {
+  isolation_applied: 'apply',
+  isolation_verified: 'verify',
+  isolation_removed: 'remove',
+  acknowledged_remote_inhibited: 'acknowledge',
+  acknowledged_applied: 'acknowledge',
+  acknowledged_removed: 'acknowledge',
+  acknowledged_plug_warnings: 'approve',
+};
+
 async function audit(deps: AppDeps, caller: CallerContext, permit: PermitRow, step: StepRow, action: string, data: Record<string, unknown> = {}, reason?: string) {
   await appendAudit(deps.sequelize, {
-    tenantId: permit.tenantId, entityType: 'isolation_step', entityId: step.id, permitId: permit.id, action, actor: auditActor(caller, action.split('_')[1] ?? action),
+    tenantId: permit.tenantId, entityType: 'isolation_step', entityId: step.id, permitId: permit.id, action, actor: auditActor(caller, actionOfEvent[action] ?? action),
     ip: caller.ip, reason, data: { label: step.label, position: step.position, kind: step.kind, ...data }, occurredAt: deps.clock.now(),
   });
   await notifyChange(deps.sequelize, { tenantId: permit.tenantId, kind: 'isolation', permitId: permit.id, stepId: step.id, action });
@@ -185,6 +196,9 @@ export async function removeStep(deps: AppDeps, caller: CallerContext, permitId:
     if (later.length && !input.outOfOrderReason)
       throw AppError.unprocessable(`Remove in reverse order of application: first ${later.map((l) => l.label).join(', ')}. Give a reason to do otherwise.`);
     if (step.pointId) {
+      // Serialise removals on one point: two permits taking their locks off at once must not both
+      // count the other's lock as the one that stays.
+      await deps.sequelize.query(`SELECT 1 FROM isolation_points WHERE tenant_id = :tenantId AND id = :pointId FOR UPDATE`, { replacements: { tenantId, pointId: step.pointId } });
       const others = await deps.sequelize.query<{ n: number }>(
         `SELECT count(*)::int AS n FROM isolation_steps WHERE tenant_id = :tenantId AND point_id = :pointId AND id <> :stepId AND status IN ('applied','verified')`,
         { replacements: { tenantId, pointId: step.pointId, stepId }, type: QueryTypes.SELECT },

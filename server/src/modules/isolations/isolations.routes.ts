@@ -59,26 +59,32 @@ export function createIsolationsRouter(deps: AppDeps) {
     const { actor, ability } = actorOf(req);
     authorizeType(ability, 'read', 'Board', { tenantId: actor.tenantId }, 'the isolation board');
     const q = parse(boardQuerySchema, req.query, 'query');
-    const items = await withTenant(deps.sequelize, actor.tenantId, () => boardItems(deps.sequelize, actor.tenantId, q));
-    res.json({ items, total: items.length, generatedAt: deps.clock.now().toISOString() });
+    const now = deps.clock.now();
+    const items = await withTenant(deps.sequelize, actor.tenantId, () => boardItems(deps.sequelize, actor.tenantId, q, now));
+    res.json({ items, total: items.length, generatedAt: now.toISOString() });
   });
 
-  router.get('/board/stream', (req, res) => {
+  router.get('/board/stream', async (req, res) => {
     const { actor, ability } = actorOf(req);
     authorizeType(ability, 'read', 'Board', { tenantId: actor.tenantId }, 'the isolation board');
-    res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
-    res.write(`retry: 2000\nevent: ready\ndata: {}\n\n`);
-    const unsubscribe = changeFeed(deps).subscribe((change) => {
+    const feed = changeFeed(deps);
+    const unsubscribe = feed.subscribe((change) => {
       // Only this tenant's changes; "resync" goes to everyone after the feed reconnects.
       if (change.tenantId !== actor.tenantId && change.tenantId !== '*') return;
       const { tenantId: _t, ...rest } = change;
       res.write(`event: change\ndata: ${JSON.stringify(rest)}\n\n`);
     });
     const heartbeat = setInterval(() => res.write(`: keep-alive\n\n`), 25_000);
-    req.on('close', () => {
+    // The response's close, not the request's: a request without a body can report "close" as soon as it is read.
+    res.on('close', () => {
       clearInterval(heartbeat);
       unsubscribe();
     });
+    res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
+    res.flushHeaders();
+    // "ready" only once LISTEN is in place, so a client that refetches on "ready" misses nothing after it.
+    await feed.whenListening();
+    if (!res.writableEnded && !res.destroyed) res.write(`retry: 2000\nevent: ready\ndata: {}\n\n`);
   });
 
   return router;

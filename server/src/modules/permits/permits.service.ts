@@ -43,7 +43,8 @@ export function auditActor(caller: CallerContext, action: string) {
 }
 
 export async function listPermitsFor(deps: AppDeps, caller: CallerContext, q: PermitsQuery) {
-  authorizeType(caller.ability, 'read', 'Permit', { tenantId: caller.actor.tenantId }, 'permits');
+  // Any read rule will do here (a contractor's is limited to their organisation's permits); the scope below picks the rows.
+  if (!caller.ability.can('read', 'Permit')) throw AppError.forbidden('Your role does not allow you to read permits.');
   const scope = scopeToSql(caller.ability, 'read', 'Permit', permitScopeColumns);
   return withTenant(deps.sequelize, caller.actor.tenantId, () => listPermits(deps.sequelize, caller.actor.tenantId, q, scope));
 }
@@ -249,6 +250,11 @@ export async function applyTransition(
       break;
     case 'acknowledge_return':
       sets.push('control_room_ack_at = :now', 'control_room_ack_by = :userId');
+      break;
+    case 'start_work':
+    case 'resume':
+      // Hot work may start again: an earlier "hot work stopped" no longer dates the fire watch.
+      sets.push('hot_work_ended_at = NULL');
       break;
     case 'expire':
       sets.push('expired_flag = true', `state_before_expiry = CASE WHEN state = 'live' THEN NULL ELSE state END`);

@@ -42,7 +42,7 @@ function AddQualification() {
           }),
         )}
       >
-        <SelectField label="Person" {...form.register('userId')} error={form.formState.errors.userId?.message}>
+        <SelectField label="Person" {...form.register('userId')} error={form.formState.errors.userId && !form.getValues('userId') ? 'Choose a person.' : form.formState.errors.userId?.message}>
           <option value="">Choose…</option>
           {uniquePeople.map((p) => (
             <option key={p.userId} value={p.userId}>

@@ -36,7 +36,7 @@ function InviteForm() {
       <h2 className="mb-3 text-lg font-semibold">Invite someone</h2>
       <form noValidate onSubmit={submit} className="grid gap-3 md:grid-cols-4 md:items-end">
         <TextField label="E-mail" type="email" {...form.register('email')} error={form.formState.errors.email?.message} />
-        <SelectField label="Organisation" {...form.register('organisationId')} error={form.formState.errors.organisationId?.message}>
+        <SelectField label="Organisation" {...form.register('organisationId')} error={form.formState.errors.organisationId && !form.getValues('organisationId') ? 'Choose an organisation.' : form.formState.errors.organisationId?.message}>
           <option value="">Choose…</option>
           {orgs.data?.items.map((o) => (
             <option key={o.id} value={o.id}>
@@ -129,7 +129,7 @@ export default function UsersPage() {
         </Can>
         <div className="grid gap-3 md:grid-cols-3">
           <TextField label="Search name or e-mail" type="search" defaultValue={q.q} onChange={(e) => set({ q: e.target.value || undefined, page: undefined })} />
-          <SelectField label="Role" value={q.role ?? ''} onChange={(e) => set({ role: e.target.value || undefined, page: undefined })}>
+          <SelectField label="Show role" value={q.role ?? ''} onChange={(e) => set({ role: e.target.value || undefined, page: undefined })}>
             <option value="">All roles</option>
             {roles.map((r) => (
               <option key={r} value={r}>

@@ -1,0 +1,14 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import type { GasTestData, GasTestResult } from '@shared/schemas/gas-tests.schema';
+import { api } from '@client/lib/api-client';
+import { gasKeys, permitsPrefix } from './keys';
+
+export const recordGasTest = (permitId: string, input: GasTestData) => api.post<GasTestResult>(`/api/permits/${encodeURIComponent(permitId)}/gas-tests`, input);
+
+export function useRecordGasTest(permitId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: GasTestData) => recordGasTest(permitId, input),
+    onSuccess: () => Promise.all([qc.invalidateQueries({ queryKey: gasKeys.permit(permitId) }), qc.invalidateQueries({ queryKey: permitsPrefix })]),
+  });
+}

@@ -1,0 +1,141 @@
+import { useState } from 'react';
+import { useForm, useWatch } from 'react-hook-form';
+import { zodResolver } from '@hookform/resolvers/zod';
+import {
+  checkInputSchema, checkKindLabels, fireWatchObservationLabels, fireWatchObservations, plugFaceLabels, plugFaces, pressureUnits,
+  type CheckData, type CheckInput, type CheckKind,
+} from '@shared/schemas/timed-checks.schema';
+import { ApiError } from '@client/lib/api-client';
+import { Button } from '@client/components/ui/button';
+import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
+import { useToast } from '@client/components/ui/toast';
+import { usePlanSteps, useRecordCheck } from '../api/checks';
+import { fromWall, toWall } from '../lib/site-time';
+
+const yesNo = { setValueAs: (v: string) => (v === 'yes' ? true : v === 'no' ? false : undefined) };
+
+function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckKind; timeZone: string }) {
+  const steps = usePlanSteps(permitId);
+  const record = useRecordCheck(permitId);
+  const toast = useToast();
+  const [wall, setWall] = useState(() => toWall(new Date(), timeZone));
+  const form = useForm<CheckInput, unknown, CheckData>({
+    resolver: zodResolver(checkInputSchema),
+    defaultValues: { kind, checkedAt: fromWall(toWall(new Date(), timeZone), timeZone), actionTaken: '', notes: '' } as CheckInput,
+  });
+  const errors = form.formState.errors as Record<string, { message?: string } | undefined>;
+  const values = useWatch({ control: form.control }) as Record<string, unknown>;
+  const problem = (kind === 'vent' && (values.vapourAwayFromWork === false || values.pressureBuilding === true)) || (kind === 'plug' && values.face && values.face !== 'intact') || (kind === 'fire_watch' && values.observation === 'hot_spot');
+  const ofKind = (steps.data ?? []).filter((s) => s.kind === kind);
+
+  const submit = form.handleSubmit((v) =>
+    record.mutate({ ...v, isolationStepId: v.isolationStepId || undefined, actionTaken: v.actionTaken || undefined, notes: v.notes || undefined } as CheckData, {
+      onSuccess: (row) => {
+        toast(row.ok ? 'success' : 'error', row.ok ? `${checkKindLabels[kind]} recorded.` : `${checkKindLabels[kind]} recorded: problem reported to the lead and authoriser.`);
+        const w = toWall(new Date(), timeZone);
+        setWall(w);
+        form.reset({ kind, checkedAt: fromWall(w, timeZone), actionTaken: '', notes: '' } as CheckInput);
+      },
+      onError: (err) => {
+        if (err instanceof ApiError && err.details.length) err.details.forEach((d) => form.setError(d.path as never, { message: d.message }));
+        else toast('error', err.message);
+      },
+    }),
+  );
+
+  return (
+    <form noValidate onSubmit={submit} className="flex flex-col gap-3" aria-label={`Record a ${checkKindLabels[kind].toLowerCase()}`}>
+      <div className="grid gap-3 sm:grid-cols-2">
+        <TextField
+          label="Checked at (site time)"
+          type="datetime-local"
+          value={wall}
+          onChange={(e) => {
+            setWall(e.target.value);
+            form.setValue('checkedAt', fromWall(e.target.value, timeZone));
+          }}
+          error={errors.checkedAt?.message}
+        />
+        {kind !== 'fire_watch' ? (
+          <SelectField label={kind === 'vent' ? 'Which vent' : 'Which plug'} {...form.register('isolationStepId')} error={errors.isolationStepId?.message}>
+            <option value="">All {kind === 'vent' ? 'vents' : 'plugs'} of this permit</option>
+            {ofKind.map((s) => (
+              <option key={s.id} value={s.id}>
+                {s.label}
+              </option>
+            ))}
+          </SelectField>
+        ) : null}
+        {kind === 'vent' ? (
+          <>
+            <SelectField label="Is vapour directed away from the work?" {...form.register('vapourAwayFromWork' as never, yesNo)} error={errors.vapourAwayFromWork?.message}>
+              <option value="">Choose…</option>
+              <option value="yes">Yes, away from the work</option>
+              <option value="no">No, toward the work</option>
+            </SelectField>
+            <SelectField label="Is pressure building behind the plug?" {...form.register('pressureBuilding' as never, yesNo)} error={errors.pressureBuilding?.message}>
+              <option value="">Choose…</option>
+              <option value="no">No</option>
+              <option value="yes">Yes, pressure is building</option>
+            </SelectField>
+            <TextField label="Pressure reading (optional)" inputMode="decimal" {...form.register('pressureReading' as never)} error={errors.pressureReading?.message} />
+            <SelectField label="Pressure unit" {...form.register('pressureUnit' as never, { setValueAs: (v: string) => v || undefined })} error={errors.pressureUnit?.message}>
+              <option value="">—</option>
+              {pressureUnits.map((u) => (
+                <option key={u} value={u}>
+                  {u}
+                </option>
+              ))}
+            </SelectField>
+          </>
+        ) : null}
+        {kind === 'plug' ? (
+          <SelectField label="Plug face" {...form.register('face' as never, { setValueAs: (v: string) => v || undefined })} error={errors.face?.message}>
+            <option value="">Choose…</option>
+            {plugFaces.map((f) => (
+              <option key={f} value={f}>
+                {plugFaceLabels[f]}
+              </option>
+            ))}
+          </SelectField>
+        ) : null}
+        {kind === 'fire_watch' ? (
+          <SelectField label="What the fire watch found" {...form.register('observation' as never, { setValueAs: (v: string) => v || undefined })} error={errors.observation?.message}>
+            <option value="">Choose…</option>
+            {fireWatchObservations.map((o) => (
+              <option key={o} value={o}>
+                {fireWatchObservationLabels[o]}
+              </option>
+            ))}
+          </SelectField>
+        ) : null}
+      </div>
+      <TextAreaField label={problem ? 'Action taken (required)' : 'Action taken (if any)'} {...form.register('actionTaken')} error={errors.actionTaken?.message} />
+      <TextAreaField label="Notes (optional)" {...form.register('notes')} error={errors.notes?.message} />
+      <div>
+        <Button type="submit" busy={record.isPending}>
+          Record {checkKindLabels[kind].toLowerCase()}
+        </Button>
+      </div>
+    </form>
+  );
+}
+
+/** Choose what was checked, then the form for that kind of check. */
+export function CheckForm({ permitId, kinds, timeZone }: { permitId: string; kinds: CheckKind[]; timeZone: string }) {
+  const [kind, setKind] = useState<CheckKind>(kinds[0]);
+  return (
+    <div className="flex flex-col gap-3">
+      <fieldset className="flex flex-wrap gap-2">
+        <legend className="mb-1 text-sm font-semibold">What was checked</legend>
+        {kinds.map((k) => (
+          <label key={k} className={`flex min-h-11 cursor-pointer items-center gap-2 rounded-md border px-3 ${kind === k ? 'border-brand bg-brand-soft' : 'border-line bg-surface'}`}>
+            <input type="radio" name="check-kind" className="size-5 accent-brand" checked={kind === k} onChange={() => setKind(k)} />
+            {checkKindLabels[k]}
+          </label>
+        ))}
+      </fieldset>
+      <KindForm key={kind} permitId={permitId} kind={kind} timeZone={timeZone} />
+    </div>
+  );
+}

@@ -1,0 +1,33 @@
+import { permitStateLabels } from '@shared/permit/states';
+import { SelectField } from '@client/components/ui/field';
+import { usePermitPipelines } from '@client/features/permits/api/get-pipelines';
+import { boardPermitStates, type BoardFilters as Filters } from '../api/get-board';
+
+/** Pipeline and permit-state filters; the values live in the URL so a board view can be shared or reloaded. */
+export function BoardFilters({ value, onChange }: { value: Filters; onChange: (next: Filters) => void }) {
+  const pipelines = usePermitPipelines();
+  return (
+    <form className="grid gap-3 sm:grid-cols-2 lg:max-w-2xl" aria-label="Filter the board" onSubmit={(e) => e.preventDefault()}>
+      <SelectField label="Pipeline" value={value.pipelineId ?? ''} onChange={(e) => onChange({ ...value, pipelineId: e.target.value || undefined })}>
+        <option value="">All pipelines</option>
+        {pipelines.data?.items.map((p) => (
+          <option key={p.id} value={p.id}>
+            {p.name}
+          </option>
+        ))}
+      </SelectField>
+      <SelectField
+        label="Permit state"
+        value={value.permitState ?? ''}
+        onChange={(e) => onChange({ ...value, permitState: (e.target.value || undefined) as Filters['permitState'] })}
+      >
+        <option value="">Any state</option>
+        {boardPermitStates.map((s) => (
+          <option key={s} value={s}>
+            {permitStateLabels[s]}
+          </option>
+        ))}
+      </SelectField>
+    </form>
+  );
+}

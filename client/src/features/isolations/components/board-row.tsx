@@ -1,0 +1,124 @@
+import type { ReactNode } from 'react';
+import { Link } from 'react-router-dom';
+import { subject } from '@casl/ability';
+import { conditionLabels, stepKindLabels } from '@shared/schemas/isolation.schema';
+import type { LocationUnit } from '@shared/schemas/assets.schema';
+import { formatPosition } from '@shared/assets/format';
+import { Can } from '@client/lib/ability';
+import { Button } from '@client/components/ui/button';
+import { PermitStateBadge } from '@client/features/permits/components/permit-state-badge';
+import { describeGasDue, formatSpan } from '@client/features/permits/lib/time-left';
+import { formatInZone } from '@client/features/permits/lib/zoned-time';
+import type { BoardItem } from '../api/get-board';
+
+interface Props {
+  item: BoardItem;
+  tenantId: string;
+  unit: LocationUnit;
+  timeZone: string;
+  now: Date;
+  onAcknowledge: (item: BoardItem) => void;
+}
+
+/** The board's columns, shown as a header on wide screens; each cell also carries its own label for narrow ones. */
+export const boardColumns = ['Point', 'Condition', 'Lock / tag', 'Permits holding it', 'Applied', 'Gas test', 'Control room'] as const;
+export const boardGrid = 'xl:grid-cols-[minmax(9rem,1.2fr)_minmax(8rem,1fr)_minmax(6rem,0.7fr)_minmax(9rem,1.2fr)_minmax(9rem,1.1fr)_minmax(8rem,1fr)_minmax(9rem,1fr)]';
+
+function Cell({ label, children, testId }: { label: string; children: ReactNode; testId?: string }) {
+  return (
+    <div className="min-w-0 text-sm break-words" data-testid={testId}>
+      <span className="block text-xs font-semibold text-ink-soft xl:sr-only">{label}</span>
+      {children}
+    </div>
+  );
+}
+
+const ago = (now: Date, iso: string) => formatSpan(now.getTime() - new Date(iso).getTime());
+
+/** One isolation in place: the point, its lock, the permits relying on it, how long it has been on, what is due. */
+export function BoardRow({ item, tenantId, unit, timeZone, now, onAcknowledge }: Props) {
+  const unacknowledged = !item.controlRoomAckAppliedAt;
+  const gas = item.nextGasTestDue ? describeGasDue(now, item.nextGasTestDue) : null;
+  return (
+    <li
+      data-testid="board-row"
+      data-label={item.label}
+      data-permit={item.permit.number}
+      data-unacknowledged={unacknowledged ? 'true' : undefined}
+      className={`grid grid-cols-1 gap-x-4 gap-y-2 border-t border-line px-3 py-3 [contain-intrinsic-size:auto_10rem] [content-visibility:auto] sm:grid-cols-2 ${boardGrid} ${
+        unacknowledged ? 'border-l-8 border-l-caution bg-caution-soft' : 'bg-surface'
+      }`}
+    >
+      <Cell label="Point">
+        <span className="block font-bold break-all text-brand-strong">{item.label}</span>
+        <span className="block">
+          {stepKindLabels[item.kind]} · {formatPosition(item.position, unit)}
+        </span>
+        {item.remotelyOperable ? (
+          item.remoteAckAt ? (
+            <span className="block text-ink-soft">Remote operation inhibited</span>
+          ) : (
+            <span className="block font-semibold text-danger">Remote operation not yet inhibited</span>
+          )
+        ) : null}
+      </Cell>
+      <Cell label="Condition">
+        <span className="block">{conditionLabels[item.condition]}</span>
+        {item.verifiedAt ? (
+          <span className="block text-ink-soft" title={formatInZone(item.verifiedAt, timeZone)}>
+            Verified by {item.verifiedByName}
+          </span>
+        ) : (
+          <span className="block font-semibold">Not verified yet</span>
+        )}
+      </Cell>
+      <Cell label="Lock / tag" testId="board-lock">
+        {item.lockNumber || item.tagNumber ? `${item.lockNumber ?? '—'} / ${item.tagNumber ?? '—'}` : <span className="text-ink-soft">None</span>}
+      </Cell>
+      <Cell label="Permits holding it">
+        <ul className="flex flex-col gap-1">
+          {item.permits.map((p) => (
+            <li key={p.id} className="flex flex-wrap items-center gap-2">
+              <Link to={`/permits/${p.id}`} className="inline-flex min-h-11 items-center font-semibold whitespace-nowrap">
+                {p.number}
+              </Link>
+              <PermitStateBadge state={p.state} />
+            </li>
+          ))}
+        </ul>
+      </Cell>
+      <Cell label="Applied">
+        <span className="block" title={formatInZone(item.appliedAt, timeZone)}>
+          {ago(now, item.appliedAt)} ago
+        </span>
+        <span className="block text-ink-soft">by {item.appliedByName}</span>
+        {item.plugBuiltAt ? <span className="block">Plug built {ago(now, item.plugBuiltAt)} ago</span> : null}
+      </Cell>
+      <Cell label="Gas test" testId="board-gas">
+        {gas ? (
+          <span className={gas.overdue ? 'font-bold text-danger' : ''} title={formatInZone(item.nextGasTestDue, timeZone)} data-overdue={gas.overdue ? 'true' : undefined}>
+            {gas.overdue ? 'Gas test overdue' : 'Next gas test'} {gas.text.replace(/^overdue /, '')}
+          </span>
+        ) : (
+          <span className="text-ink-soft">No work under way</span>
+        )}
+      </Cell>
+      <Cell label="Control room">
+        {unacknowledged ? (
+          <div className="flex flex-col items-start gap-1">
+            <span className="font-semibold">Newly applied, not acknowledged</span>
+            <Can I="acknowledge" this={subject('IsolationStep', { tenantId })}>
+              <Button variant="secondary" aria-label={`Acknowledge ${item.label} on ${item.permit.number}`} onClick={() => onAcknowledge(item)}>
+                Acknowledge
+              </Button>
+            </Can>
+          </div>
+        ) : (
+          <span className="text-ink-soft" title={formatInZone(item.controlRoomAckAppliedAt, timeZone)}>
+            Acknowledged
+          </span>
+        )}
+      </Cell>
+    </li>
+  );
+}

@@ -1,0 +1,112 @@
+import { useState } from 'react';
+import { useForm } from 'react-hook-form';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { removeStepInputSchema, type RemoveStepInput } from '@shared/schemas/isolation.schema';
+import { ApiError } from '@client/lib/api-client';
+import { Button } from '@client/components/ui/button';
+import { TextAreaField } from '@client/components/ui/field';
+import { Notice } from '@client/components/ui/notice';
+import { useToast } from '@client/components/ui/toast';
+import { ModalDialog } from '@client/features/permits/components/modal-dialog';
+import type { IsolationStep } from '../api/get-isolation-plan';
+import { useStepAction } from '../api/step-mutations';
+import { appliedLater } from '../lib/step-rules';
+import { textOrUndefined } from '../lib/step-forms';
+import { placeServerErrors } from '../lib/server-errors';
+import { ConfirmBox } from './confirm-box';
+
+const fields = ['note', 'plugOutcome', 'outOfOrderReason'] as const;
+
+const removeFormSchema = (isPlug: boolean, needsReason: boolean) =>
+  removeStepInputSchema.superRefine((v, ctx) => {
+    if (isPlug && !v.plugOutcome) ctx.addIssue({ code: 'custom', path: ['plugOutcome'], message: 'Say whether the plug was removed or left to be displaced by product.' });
+    if (needsReason && !v.outOfOrderReason) ctx.addIssue({ code: 'custom', path: ['outOfOrderReason'], message: 'Give the reason for taking this one off out of order.' });
+  });
+
+export function RemoveDialog({ permitId, step, steps, onClose }: { permitId: string; step: IsolationStep; steps: IsolationStep[]; onClose: () => void }) {
+  const remove = useStepAction('remove');
+  const toast = useToast();
+  const isPlug = step.kind === 'plug';
+  const later = appliedLater(step, steps);
+  const [serverSaysOrder, setServerSaysOrder] = useState<string | null>(null);
+  const needsReason = later.length > 0 || serverSaysOrder !== null;
+  const [confirmed, setConfirmed] = useState(false);
+  const [problem, setProblem] = useState<string | null>(null);
+  const form = useForm<RemoveStepInput>({ resolver: zodResolver(removeFormSchema(isPlug, needsReason)), defaultValues: {} });
+  const { register, formState, handleSubmit, setError } = form;
+
+  const submit = handleSubmit((v) => {
+    setProblem(null);
+    remove.mutate(
+      { permitId, stepId: step.id, body: v },
+      {
+        onSuccess: (saved) => {
+          toast('success', `${saved.label} removed${saved.lockNumber ? `; lock ${saved.lockNumber} is back in the store` : ''}.`);
+          onClose();
+        },
+        onError: (err) => {
+          // Out of order: the server names what comes off first; ask for the reason beside its message.
+          if (err instanceof ApiError && err.status === 422 && /reverse order/.test(err.message)) {
+            setServerSaysOrder(err.message);
+            setError('outOfOrderReason', { message: 'Give the reason for taking this one off out of order.' });
+            return;
+          }
+          setProblem(placeServerErrors(err, setError, (p) => fields.find((f) => f === p) ?? null));
+        },
+      },
+    );
+  });
+
+  return (
+    <ModalDialog title={`Remove ${step.label}`} onClose={onClose} description={<p>Taking an isolation off is recorded and cannot be undone. Each device comes off in reverse order of application.</p>}>
+      <form noValidate onSubmit={submit} className="flex flex-col gap-3" data-testid="remove-form">
+        {problem ? (
+          <Notice tone="danger" role="alert" title="Not removed">
+            {problem}
+          </Notice>
+        ) : null}
+        {isPlug ? (
+          <fieldset className="flex flex-col gap-2" aria-describedby={formState.errors.plugOutcome ? 'plug-outcome-error' : undefined}>
+            <legend className="text-sm font-semibold">What happened to the plug</legend>
+            {(
+              [
+                ['removed', 'Removed from the pipe'],
+                ['displaced_by_product', 'Left in to be displaced by product'],
+              ] as const
+            ).map(([value, label], i) => (
+              <label key={value} className="flex min-h-11 items-center gap-3 text-base">
+                <input type="radio" value={value} className="size-5" {...register('plugOutcome')} data-autofocus={i === 0 ? true : undefined} />
+                {label}
+              </label>
+            ))}
+            {formState.errors.plugOutcome ? (
+              <p id="plug-outcome-error" role="alert" className="text-sm font-medium text-danger">
+                {formState.errors.plugOutcome.message}
+              </p>
+            ) : null}
+          </fieldset>
+        ) : null}
+        {needsReason ? (
+          <>
+            <Notice tone="caution" title="Out of order" role="status">
+              {serverSaysOrder ?? `Isolations come off in reverse order of application: first ${later.map((s) => s.label).join(', ')}.`}
+            </Notice>
+            <TextAreaField label="Reason for removing it now" {...register('outOfOrderReason', { setValueAs: textOrUndefined })} error={formState.errors.outOfOrderReason?.message} />
+          </>
+        ) : null}
+        <TextAreaField label="Note (optional)" {...register('note', { setValueAs: textOrUndefined })} error={formState.errors.note?.message} data-autofocus={isPlug ? undefined : true} />
+        <ConfirmBox checked={confirmed} onChange={setConfirmed}>
+          I have checked that people are clear and that those affected know {step.label} is coming off.
+        </ConfirmBox>
+        <div className="flex flex-wrap justify-end gap-2">
+          <Button type="button" variant="secondary" onClick={onClose}>
+            Cancel
+          </Button>
+          <Button type="submit" variant="danger" busy={remove.isPending} disabled={!confirmed}>
+            Remove isolation
+          </Button>
+        </div>
+      </form>
+    </ModalDialog>
+  );
+}

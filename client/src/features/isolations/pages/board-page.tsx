@@ -1,0 +1,100 @@
+import { useState } from 'react';
+import { useSearchParams } from 'react-router-dom';
+import { Button } from '@client/components/ui/button';
+import { Notice, SafetyCaution } from '@client/components/ui/notice';
+import { EmptyState, Loading, PageHeader } from '@client/components/ui/page';
+import { useMe } from '@client/features/auth/api/get-me';
+import { useNow } from '@client/features/permits/hooks/use-now';
+import { formatInZone } from '@client/features/permits/lib/zoned-time';
+import { boardPermitStates, useBoard, type BoardFilters as Filters, type BoardItem } from '../api/get-board';
+import { AcknowledgeDialog } from '../components/acknowledge-dialog';
+import { BoardFilters } from '../components/board-filters';
+import { LiveIndicator } from '../components/live-indicator';
+import { PipelineBoard } from '../components/pipeline-board';
+import { useBoardStream } from '../hooks/use-board-stream';
+
+function filtersFrom(params: URLSearchParams): Filters {
+  const state = params.get('permitState');
+  return {
+    pipelineId: params.get('pipelineId') || undefined,
+    permitState: boardPermitStates.find((s) => s === state),
+  };
+}
+
+/** Items arrive ordered by pipeline and position; keep that order inside each pipeline. */
+function byPipeline(items: BoardItem[]) {
+  const groups = new Map<string, { name: string; items: BoardItem[] }>();
+  for (const item of items) {
+    const g = groups.get(item.pipelineId) ?? { name: item.pipelineName, items: [] };
+    g.items.push(item);
+    groups.set(item.pipelineId, g);
+  }
+  return [...groups.entries()];
+}
+
+export default function BoardPage() {
+  const [params, setParams] = useSearchParams();
+  const filters = filtersFrom(params);
+  const board = useBoard(filters);
+  const status = useBoardStream();
+  const now = useNow(30_000);
+  const { data: me } = useMe();
+  const [acknowledging, setAcknowledging] = useState<BoardItem | null>(null);
+  const timeZone = me?.activeTenant?.timeZone ?? 'UTC';
+  const unit = me?.activeTenant?.locationUnit ?? 'mi';
+  const tenantId = me?.activeTenantId ?? '';
+
+  const setFilters = (next: Filters) => {
+    const p = new URLSearchParams();
+    if (next.pipelineId) p.set('pipelineId', next.pipelineId);
+    if (next.permitState) p.set('permitState', next.permitState);
+    setParams(p, { replace: true });
+  };
+
+  const items = board.data?.items ?? [];
+  const unacknowledged = items.filter((i) => !i.controlRoomAckAppliedAt).length;
+
+  return (
+    <>
+      <PageHeader
+        title="Live board"
+        subtitle="Every isolation in place now, by pipeline and position. Newly applied ones stand out until the control room acknowledges them."
+        actions={<LiveIndicator status={status} />}
+      />
+      <div className="flex min-w-0 flex-col gap-4">
+        <SafetyCaution>The board shows what has been recorded. Confirm with the crew on site before any valve is operated. </SafetyCaution>
+        <BoardFilters value={filters} onChange={setFilters} />
+        {board.data ? (
+          <p className="text-sm text-ink-soft" aria-live="polite" data-testid="board-summary">
+            {board.data.total} isolation{board.data.total === 1 ? '' : 's'} in place
+            {unacknowledged ? `, ${unacknowledged} not yet acknowledged` : ''} · as of {formatInZone(board.data.generatedAt, timeZone)}
+          </p>
+        ) : null}
+        {board.isPending ? (
+          <Loading label="Loading the board…" />
+        ) : board.isError ? (
+          <Notice tone="danger" role="alert" title="The board could not be loaded.">
+            <p>{board.error.message}</p>
+            <Button variant="secondary" onClick={() => void board.refetch()}>
+              Try again
+            </Button>
+          </Notice>
+        ) : !items.length ? (
+          <EmptyState title="No isolations in place.">{filters.pipelineId || filters.permitState ? 'None match these filters.' : 'Isolations appear here as soon as they are applied.'}</EmptyState>
+        ) : (
+          byPipeline(items).map(([pipelineId, g]) => (
+            <PipelineBoard key={pipelineId} pipelineId={pipelineId} pipelineName={g.name} items={g.items} tenantId={tenantId} unit={unit} timeZone={timeZone} now={now} onAcknowledge={setAcknowledging} />
+          ))
+        )}
+      </div>
+      {acknowledging ? (
+        <AcknowledgeDialog
+          permitId={acknowledging.permit.id}
+          step={{ id: acknowledging.stepId, label: acknowledging.label, condition: acknowledging.condition }}
+          what="applied"
+          onClose={() => setAcknowledging(null)}
+        />
+      ) : null}
+    </>
+  );
+}

@@ -1,0 +1,11 @@
+import type { IsolationStepSummary } from '../api/get-permit-isolations';
+
+/** What the schematic strip marks on the line for a permit: its work range, points held isolated, plugs in place. */
+export function schematicOverlays(permit: { fromPosition: number; toPosition: number }, steps: IsolationStepSummary[]) {
+  const inPlace = steps.filter((s) => s.status === 'applied' || s.status === 'verified');
+  return {
+    workRange: [permit.fromPosition, permit.toPosition] as [number, number],
+    isolatedPointIds: inPlace.filter((s) => s.pointId).map((s) => s.pointId as string),
+    plugPositions: inPlace.filter((s) => s.kind === 'plug').map((s) => s.position),
+  };
+}

@@ -1,0 +1,49 @@
+// `npm run seed:scale [-- --fresh] [-- --factor 0.1]`: builds the large-operator dataset in its own
+// database (holdpoint_scale) in the cluster of `npm start` (.data/pg, PGPORT, default 54329): the demo
+// people and tenants first (`cli.ts setup`), then 200 pipelines, 20,000 isolation points, 60,000
+// historic permits with their audit events, 2,000 live permits holding 8,000 isolations and 500,000
+// gas readings in the Bramblecote tenant. `--fresh` drops and rebuilds the database. A database this
+// command started is stopped again at the end; one that was already running is left running.
+import { spawnSync } from 'node:child_process';
+import { mkdirSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { ensureNodeModules } from './lib/deps.mjs';
+import { ensureRoleAndDatabase, keptSecret, portInUse, startCluster } from './lib/pg.mjs';
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
+const dataDir = join(root, '.data');
+const pgPort = Number(process.env.PGPORT ?? 54329);
+const database = 'holdpoint_scale';
+const args = process.argv.slice(2);
+const started = Date.now();
+
+ensureNodeModules(root);
+mkdirSync(dataDir, { recursive: true });
+const wasRunning = await portInUse(pgPort);
+const cluster = startCluster({ root: join(dataDir, 'pg'), port: pgPort });
+const password = keptSecret(join(dataDir, 'db-password'));
+const finish = (code) => {
+  if (!wasRunning) cluster.stop();
+  process.exit(code);
+};
+
+try {
+  if (args.includes('--fresh')) {
+    console.log(`[seed:scale] dropping ${database}`);
+    cluster.psql(`DROP DATABASE IF EXISTS ${database} WITH (FORCE);`);
+  }
+  const databaseUrl = ensureRoleAndDatabase(cluster, { role: 'holdpoint', password, database });
+  const env = { ...process.env, DATABASE_URL: databaseUrl, DATA_DIR: dataDir };
+  const node = (script, extra = []) => spawnSync(process.execPath, ['--import', 'tsx', script, ...extra], { cwd: root, env, stdio: 'inherit' }).status;
+  console.log(`[seed:scale] migrating ${database} and seeding the demo people`);
+  if (node('server/src/db/cli.ts', ['setup']) !== 0) throw new Error('migrating or seeding the demo failed');
+  const status = node('scripts/scale/seed-data.ts', args.filter((a) => a !== '--fresh'));
+  if (status === 3) finish(0);
+  if (status !== 0) throw new Error('building the dataset failed; run again with --fresh');
+  console.log(`[seed:scale] done in ${((Date.now() - started) / 1000).toFixed(1)} s. Sign in as the demo people (password "holdpoint-demo") against ${database}; run \`npm run bench\` next.`);
+  finish(0);
+} catch (err) {
+  console.error(`[seed:scale] ${err.message}`);
+  finish(1);
+}

@@ -1,0 +1,41 @@
+import type { Action, SubjectName } from '@shared/abilities/define-ability';
+import type { PermitState } from '@shared/permit/states';
+import { permitStateLabels } from '@shared/permit/states';
+import type { AppDeps } from '../../deps';
+import { AppError } from '../../errors/app-error';
+import { authorizeRecord, authorizeType } from '../../lib/authorize';
+import { findPermit, type PermitRow } from '../permits/permits.repository';
+import type { CallerContext } from '../permits/permits.service';
+
+/** States in which the crew is on the job: tests and checks may be recorded. */
+export const workOpenStates: readonly PermitState[] = ['accepted', 'isolated', 'live', 'suspended'];
+
+/**
+ * Loads a permit the caller may read (another tenant's, or one they may not see, is a 404), then
+ * checks the caller may do `action` on `type` records of that permit (403 otherwise). Inside withTenant.
+ */
+export async function permitFor(
+  deps: AppDeps,
+  caller: CallerContext,
+  id: string,
+  need: { action: Action; type: Exclude<SubjectName, 'all'>; what: string },
+  opts: { lock?: boolean } = {},
+): Promise<PermitRow> {
+  const permit = authorizeRecord(caller.ability, 'read', 'Permit', await findPermit(deps.sequelize, caller.actor.tenantId, id, opts), 'permit');
+  if (need.type === 'Permit') authorizeRecord(caller.ability, need.action, 'Permit', permit, 'permit');
+  else authorizeType(caller.ability, need.action, need.type, { tenantId: permit.tenantId, contractorOrganisationId: permit.contractorOrganisationId }, need.what);
+  return permit;
+}
+
+export function requireWorkOpen(permit: PermitRow, what: string, states: readonly PermitState[] = workOpenStates) {
+  if (!states.includes(permit.state))
+    throw AppError.unprocessable(`${what} can be recorded only while the permit is ${states.map((s) => permitStateLabels[s].toLowerCase()).join(', ')}; it is ${permitStateLabels[permit.state].toLowerCase()}.`);
+}
+
+/** Times people type for something they did: not in the future, and not more than a day back. */
+export function requireRecentTime(deps: AppDeps, at: string, path: string) {
+  const t = new Date(at).getTime();
+  const now = deps.clock.now().getTime();
+  if (t > now + 2 * 60_000) throw AppError.validation('That time is in the future.', [{ path, message: 'Give the time it was done, not a time to come.' }]);
+  if (t < now - 24 * 3_600_000) throw AppError.validation('That time is more than a day ago.', [{ path, message: 'Record it within a day; older records belong in the notes of a newer one.' }]);
+}

@@ -1,0 +1,111 @@
+// The audit trail is append-only and hash-chained: the database refuses changes, and a change made
+// behind its back (trigger disabled by the table owner) is found by GET /api/audit/verify.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { QueryTypes } from 'sequelize';
+import { appendAudit, verifyChain } from '../../server/src/modules/audit/audit.service';
+import { startTestServer, type TestServer } from '../fixtures/test-server';
+import { demoIds, transition } from '../fixtures/permit-fixtures';
+import { draftWithPlan, expectOk, signInCrew, type Crew, type Ids } from '../fixtures/permit-journey';
+
+describe('audit chain', () => {
+  let srv: TestServer;
+  let crew: Crew;
+  let ids: Ids;
+  let id = '';
+  const db = () => srv.deps.sequelize;
+  const lastSeqOf = async (action: string) =>
+    (await db().query<{ seq: number }>(`SELECT seq FROM audit_events WHERE permit_id = :id AND action = :action ORDER BY seq DESC LIMIT 1`, { replacements: { id, action }, type: QueryTypes.SELECT }))[0].seq;
+
+  beforeAll(async () => {
+    srv = await startTestServer();
+    crew = await signInCrew(srv);
+    ids = await demoIds(srv);
+    id = await draftWithPlan(srv, crew, ids);
+    await expectOk(await transition(crew.lead, id, 'submit'));
+    await expectOk(await transition(crew.authoriser, id, 'reject', { reason: 'Add the drain points to the plan' }));
+  });
+  afterAll(() => srv.close());
+
+  it('when nothing was touched, then the chain verifies', async () => {
+    const res = await crew.auditor.get('/api/audit/verify');
+    expect(res.status).toBe(200);
+    expect(res.body.ok).toBe(true);
+    expect(res.body.events).toBeGreaterThanOrEqual(4);
+  });
+
+  it('when the application role updates, deletes or truncates audit events, then the database refuses', async () => {
+    await expect(db().query(`UPDATE audit_events SET reason = 'nothing to see' WHERE permit_id = :id`, { replacements: { id } })).rejects.toThrow(/append-only/);
+    await expect(db().query(`DELETE FROM audit_events WHERE permit_id = :id`, { replacements: { id } })).rejects.toThrow(/append-only/);
+    await expect(db().query(`TRUNCATE audit_events CASCADE`)).rejects.toThrow(/append-only/);
+    const [{ reason }] = await db().query<{ reason: string }>(`SELECT reason FROM audit_events WHERE permit_id = :id AND action = 'reject'`, { replacements: { id }, type: QueryTypes.SELECT });
+    expect(reason).toBe('Add the drain points to the plan');
+  });
+
+  it('when an event is appended while the chain is being checked, then the check does not report it missing', async () => {
+    // Append (and commit) one event right after the check has read its first page, before it ends.
+    let appended = false;
+    const sequelize = db();
+    const interleaved = new Proxy(sequelize, {
+      get(target, prop, receiver) {
+        if (prop !== 'query') return Reflect.get(target, prop, receiver);
+        return async (...args: Parameters<typeof sequelize.query>) => {
+          const result = await (target.query as (...a: unknown[]) => Promise<unknown>)(...args);
+          if (!appended && /FROM audit_events WHERE tenant_id = :tenantId AND seq >= :from/.test(String(args[0]))) {
+            appended = true;
+            await sequelize.transaction(() =>
+              appendAudit(sequelize, { tenantId: ids.tenantId, entityType: 'permit', entityId: id, permitId: id, action: 'viewed_by_test', occurredAt: srv.clock.now() }),
+            );
+          }
+          return result;
+        };
+      },
+    });
+    const report = await verifyChain(interleaved as typeof sequelize, ids.tenantId);
+    expect(appended).toBe(true);
+    expect(report).toMatchObject({ ok: true });
+    expect((await crew.auditor.get('/api/audit/verify')).body.ok).toBe(true);
+  });
+
+  it('when the table owner disables the trigger and rewrites a reason, then verify answers ok:false at that event', async () => {
+    const seq = await lastSeqOf('reject');
+    // One transaction: the trigger is off only inside it, never for anyone else.
+    await db().transaction(async () => {
+      await db().query(`ALTER TABLE audit_events DISABLE TRIGGER audit_events_append_only`);
+      await db().query(`UPDATE audit_events SET reason = 'Approved by phone' WHERE tenant_id = :t AND seq = :seq`, { replacements: { t: ids.tenantId, seq } });
+      await db().query(`ALTER TABLE audit_events ENABLE TRIGGER audit_events_append_only`);
+    });
+    const res = await crew.auditor.get('/api/audit/verify');
+    expect(res.status).toBe(200);
+    expect(res.body).toMatchObject({ ok: false, brokenAtSeq: seq, problem: 'the event was changed after it was written' });
+    // The trigger is back on.
+    await expect(db().query(`UPDATE audit_events SET reason = 'again' WHERE tenant_id = :t AND seq = :seq`, { replacements: { t: ids.tenantId, seq } })).rejects.toThrow(/append-only/);
+  });
+
+  it('when the last event is deleted behind the trigger’s back, then verify reports the end of the chain missing', async () => {
+    const [{ max }] = await db().query<{ max: number }>(`SELECT max(seq) AS max FROM audit_events WHERE tenant_id = :t`, { replacements: { t: ids.tenantId }, type: QueryTypes.SELECT });
+    // Restore the rewritten reason first, so only the deletion is left to find.
+    await db().transaction(async () => {
+      await db().query(`ALTER TABLE audit_events DISABLE TRIGGER audit_events_append_only`);
+      await db().query(`UPDATE audit_events SET reason = 'Add the drain points to the plan' WHERE permit_id = :id AND action = 'reject'`, { replacements: { id } });
+      await db().query(`DELETE FROM audit_events WHERE tenant_id = :t AND seq = :max`, { replacements: { t: ids.tenantId, max } });
+      await db().query(`ALTER TABLE audit_events ENABLE TRIGGER audit_events_append_only`);
+    });
+    const res = await crew.auditor.get('/api/audit/verify');
+    expect(res.body).toMatchObject({ ok: false, brokenAtSeq: max, problem: 'events at the end of the chain are missing' });
+  });
+
+  it('when an event is slipped in past the chain head (INSERT is allowed), then verify reports it', async () => {
+    const [head] = await db().query<{ seq: number; last_hash: string }>(`SELECT seq, last_hash FROM audit_chain_heads WHERE tenant_id = :t`, { replacements: { t: ids.tenantId }, type: QueryTypes.SELECT });
+    await db().query(
+      `INSERT INTO audit_events (tenant_id, seq, entity_type, entity_id, permit_id, action, occurred_at, prev_hash, hash)
+       VALUES (:t, :seq, 'permit', :id, :id, 'approve', now(), :prev, 'forged')`,
+      { replacements: { t: ids.tenantId, seq: Number(head.seq) + 1, id, prev: head.last_hash } },
+    );
+    const res = await crew.auditor.get('/api/audit/verify');
+    expect(res.body).toMatchObject({ ok: false, brokenAtSeq: Number(head.seq) + 1, problem: 'an event lies beyond the end of the chain' });
+  });
+
+  it('when the contractor lead asks to verify the chain, then 403', async () => {
+    expect((await crew.lead.get('/api/audit/verify')).status).toBe(403);
+  });
+});

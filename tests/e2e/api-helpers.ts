@@ -1,0 +1,90 @@
+import { expect, request, type APIRequestContext, type APIResponse } from '@playwright/test';
+import { DEMO_PASSWORD } from './helpers';
+
+export const names: Record<string, string> = {
+  'lead@oxbow-repair.example': 'Rory Kilbride',
+  'authoriser@bramblecote.example': 'Priya Castellan',
+};
+
+/** A demo user signed in over HTTP, sending the CSRF token the session was bound to on every change. */
+export interface ApiUser {
+  email: string;
+  ctx: APIRequestContext;
+  get: (path: string) => Promise<APIResponse>;
+  post: (path: string, data?: unknown) => Promise<APIResponse>;
+  put: (path: string, data?: unknown) => Promise<APIResponse>;
+  close: () => Promise<void>;
+}
+
+export async function apiAs(email: string): Promise<ApiUser> {
+  const ctx = await request.newContext({ baseURL: process.env.E2E_BASE_URL });
+  const { csrfToken } = await (await ctx.get('/api/auth/csrf')).json();
+  const headers = { 'x-csrf-token': csrfToken as string };
+  const signedIn = await ctx.post('/api/auth/sign-in', { headers, data: { email, password: DEMO_PASSWORD } });
+  expect(signedIn.status(), await signedIn.text()).toBe(200);
+  return {
+    email,
+    ctx,
+    get: (path) => ctx.get(path),
+    post: (path, data = {}) => ctx.post(path, { headers, data }),
+    put: (path, data = {}) => ctx.put(path, { headers, data }),
+    close: () => ctx.dispose(),
+  };
+}
+
+export async function ok<T = Record<string, unknown>>(res: Promise<APIResponse> | APIResponse, status = 200): Promise<T> {
+  const r = await res;
+  expect(r.status(), await r.text()).toBe(status);
+  return (await r.json()) as T;
+}
+
+/** Fires a permit event with the version just read; signed events carry the demo password and the user's name. */
+export async function transition(user: ApiUser, permitId: string, event: string, extra: Record<string, unknown> = {}) {
+  const { version } = await ok<{ version: number }>(user.get(`/api/permits/${permitId}`));
+  const signed = ['approve', 'accept', 'hand_back', 'return_to_service'].includes(event) ? { password: DEMO_PASSWORD, signedName: names[user.email] } : {};
+  return ok<{ state: string }>(user.post(`/api/permits/${permitId}/transitions`, { event, version, ...signed, ...extra }));
+}
+
+/**
+ * A cold-work permit on the Cedar Run lateral whose plan is the given register points, taken through
+ * request, approval and acceptance by the demo lead and authoriser: ready for its isolations.
+ */
+export async function acceptedPermit(title: string, tagCodes: string[]): Promise<{ id: string; number: string }> {
+  const lead = await apiAs('lead@oxbow-repair.example');
+  const authoriser = await apiAs('authoriser@bramblecote.example');
+  try {
+    const me = await ok<{ memberships: { role: string; organisationId: string }[] }>(lead.get('/api/auth/me'));
+    const contractorOrganisationId = me.memberships.find((m) => m.role === 'contractor_lead')!.organisationId;
+    const pipes = await ok<{ items: { id: string; code: string }[] }>(lead.get('/api/pipelines?q=BM-10&pageSize=50'));
+    const pipelineId = pipes.items.find((p) => p.code === 'BM-10')!.id;
+    const points = await ok<{ items: { id: string; tagCode: string; kind: string; position: number }[] }>(lead.get(`/api/isolation-points?pipelineId=${pipelineId}&pageSize=200`));
+    const chosen = tagCodes.map((code) => points.items.find((p) => p.tagCode === code)!);
+    const now = Date.now();
+    const created = await ok<{ id: string; number: string; version: number }>(
+      lead.post('/api/permits', {
+        kinds: ['cold_work'],
+        title,
+        scope: 'Repack the valve stem and check the operator.',
+        pipelineId,
+        fromPosition: chosen[0].position,
+        toPosition: chosen[0].position,
+        methodStatement: 'Close, lock and tag the valve; bleed the body; repack; test; restore.',
+        hazards: 'Trapped pressure in the valve body.',
+        ppe: ['Gloves', 'Safety glasses'],
+        validFrom: new Date(now - 60_000).toISOString(),
+        validTo: new Date(now + 8 * 3600_000).toISOString(),
+        contractorOrganisationId,
+      }),
+      201,
+    );
+    const kindOf: Record<string, string> = { block_valve: 'block_valve', vent: 'vent', drain: 'drain' };
+    await ok(lead.put(`/api/permits/${created.id}/isolations`, { version: created.version, steps: chosen.map((p) => ({ pointId: p.id, kind: kindOf[p.kind] })) }));
+    await transition(lead, created.id, 'submit');
+    await transition(authoriser, created.id, 'approve');
+    expect((await transition(lead, created.id, 'accept')).state).toBe('accepted');
+    return { id: created.id, number: created.number };
+  } finally {
+    await lead.close();
+    await authoriser.close();
+  }
+}

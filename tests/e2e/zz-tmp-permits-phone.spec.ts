@@ -1,0 +1,32 @@
+import { test } from '@playwright/test';
+import { signIn } from './helpers';
+
+test('phone look', async ({ page }) => {
+  test.setTimeout(200_000);
+  await page.setViewportSize({ width: 390, height: 844 });
+  await signIn(page, 'lead@oxbow-repair.example');
+  await page.goto('/permits/new');
+  await page.getByLabel('Hot work').check();
+  await page.getByLabel('Title').fill('Phone look');
+  await page.getByRole('button', { name: 'Next' }).click();
+  await page.getByLabel('Pipeline').selectOption({ index: 1 });
+  await page.getByLabel('From milepost').fill('1');
+  await page.getByLabel('To milepost').fill('2');
+  await page.getByRole('button', { name: 'Next' }).click();
+  await page.waitForTimeout(1000);
+  await page.screenshot({ path: '.tmp/permit-shots/new-step3.png', fullPage: true });
+  await page.getByRole('button', { name: 'Next' }).click();
+  await page.getByRole('button', { name: 'Next' }).click();
+  await page.getByRole('button', { name: 'Save draft' }).click();
+  await page.waitForURL(/permits\/[0-9a-f-]{36}$/);
+  await page.getByTestId('permit-state').waitFor();
+  await page.waitForTimeout(6000);
+  await page.screenshot({ path: '.tmp/permit-shots/page.png', fullPage: true });
+  await page.getByRole('button', { name: 'Cancel permit', exact: true }).click();
+  await page.waitForTimeout(500);
+  await page.screenshot({ path: '.tmp/permit-shots/dialog.png' });
+  await page.keyboard.press('Escape');
+  await page.goto('/permits');
+  await page.getByTestId('permit-card').first().waitFor();
+  await page.screenshot({ path: '.tmp/permit-shots/list.png', fullPage: true });
+});
