@@ -156,3 +156,30 @@ export function mtime(path) {
     return 0;
   }
 }
+
+/**
+ * The login role the server uses: it owns nothing, so row-level security binds it, and it gets its
+ * table rights through the group role hp_app (granted by each migration run). Idempotent.
+ */
+export function ensureAppRole(cluster, { role, password }) {
+  cluster.psql(`
+DO $$ BEGIN
+  IF NOT EXISTS (SELECT 1 FROM pg_roles WHERE rolname = 'hp_app') THEN CREATE ROLE hp_app NOLOGIN; END IF;
+  IF NOT EXISTS (SELECT 1 FROM pg_roles WHERE rolname = ${literal(role)}) THEN
+    CREATE ROLE ${ident(role)} LOGIN NOSUPERUSER NOCREATEDB NOCREATEROLE NOBYPASSRLS INHERIT PASSWORD ${literal(password)};
+  ELSE
+    ALTER ROLE ${ident(role)} LOGIN NOSUPERUSER NOCREATEDB NOCREATEROLE NOBYPASSRLS INHERIT PASSWORD ${literal(password)};
+  END IF;
+END $$;
+GRANT hp_app TO ${ident(role)};
+`);
+  return { role, password };
+}
+
+/** The same database URL with another role's credentials. */
+export function withCredentials(url, { role, password }) {
+  const u = new URL(url);
+  u.username = role;
+  u.password = encodeURIComponent(password);
+  return u.toString();
+}

@@ -7,6 +7,7 @@ declare module 'vitest' {
   export interface ProvidedContext {
     dbAdminUrl: string;
     dbTemplate: string;
+    dbAppRole: { role: string; password: string };
   }
 }
 
@@ -16,5 +17,6 @@ export default async function setup(project: TestProject) {
   const db = await startTestDatabase(root);
   project.provide('dbAdminUrl', db.adminUrl);
   project.provide('dbTemplate', 'holdpoint_template');
+  project.provide('dbAppRole', db.appRole);
   return () => db.stop();
 }

@@ -30,6 +30,18 @@ export async function migrateUp(sequelize: Sequelize) {
                WHERE n.nspname = 'public' AND c.relkind = 'r' AND NOT c.relrowsecurity AND c.relname NOT IN (${notTenantScoped.map((t) => `'${t}'`).join(', ')})
       LOOP PERFORM hp_enable_tenant_rls(r.tbl); END LOOP;
     END $$;`);
+  // The server's login role belongs to hp_app: plain data rights, no ownership, and the audit trail
+  // is append-only for it (the trigger refuses changes too).
+  await sequelize.query(`
+    DO $$ BEGIN
+      IF EXISTS (SELECT 1 FROM pg_roles WHERE rolname = 'hp_app') THEN
+        GRANT USAGE ON SCHEMA public TO hp_app;
+        GRANT SELECT, INSERT, UPDATE, DELETE ON ALL TABLES IN SCHEMA public TO hp_app;
+        GRANT USAGE, SELECT ON ALL SEQUENCES IN SCHEMA public TO hp_app;
+        REVOKE UPDATE, DELETE, TRUNCATE ON audit_events FROM hp_app;
+        REVOKE ALL ON schema_migrations FROM hp_app;
+      END IF;
+    END $$;`);
   return done;
 }
 
