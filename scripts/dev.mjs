@@ -5,7 +5,7 @@ import { mkdirSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { ensureNodeModules } from './lib/deps.mjs';
-import { ensureRoleAndDatabase, keptSecret, startCluster } from './lib/pg.mjs';
+import { ensureAppRole, ensureRoleAndDatabase, keptSecret, startCluster, withCredentials } from './lib/pg.mjs';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 const dataDir = join(root, '.data');
@@ -13,9 +13,10 @@ const port = Number(process.env.PORT ?? 3000);
 ensureNodeModules(root);
 mkdirSync(dataDir, { recursive: true });
 const cluster = startCluster({ root: join(dataDir, 'pg'), port: Number(process.env.PGPORT ?? 54329) });
-const databaseUrl = ensureRoleAndDatabase(cluster, { role: 'holdpoint', password: keptSecret(join(dataDir, 'db-password')), database: 'holdpoint' });
-const env = { ...process.env, DATABASE_URL: databaseUrl, DATA_DIR: dataDir, PORT: String(port), NODE_ENV: 'development', DEV_MAILBOX: process.env.SMTP_URL ? 'off' : 'on', PUBLIC_URL: 'http://127.0.0.1:5173' };
-if (spawnSync(process.execPath, ['--import', 'tsx', 'server/src/db/cli.ts', 'setup'], { cwd: root, env, stdio: 'inherit' }).status !== 0) process.exit(1);
+const ownerUrl = ensureRoleAndDatabase(cluster, { role: 'holdpoint', password: keptSecret(join(dataDir, 'db-password')), database: 'holdpoint' });
+const appUrl = withCredentials(ownerUrl, ensureAppRole(cluster, { role: 'holdpoint_app', password: keptSecret(join(dataDir, 'db-app-password')) }));
+const env = { ...process.env, DATABASE_URL: appUrl, DATABASE_OWNER_URL: ownerUrl, DATA_DIR: dataDir, PORT: String(port), NODE_ENV: 'development', DEV_MAILBOX: process.env.SMTP_URL ? 'off' : 'on', PUBLIC_URL: 'http://127.0.0.1:5173' };
+if (spawnSync(process.execPath, ['--import', 'tsx', 'server/src/db/cli.ts', 'setup'], { cwd: root, env: { ...env, DATABASE_URL: ownerUrl }, stdio: 'inherit' }).status !== 0) process.exit(1);
 const children = [
   spawn('npx', ['tsx', 'watch', 'server/src/index.ts'], { cwd: root, env, stdio: 'inherit' }),
   spawn('npx', ['vite'], { cwd: root, env, stdio: 'inherit' }),

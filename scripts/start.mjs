@@ -6,7 +6,7 @@ import { mkdirSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { ensureNodeModules } from './lib/deps.mjs';
-import { ensureRoleAndDatabase, keptSecret, portInUse, startCluster } from './lib/pg.mjs';
+import { ensureAppRole, ensureRoleAndDatabase, keptSecret, portInUse, startCluster, withCredentials } from './lib/pg.mjs';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 const dataDir = join(root, '.data');
@@ -18,17 +18,20 @@ mkdirSync(dataDir, { recursive: true });
 
 const cluster = startCluster({ root: join(dataDir, 'pg'), port: pgPort });
 const password = keptSecret(join(dataDir, 'db-password'));
-const databaseUrl = ensureRoleAndDatabase(cluster, { role: 'holdpoint', password, database: 'holdpoint' });
+const ownerUrl = ensureRoleAndDatabase(cluster, { role: 'holdpoint', password, database: 'holdpoint' });
+// The server logs in as a role that owns nothing, so row-level security binds it; migrations run as the owner.
+const appUrl = withCredentials(ownerUrl, ensureAppRole(cluster, { role: 'holdpoint_app', password: keptSecret(join(dataDir, 'db-app-password')) }));
 let stopped = false;
+// Ctrl-C stops the database only when this command started it.
 const stopDb = () => {
-  if (stopped) return;
+  if (stopped || !cluster.startedHere) return;
   stopped = true;
   cluster.stop();
   console.log('[start] PostgreSQL stopped');
 };
 
-const env = { ...process.env, DATABASE_URL: databaseUrl, DATA_DIR: dataDir, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development', DEV_MAILBOX: process.env.SMTP_URL ? 'off' : 'on' };
-const run = (args) => spawnSync(process.execPath, args, { cwd: root, env, stdio: 'inherit' });
+const env = { ...process.env, DATABASE_URL: appUrl, DATABASE_OWNER_URL: ownerUrl, DATA_DIR: dataDir, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development', DEV_MAILBOX: process.env.SMTP_URL ? 'off' : 'on' };
+const run = (args) => spawnSync(process.execPath, args, { cwd: root, env: { ...env, DATABASE_URL: ownerUrl }, stdio: 'inherit' });
 
 try {
   if (run(['--import', 'tsx', 'server/src/db/cli.ts', 'setup']).status !== 0) throw new Error('database set-up failed');

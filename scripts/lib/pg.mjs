@@ -75,7 +75,8 @@ export function portInUse(port) {
  * Creates the cluster under `root` when it is missing and starts it on 127.0.0.1:port.
  * Returns helpers to run SQL as the superuser over the private socket and to stop the server.
  */
-export function startCluster({ root, port, fsync = true }) {
+export function startCluster({ root, port: requestedPort, fsync = true }) {
+  let port = requestedPort;
   const bin = ensurePostgres();
   const data = join(root, 'data');
   const sock = join(root, 'socket');
@@ -87,7 +88,11 @@ export function startCluster({ root, port, fsync = true }) {
   }
   const running = spawnSync(isRootUser() ? 'runuser' : join(bin, 'pg_ctl'),
     isRootUser() ? ['-u', 'postgres', '--', join(bin, 'pg_ctl'), '-D', data, 'status'] : ['-D', data, 'status'], { cwd: '/' }).status === 0;
-  if (!running) {
+  if (running) {
+    // Already up (a second `npm start`, or another command): use the port it actually listens on.
+    const pid = readFileSync(join(data, 'postmaster.pid'), 'utf8').split('\n');
+    if (pid[3] && Number(pid[3]) !== port) port = Number(pid[3]);
+  } else {
     const opts = [`-c listen_addresses=127.0.0.1`, `-p ${port}`, `-c unix_socket_directories=${sock}`];
     if (!fsync) opts.push('-c fsync=off', '-c synchronous_commit=off', '-c full_page_writes=off');
     asPostgres(join(bin, 'pg_ctl'), ['-D', data, '-l', join(data, 'server.log'), '-w', '-t', '30', '-o', opts.join(' '), 'start']);
@@ -101,7 +106,7 @@ export function startCluster({ root, port, fsync = true }) {
       /* already stopped */
     }
   };
-  return { bin, data, sock, port, psql, stop };
+  return { bin, data, sock, port, psql, stop, startedHere: !running };
 }
 
 function isRootUser() {

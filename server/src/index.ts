@@ -30,7 +30,13 @@ async function main() {
     smtpUrl = `smtp://127.0.0.1:${devMailbox.port}`;
   }
   const sequelize = createSequelize(config.DATABASE_URL, logger);
-  await migrateUp(sequelize);
+  if (config.DATABASE_OWNER_URL) {
+    const owner = createSequelize(config.DATABASE_OWNER_URL, logger);
+    await migrateUp(owner);
+    await owner.close();
+  } else {
+    await migrateUp(sequelize);
+  }
   const deps: AppDeps = {
     config,
     sequelize,

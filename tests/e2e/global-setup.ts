@@ -7,7 +7,7 @@ import pg from 'pg';
 // @ts-expect-error plain ESM helpers shared with the npm scripts
 import { startTestDatabase } from '../../scripts/lib/test-db.mjs';
 // @ts-expect-error plain ESM helpers shared with the npm scripts
-import { freePort } from '../../scripts/lib/pg.mjs';
+import { freePort, withCredentials } from '../../scripts/lib/pg.mjs';
 
 /**
  * Starts a throwaway database (migrated and seeded with the demo), builds the client when it is
@@ -29,7 +29,8 @@ export default async function globalSetup() {
   const databaseUrl = db.adminUrl.replace(/\/postgres$/, '/holdpoint_e2e');
   const server: ChildProcess = spawn(process.execPath, ['--import', 'tsx', 'server/src/index.ts'], {
     cwd: root,
-    env: { ...process.env, NODE_ENV: 'development', PORT: String(port), DATABASE_URL: databaseUrl, DATA_DIR: dataDir, DEV_MAILBOX: 'on', LOG_LEVEL: 'warn', PUBLIC_URL: `http://127.0.0.1:${port}` },
+    // The server logs in as the app role (bound by row-level security), as it does in npm start.
+    env: { ...process.env, NODE_ENV: 'development', PORT: String(port), DATABASE_URL: withCredentials(databaseUrl, db.appRole), DATABASE_OWNER_URL: databaseUrl, DATA_DIR: dataDir, DEV_MAILBOX: 'on', LOG_LEVEL: 'warn', PUBLIC_URL: `http://127.0.0.1:${port}` },
     stdio: ['ignore', 'inherit', 'inherit'],
   });
   const base = `http://127.0.0.1:${port}`;

@@ -8,6 +8,8 @@ const envSchema = z.object({
   PORT: z.coerce.number().int().min(0).max(65535).default(3000),
   HOST: z.string().default('127.0.0.1'),
   DATABASE_URL: z.url({ message: 'DATABASE_URL must be a postgres:// URL' }).refine((u) => u.startsWith('postgres'), 'DATABASE_URL must be a postgres:// URL'),
+  // Migrations run as the owner of the schema; the server itself uses DATABASE_URL (a role bound by row-level security).
+  DATABASE_OWNER_URL: z.string().regex(/^postgres(ql)?:\/\//, 'DATABASE_OWNER_URL must be a postgres:// URL').optional(),
   DATA_DIR: z.string().default('.data'),
   SESSION_SECRET: z.string().min(16, 'SESSION_SECRET must be at least 16 characters').optional(),
   SESSION_IDLE_MINUTES: z.coerce.number().int().positive().default(30),
@@ -21,6 +23,8 @@ const envSchema = z.object({
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   CLIENT_DIST: z.string().default('dist/client'),
   WORKERS: z.enum(['on', 'off']).default('on'),
+  // The live board reuses its answer while the tenant's data is unchanged (modules/isolations/board-cache.ts).
+  BOARD_CACHE: z.enum(['on', 'off']).default('on'),
 });
 
 export type Env = z.infer<typeof envSchema>;

@@ -1,12 +1,13 @@
 import PDFDocument from 'pdfkit';
 import QRCode from 'qrcode';
 import { QueryTypes } from 'sequelize';
-import { format } from 'date-fns';
 import { mudPlug, MUD_PLUG_CAUTION } from '@shared/calc';
 import { permitStateLabels, workKindLabels } from '@shared/permit/states';
 import { permitEventLabels, type PermitEvent } from '@shared/permit/state-machine';
 import type { AppDeps } from '../../deps';
 import type { PermitRow } from './permits.repository';
+import { loadTenantSettings } from '../tenants/tenant-settings';
+import { withTenant } from '../../db/sequelize';
 
 interface PdfInput extends PermitRow {
   signatures: unknown[];
@@ -25,10 +26,17 @@ const latin1 = (s: unknown) =>
     // eslint-disable-next-line no-control-regex -- keeping tabs and line breaks is the point
     .replace(/[^\x09\x0A\x0D\x20-\x7E\xA0-\xFF]/g, '?');
 
-const when = (d: unknown) => (d ? format(new Date(d as string), 'd MMM yyyy HH:mm') : '-');
 
 /** The printable permit, posted at the work site; the QR code opens the live record. */
 export async function renderPermitPdf(deps: AppDeps, tenantId: string, p: PdfInput): Promise<Buffer> {
+  return withTenant(deps.sequelize, tenantId, () => renderInTenant(deps, tenantId, p));
+}
+
+async function renderInTenant(deps: AppDeps, tenantId: string, p: PdfInput): Promise<Buffer> {
+  // Times on the posted copy are the tenant's local times, with the zone named.
+  const { timeZone } = await loadTenantSettings(deps.sequelize, tenantId);
+  const fmt = new Intl.DateTimeFormat('en-GB', { timeZone, day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hour12: false, timeZoneName: 'short' });
+  const when = (d: unknown) => (d ? fmt.format(new Date(d as string)) : '-');
   const steps = await deps.sequelize.query<{
     seq: number; kind: string; condition: string; status: string; label: string; position: number; lock_number: string | null; tag_number: string | null;
     applied_by: string | null; verified_by: string | null; removed_at: Date | null; plug_diameter_in: number | null;
