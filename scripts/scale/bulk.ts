@@ -128,12 +128,17 @@ export class Progress {
   private last = 0;
   private readonly started = Date.now();
   private phase = '';
-  private readonly tty = Boolean(process.stderr.isTTY);
+  private readonly tty: boolean;
 
-  constructor(private readonly total: number) {}
+  constructor(
+    private readonly total: number,
+    private readonly enabled = true,
+  ) {
+    this.tty = enabled && Boolean(process.stderr.isTTY);
+  }
 
   setPhase(name: string) {
-    if (this.phase && !this.tty) process.stderr.write(`[seed:scale] ${this.phase} done (${this.elapsed()})\n`);
+    if (this.enabled && this.phase && !this.tty) process.stderr.write(`[seed:scale] ${this.phase} done (${this.elapsed()})\n`);
     this.phase = name;
     this.draw(true);
   }
@@ -146,7 +151,7 @@ export class Progress {
   finish() {
     this.done = this.total;
     this.draw(true);
-    process.stderr.write(this.tty ? '\n' : `[seed:scale] ${this.phase} done (${this.elapsed()})\n`);
+    if (this.enabled) process.stderr.write(this.tty ? '\n' : `[seed:scale] ${this.phase} done (${this.elapsed()})\n`);
   }
 
   private elapsed() {
@@ -220,4 +225,23 @@ export class AuditChainWriter {
       [this.tenantId, this.head.seq, this.head.hash],
     );
   }
+}
+
+/**
+ * Drops the plain (non-unique) indexes of `tables` and returns a function that builds them again
+ * from their own definitions: one sorted build after the load costs far less than keeping them up
+ * to date row by row. Unique indexes and keys stay, so every constraint is checked during the load.
+ */
+export async function deferIndexes(client: pg.Client, tables: string[]) {
+  const { rows } = await client.query<{ name: string; def: string }>(
+    `SELECT i.indexrelid::regclass::text AS name, pg_get_indexdef(i.indexrelid) AS def
+     FROM pg_index i JOIN pg_class t ON t.oid = i.indrelid
+     WHERE t.relname = ANY ($1) AND t.relnamespace = 'public'::regnamespace AND NOT i.indisunique AND NOT i.indisprimary`,
+    [tables],
+  );
+  for (const r of rows) await client.query(`DROP INDEX ${r.name}`);
+  return async () => {
+    await client.query(`SET maintenance_work_mem = '256MB'`);
+    for (const r of rows) await client.query(r.def);
+  };
 }

@@ -101,7 +101,7 @@ export const permitGasLimitsSchema = z.strictObject({
   hotWorkLel: z.strictObject({ max: limitValue.optional() }).optional(),
   h2s: z.strictObject({ max: limitValue.optional() }).optional(),
   co: z.strictObject({ max: limitValue.optional() }).optional(),
-});
+}).refine((v) => Object.values(v).some((g) => g && Object.keys(g).length > 0), { message: 'Give at least one limit to tighten.' });
 export type PermitGasLimitsInput = z.infer<typeof permitGasLimitsSchema>;
 
 export const instrumentInputSchema = z

@@ -2,6 +2,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import type { IsolationPoint, PipelineDetail, PipelineSummary } from '@shared/assets/types';
 import { startTestServer, type ApiClient, type TestServer } from '../fixtures/test-server';
+import { seedPeople } from '../../server/src/db/seed/demo-people';
+import { seedAssets } from '../../server/src/db/seed/demo-assets';
 
 let srv: TestServer;
 const as: Record<string, ApiClient> = {};
@@ -82,6 +84,17 @@ describe('reading the register', () => {
     const own = await as.harlow.get('/api/pipelines');
     expect(own.body.items.map((p: PipelineSummary) => p.code)).toEqual(['HR-8']);
     expect(own.body.items[0].unit).toBe('km');
+  });
+});
+
+describe('demo data', () => {
+  it('when the asset seed runs a second time, then it finds every row and adds nothing', async () => {
+    const tables = ['pipelines', 'pipeline_sites', 'isolation_points', 'locks', 'tags'];
+    const before = await Promise.all(tables.map(count));
+    const db = srv.deps.sequelize;
+    await db.transaction(async (t) => seedAssets(db, await seedPeople(db, 'unused-hash', t), t));
+    expect(await Promise.all(tables.map(count))).toEqual(before);
+    expect(before.slice(3)).toEqual([50, 50]);
   });
 });
 
@@ -322,8 +335,20 @@ describe('CSV import and export', () => {
     expect(res.body).toMatchObject({ valid: true, points: { create: 1 } });
   });
 
-  it('when the body is neither CSV, a file nor JSON, then 415', async () => {
+  it('when the body is neither CSV, a file nor JSON, then 415; an upload without a file or with the wrong field is 400', async () => {
     const res = await as.admin.agent.post('/api/imports/assets').set('x-csrf-token', as.admin.csrf).set('content-type', 'application/xml').send('<x/>');
     expect(res.status).toBe(415);
+    const noFile = await as.admin.agent.post('/api/imports/assets').set('x-csrf-token', as.admin.csrf).field('note', 'no file here');
+    expect(noFile.status).toBe(400);
+    expect(noFile.body.error.details).toEqual([{ path: 'file', message: 'Choose a CSV file.' }]);
+    const wrongField = await as.admin.agent.post('/api/imports/assets').set('x-csrf-token', as.admin.csrf).attach('upload', Buffer.from('x'), 'x.csv');
+    expect(wrongField.status).toBe(400);
+  });
+
+  it('when the text/csv body is larger than 2 MB, then 413 and nothing is read', async () => {
+    const big = `${header}\n${'x'.repeat(2 * 1024 * 1024)}`;
+    const res = await as.admin.agent.post('/api/imports/assets?dryRun=true').set('x-csrf-token', as.admin.csrf).set('content-type', 'text/csv').send(big);
+    expect(res.status).toBe(413);
+    expect(res.body.error.code).toBe('payload_too_large');
   });
 });

@@ -3,6 +3,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { appendAudit, verifyChain } from '../../server/src/modules/audit/audit.service';
+import { withTenant } from '../../server/src/db/sequelize';
 import { startTestServer, type TestServer } from '../fixtures/test-server';
 import { demoIds, transition } from '../fixtures/permit-fixtures';
 import { draftWithPlan, expectOk, signInCrew, type Crew, type Ids } from '../fixtures/permit-journey';
@@ -33,7 +34,17 @@ describe('audit chain', () => {
     expect(res.body.events).toBeGreaterThanOrEqual(4);
   });
 
-  it('when the application role updates, deletes or truncates audit events, then the database refuses', async () => {
+  it('when the app’s own role updates, deletes, truncates audit events or disables the trigger, then the database refuses', async () => {
+    // The server's login role (bound by row-level security), inside its tenant as the app would be.
+    const app = srv.appDeps.sequelize;
+    const asApp = (sql: string) => withTenant(app, ids.tenantId, () => app.query(sql, { replacements: { id } }));
+    await expect(asApp(`UPDATE audit_events SET reason = 'nothing to see' WHERE permit_id = :id`)).rejects.toThrow(/permission denied/);
+    await expect(asApp(`DELETE FROM audit_events WHERE permit_id = :id`)).rejects.toThrow(/permission denied/);
+    await expect(asApp(`TRUNCATE audit_events`)).rejects.toThrow(/permission denied/);
+    await expect(asApp(`ALTER TABLE audit_events DISABLE TRIGGER audit_events_append_only`)).rejects.toThrow(/must be owner/);
+  });
+
+  it('when even the table owner updates, deletes or truncates audit events, then the append-only trigger refuses', async () => {
     await expect(db().query(`UPDATE audit_events SET reason = 'nothing to see' WHERE permit_id = :id`, { replacements: { id } })).rejects.toThrow(/append-only/);
     await expect(db().query(`DELETE FROM audit_events WHERE permit_id = :id`, { replacements: { id } })).rejects.toThrow(/append-only/);
     await expect(db().query(`TRUNCATE audit_events CASCADE`)).rejects.toThrow(/append-only/);

@@ -128,11 +128,11 @@ describe('gas tests, timed checks and handover through the API', () => {
     await flushMail();
     mails.length = 0;
     srv.clock.advanceMinutes(31);
-    // Two processes at once (two connections of the pool), then a later tick.
-    await Promise.all([runScheduler(srv.deps), runScheduler(srv.deps)]);
-    await runScheduler(srv.deps);
+    // As the server runs it (the app role, bound by row-level security): two processes at once, then a later tick.
+    await Promise.all([runScheduler(srv.appDeps), runScheduler(srv.appDeps)]);
+    await runScheduler(srv.appDeps);
     await flushMail();
-    await runScheduler(srv.deps);
+    await runScheduler(srv.appDeps);
     await flushMail();
     const overdue = mails.filter((m) => m.subject.startsWith(`${permitNumber} repeat gas test overdue`));
     expect(overdue.map((m) => m.to).sort()).toEqual([users.authoriser, users.lead].sort());
@@ -258,8 +258,8 @@ describe('gas tests, timed checks and handover through the API', () => {
     const id = await draftWithPlan(srv, crew, ids, { validTo: new Date(srv.clock.now().getTime() + 20 * 60_000).toISOString() });
     await toAccepted(crew, id);
     srv.clock.advanceMinutes(21);
-    await runScheduler(srv.deps);
-    await runScheduler(srv.deps);
+    await runScheduler(srv.appDeps);
+    await runScheduler(srv.appDeps);
     const permit = await expectOk(await crew.lead.get(`/api/permits/${id}`));
     expect(permit.state).toBe('expired');
     expect((permit.timeline as { action: string }[]).filter((e) => e.action === 'expire')).toHaveLength(1);

@@ -24,7 +24,8 @@ describe('mail outbox while the mail server is down and after it returns', () =>
   let catcher: Awaited<ReturnType<typeof startMailCatcher>> | null = null;
   let id = '';
   const outbox = () => srv.deps.sequelize.query<OutboxRow>(`SELECT id, to_address, subject, status, attempts, last_error FROM mail_outbox ORDER BY id`, { type: QueryTypes.SELECT });
-  const deliver = () => deliverDueMail(srv.deps.sequelize, srv.deps.mailTransport, srv.deps.config.MAIL_FROM, srv.deps.logger);
+  // The sender runs as the server's own role, as the worker does.
+  const deliver = () => deliverDueMail(srv.appDeps.sequelize, srv.appDeps.mailTransport, srv.appDeps.config.MAIL_FROM, srv.appDeps.logger);
 
   beforeAll(async () => {
     // Take a free loopback port from a catcher, then stop it: the port is closed while the server runs.

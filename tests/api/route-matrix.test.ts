@@ -11,7 +11,8 @@ import type { MeResponse } from '@shared/schemas/auth.schema';
 import { DEMO_PASSWORD, startTestServer, type ApiClient, type TestServer } from '../fixtures/test-server';
 import { readAnswer, registeredApiRoutes } from '../fixtures/registered-routes';
 import {
-  inventoryBody, permitBody, pipelineBody, pointBody, sampleInventory, sampleMembership, samplePermit, samplePipeline, samplePoint, sampleStep, tokenFor,
+  instrumentBody, inventoryBody, monitorOf, onePixelPng, permitBody, pipelineBody, pointBody, sampleAttachment, sampleHandover, sampleHeldPermit, sampleInstrument,
+  sampleInventory, sampleMembership, samplePermit, samplePipeline, samplePoint, sampleStep, tokenFor,
   type Keepers, type MatrixContext, type SampleFactory, type SampleRecord, type TenantIds,
 } from '../fixtures/matrix-samples';
 
@@ -34,8 +35,11 @@ type Access =
   | { kind: 'signed-in' }
   /** No record yet: allowed when the check passes, otherwise 403. */
   | { kind: 'type'; describe: string; allowed: (ability: AppAbility, actor: Actor, c: MatrixContext) => boolean }
-  /** A loaded record: not readable → 404 (its existence stays hidden), readable but not allowed → 403. */
-  | { kind: 'record'; action: Action; subject: Subject; sample: SampleFactory };
+  /**
+   * A loaded record: not readable → 404 (its existence stays hidden), readable but not allowed → 403.
+   * `readAs` when the route looks the record up as another subject first (a permit's gas tests: the Permit).
+   */
+  | { kind: 'record'; action: Action; subject: Subject; sample: SampleFactory; readAs?: Subject };
 
 interface RouteCase {
   method: 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
@@ -49,6 +53,8 @@ interface RouteCase {
   ownSession?: true;
   /** The answer is an endless event stream: read the status and the first bytes, then hang up. */
   stream?: true;
+  /** The body is a multipart upload of this file in the field "file". */
+  upload?: { name: string; contentType: string; bytes: Buffer };
 }
 
 const open: Access = { kind: 'public' };
@@ -70,7 +76,9 @@ const all = (...accesses: Access[]): Access => ({
   describe: accesses.map((a) => (a.kind === 'type' ? a.describe : a.kind)).join(' and '),
   allowed: (ability, actor, c) => accesses.every((a) => a.kind === 'type' && a.allowed(ability, actor, c)),
 });
-const onRecord = (action: Action, subject: Subject, sample: SampleFactory): Access => ({ kind: 'record', action, subject, sample });
+const onRecord = (action: Action, subject: Subject, sample: SampleFactory, readAs?: Subject): Access => ({ kind: 'record', action, subject, sample, readAs });
+/** The signature a signed event asks for: the caller's password again and their name typed. */
+const signature = (c: MatrixContext) => ({ password: DEMO_PASSWORD, signedName: c.userName ?? 'Nobody' });
 const isoDay = (d: Date) => d.toISOString().slice(0, 10);
 const ofContractor = (_a: Actor, c: MatrixContext) => ({ contractorOrganisationId: c.tenant.contractorOrgId });
 
@@ -190,6 +198,51 @@ const routes: RouteCase[] = [
   // audit trail
   { method: 'GET', path: '/api/audit/verify', access: can('verify_chain', 'AuditEvent') },
   { method: 'GET', path: '/api/audit/events', access: can('read', 'AuditEvent') },
+
+  // attachments
+  {
+    method: 'POST',
+    path: '/api/permits/:id/attachments',
+    access: onRecord('create', 'Attachment', samplePermit('draft'), 'Permit'),
+    upload: { name: 'matrix.png', contentType: 'image/png', bytes: onePixelPng },
+  },
+  { method: 'GET', path: '/api/permits/:id/attachments', access: onRecord('read', 'Attachment', samplePermit('draft'), 'Permit') },
+  { method: 'GET', path: '/api/attachments/:id', access: onRecord('read', 'Attachment', sampleAttachment) },
+
+  // gas monitors, gas tests, timed checks, shift handovers
+  { method: 'GET', path: '/api/instruments', access: can('read', 'Instrument') },
+  { method: 'POST', path: '/api/instruments', access: can('create', 'Instrument'), body: instrumentBody },
+  { method: 'PATCH', path: '/api/instruments/:id', access: onRecord('update', 'Instrument', sampleInstrument), body: () => ({ model: 'Matrix four-gas monitor, relabelled' }) },
+  { method: 'GET', path: '/api/permits/:id/gas-tests', access: onRecord('read', 'GasTest', samplePermit('accepted'), 'Permit') },
+  {
+    method: 'POST',
+    path: '/api/permits/:id/gas-tests',
+    access: onRecord('create', 'GasTest', samplePermit('accepted'), 'Permit'),
+    body: async (c) => ({ instrumentId: await monitorOf(c, c.tenant), place: 'work_area', testedAt: c.srv.clock.now().toISOString(), readings: { o2Pct: 20.9, lelPct: 0, h2sPpm: 0, coPpm: 0 } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/permits/:id/gas-tests/import',
+    access: onRecord('create', 'GasTest', samplePermit('accepted'), 'Permit'),
+    body: async (c) => ({ csv: 'Time,O2,LEL,H2S,CO\n2026-01-01 08:00,20.9,0,0,0\n', instrumentId: await monitorOf(c, c.tenant), place: 'work_area', dryRun: true }),
+  },
+  { method: 'GET', path: '/api/permits/:id/regime', access: onRecord('read', 'GasTest', samplePermit('accepted'), 'Permit') },
+  { method: 'PUT', path: '/api/permits/:id/gas-limits', access: onRecord('update', 'Permit', samplePermit('draft')), body: () => ({ lel: { max: 5 } }) },
+  { method: 'GET', path: '/api/permits/:id/checks', access: onRecord('read', 'Check', samplePermit('accepted'), 'Permit') },
+  {
+    method: 'POST',
+    path: '/api/permits/:id/checks',
+    access: onRecord('record', 'Check', samplePermit('accepted'), 'Permit'),
+    body: (c) => ({ kind: 'vent', checkedAt: c.srv.clock.now().toISOString(), vapourAwayFromWork: true, pressureBuilding: false }),
+  },
+  { method: 'GET', path: '/api/permits/:id/handovers', access: onRecord('read', 'Permit', samplePermit('live')) },
+  {
+    method: 'POST',
+    path: '/api/permits/:id/handovers',
+    access: onRecord('handover', 'Permit', sampleHeldPermit),
+    body: (c, s) => ({ toUserId: s?.extra?.toUserId, openPoints: 'Matrix check: vent V-2 left open, monitor on site.', ...signature(c) }),
+  },
+  { method: 'POST', path: '/api/permits/:id/handovers/:handoverId/accept', access: onRecord('handover', 'Permit', sampleHandover), body: (c) => signature(c) },
 ];
 
 // ---------------------------------------------------------------------------------------------
@@ -204,6 +257,7 @@ const sessions = new Map<string, { client: ApiClient; actor: Actor; me: MeRespon
 let counter = 0;
 let pairs = 0;
 let foreignCalls = 0;
+const outcomes: Record<string, number> = {};
 
 const unique = (prefix: string) => `${prefix} ${Date.now().toString(36)}-${++counter}`.replace(/\s+/g, '-').toLowerCase();
 
@@ -216,7 +270,7 @@ function contextFor(email: string | null): MatrixContext {
   const s = email ? sessions.get(email) : undefined;
   const tenant = s ? Object.values(tenants).find((t) => t.id === s.actor.tenantId)! : tenants.bramblecote;
   const other = Object.values(tenants).find((t) => t.id !== tenant.id)!;
-  return { db, srv, email, actor: s?.actor ?? null, tenant, other, keepers, users, unique };
+  return { db, srv, email, actor: s?.actor ?? null, userName: s?.me.user.name ?? null, tenant, other, keepers, users, unique };
 }
 
 const withParams = (path: string, params: Record<string, string>) => path.replace(/:([A-Za-z_]+)/g, (_m, name: string) => params[name] ?? `:${name}`);
@@ -228,6 +282,10 @@ async function send(client: ApiClient, route: RouteCase, path: string, body: unk
     // An endless event stream: read the status and the first bytes, then hang up.
     const answer = await readAnswer(client.agent.get(url) as unknown as Parameters<typeof readAnswer>[0]);
     return { status: answer.status, body: (typeof answer.body === 'object' && answer.body) || { text: answer.body } };
+  }
+  if (route.upload) {
+    const { name, contentType, bytes } = route.upload;
+    return client.agent.post(url).set('x-csrf-token', client.csrf).attach('file', bytes, { filename: name, contentType });
   }
   switch (route.method) {
     case 'GET':
@@ -269,7 +327,8 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
-  console.log(`route matrix: checked ${pairs} (route, role) pairs across ${routes.length} routes and ${demoRoles.length + 1} callers, plus ${foreignCalls} calls with another tenant's record id`);
+  const byOutcome = Object.entries(outcomes).map(([k, n]) => `${n} × ${k}`).join(', ');
+  console.log(`route matrix: checked ${pairs} (route, role) pairs across ${routes.length} routes and ${demoRoles.length + 1} callers (${byOutcome}), plus ${foreignCalls} calls with another tenant's record id`);
   await srv?.close();
 });
 
@@ -327,7 +386,8 @@ for (const route of routes) {
           else {
             const ability = defineAbilityFor(c.actor);
             const subj = caslSubject(access.subject, { ...sample.fields });
-            if (!ability.can('read', subj)) [expected, why] = [404, `may not read this ${access.subject}`];
+            const readAs = access.readAs ?? access.subject;
+            if (!ability.can('read', caslSubject(readAs, { ...sample.fields }))) [expected, why] = [404, `may not read this ${readAs}`];
             else if (!ability.can(access.action, subj)) [expected, why] = [403, `may read but not ${access.action} this ${access.subject}`];
             else [expected, why] = [0, `may ${access.action} this ${access.subject}`];
           }
@@ -346,6 +406,7 @@ for (const route of routes) {
         // GET /api/auth/csrf hands out a new token (and cookie): keep the client's copy in step.
         if (typeof res.body?.csrfToken === 'string') client.csrf = res.body.csrfToken;
         pairs++;
+        outcomes[expected === 0 ? '2xx' : String(expected)] = (outcomes[expected === 0 ? '2xx' : String(expected)] ?? 0) + 1;
         const detail = `${caller.key} → ${route.method} ${path}: expected ${expected === 0 ? '2xx' : expected} (${why}), got ${res.status} ${JSON.stringify(res.body).slice(0, 300)}`;
         if (expected === 0) expect(res.status >= 200 && res.status < 300, detail).toBe(true);
         else {

@@ -13,6 +13,7 @@ export interface ApiUser {
   get: (path: string) => Promise<APIResponse>;
   post: (path: string, data?: unknown) => Promise<APIResponse>;
   put: (path: string, data?: unknown) => Promise<APIResponse>;
+  patch: (path: string, data?: unknown) => Promise<APIResponse>;
   close: () => Promise<void>;
 }
 
@@ -28,6 +29,7 @@ export async function apiAs(email: string): Promise<ApiUser> {
     get: (path) => ctx.get(path),
     post: (path, data = {}) => ctx.post(path, { headers, data }),
     put: (path, data = {}) => ctx.put(path, { headers, data }),
+    patch: (path, data = {}) => ctx.patch(path, { headers, data }),
     close: () => ctx.dispose(),
   };
 }
@@ -86,5 +88,49 @@ export async function acceptedPermit(title: string, tagCodes: string[]): Promise
   } finally {
     await lead.close();
     await authoriser.close();
+  }
+}
+
+/**
+ * An accepted permit (see acceptedPermit) taken live through the API as the crew would: each step
+ * applied by the technician and verified by the second technician (the control room confirming
+ * remote operation is inhibited), the before-work checklist confirmed by the lead, the demo monitor
+ * bump-tested by the authoriser, a passing gas test by the gas tester, and work started by the lead.
+ */
+export async function livePermit(title: string, tagCodes: string[]): Promise<{ id: string; number: string }> {
+  const permit = await acceptedPermit(title, tagCodes);
+  const [lead, authoriser, tech, tech2, control] = await Promise.all(
+    ['lead@oxbow-repair.example', 'authoriser@bramblecote.example', 'tech@oxbow-repair.example', 'tech2@oxbow-repair.example', 'control@bramblecote.example'].map(apiAs),
+  );
+  try {
+    const plan = await ok<{ items: { id: string; kind: string; remotelyOperable: boolean }[] }>(tech.get(`/api/permits/${permit.id}/isolations`));
+    for (const step of plan.items) {
+      const body: Record<string, unknown> = {};
+      if (step.kind === 'block_valve' || step.kind === 'isolator') {
+        const [lock] = (await ok<{ items: { id: string }[] }>(tech.get('/api/locks?state=in_store&pageSize=1'))).items;
+        const [tag] = (await ok<{ items: { id: string }[] }>(tech.get('/api/tags?state=in_store&pageSize=1'))).items;
+        Object.assign(body, { lockId: lock.id, tagId: tag.id });
+      }
+      if (step.kind === 'plug') body.asBuilt = { bentoniteLb: 31, waterLb: 31, lengthIn: 15.5 };
+      await ok(tech.post(`/api/permits/${permit.id}/isolations/${step.id}/apply`, body));
+      if (step.remotelyOperable) await ok(control.post(`/api/permits/${permit.id}/isolations/${step.id}/acknowledge`, { what: 'remote_inhibited' }));
+      await ok(tech2.post(`/api/permits/${permit.id}/isolations/${step.id}/verify`, { method: 'position_checked' }));
+    }
+    const current = await ok<{ state: string; checklist: { key: string }[] }>(lead.get(`/api/permits/${permit.id}`));
+    expect(current.state).toBe('isolated');
+    for (const item of current.checklist) await ok(lead.post(`/api/permits/${permit.id}/checklist`, { list: 'checklist', key: item.key, confirmed: true }));
+    const instruments = await ok<{ items: { id: string; serial: string }[] }>(authoriser.get('/api/instruments'));
+    const monitor = instruments.items.find((i) => i.serial === 'FG4-20731')!;
+    // Two minutes back, so a test timed to the minute on a form still comes after it.
+    await ok(authoriser.patch(`/api/instruments/${monitor.id}`, { lastBumpTestAt: new Date(Date.now() - 2 * 60_000).toISOString() }));
+    const test = await ok<{ verdict: string }>(
+      tech.post(`/api/permits/${permit.id}/gas-tests`, { instrumentId: monitor.id, place: 'work_area', purpose: 'before_work', testedAt: new Date().toISOString(), readings: { o2Pct: 20.9, lelPct: 0, h2sPpm: 0, coPpm: 1 } }),
+      201,
+    );
+    expect(test.verdict).toBe('pass');
+    expect((await transition(lead, permit.id, 'start_work')).state).toBe('live');
+    return permit;
+  } finally {
+    await Promise.all([lead, authoriser, tech, tech2, control].map((u) => u.close()));
   }
 }

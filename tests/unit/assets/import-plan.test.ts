@@ -81,3 +81,13 @@ describe('planAssetImport', () => {
     expect(where(plan(['valve,AB-1']).issues)).toEqual(['2:record_type']);
   });
 });
+
+describe('docs/sample-assets.csv', () => {
+  it('when the sample file is checked against an empty register, then every row is valid', async () => {
+    const { readFileSync } = await import('node:fs');
+    const text = readFileSync(new URL('../../../docs/sample-assets.csv', import.meta.url), 'utf8');
+    const { issues, plan: p } = planAssetImport(parseCsv(text), empty);
+    expect(issues).toEqual([]);
+    expect([p.pipelines.length, p.sites.length, p.points.length]).toEqual([1, 2, 8]);
+  });
+});

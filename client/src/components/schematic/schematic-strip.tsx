@@ -42,6 +42,8 @@ const MARGIN = 30;
 const LANE = 30;
 const SITE_LANE = 18;
 const CHAR_W = 6.8;
+// A thin outline in the background colour keeps a label readable where a leader line crosses it.
+const halo = { strokeWidth: 3, paintOrder: 'stroke', strokeLinejoin: 'round' } as const;
 
 function useWidth(initial: number) {
   const ref = useRef<HTMLDivElement>(null);
@@ -220,10 +222,10 @@ export function SchematicStrip({ pipeline, points, sites, overlays, initialRange
                   {isIso ? <IsolatedMark /> : null}
                 </g>
                 {p.id === selectedId ? <circle cx={px} cy={pipeY} r={17} className="fill-none stroke-signal" strokeWidth={3} /> : null}
-                <text x={x} y={top + 11} textAnchor="middle" fontSize={11.5} fontWeight={700} className={isIso ? 'fill-danger' : 'fill-ink'}>
+                <text x={x} y={top + 11} textAnchor="middle" fontSize={11.5} fontWeight={700} className={`${isIso ? 'fill-danger' : 'fill-ink'} stroke-surface`} {...halo}>
                   {p.tagCode}
                 </text>
-                <text x={x} y={top + 23} textAnchor="middle" fontSize={11} className="fill-ink-soft">
+                <text x={x} y={top + 23} textAnchor="middle" fontSize={11} className="fill-ink-soft stroke-surface" {...halo}>
                   {formatPosition(p.position, unit)}
                 </text>
               </g>

@@ -61,6 +61,7 @@ function csvFromRequest(req: express.Request): string {
       throw AppError.validation('The file is not UTF-8 text. Save it as "CSV UTF-8" and try again.', [{ path: 'file', message: 'Not UTF-8 text.' }]);
     }
   }
+  if (req.is('multipart/form-data')) throw AppError.validation('The upload has no file.', [{ path: 'file', message: 'Choose a CSV file.' }]);
   if (typeof req.body === 'string') return req.body;
   if (req.is('application/json')) return parse(importBodySchema, req.body, 'import').csv;
   throw new AppError('unsupported_media_type', 'Send the CSV as text/csv, as a multipart upload in the field "file", or as JSON { "csv": "…" }.');

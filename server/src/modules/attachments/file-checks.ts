@@ -42,7 +42,7 @@ export async function sniffContentType(bytes: Uint8Array, name: string): Promise
   const found = await fileTypeFromBuffer(bytes);
   if (found) {
     if (allowedSniffed.has(found.mime)) return { ok: true, contentType: found.mime as AttachmentContentType };
-    return { ok: false, message: `Files of this kind (${found.ext}) are not accepted. Attach a photo (JPEG, PNG, WebP, HEIC), a PDF or a CSV file.` };
+    return { ok: false, message: `Files of this kind (${found.ext.toUpperCase()}) are not accepted. Attach a photo (JPEG, PNG, WebP, HEIC), a PDF or a CSV file.` };
   }
   if (/\.csv$/i.test(name)) {
     if (bytes.includes(0)) return { ok: false, message: 'That .csv file contains binary data, not text.' };

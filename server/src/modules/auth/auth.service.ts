@@ -144,7 +144,14 @@ async function claimToken(deps: AppDeps, token: string, kind: TokenRow['kind'], 
 }
 
 export async function acceptInvitation(deps: AppDeps, input: AcceptInvitationInput) {
-  await deps.sequelize.transaction(async (t) => {
+  // The membership it adds is tenant data under row-level security: find the invitation's tenant
+  // first, then claim the token and write everything in that tenant's one transaction.
+  const [invitation] = await deps.sequelize.query<{ tenant_id: string | null }>(`SELECT tenant_id FROM auth_tokens WHERE token_hash = :hash AND kind = 'invite'`, {
+    replacements: { hash: hashToken(input.token) },
+    type: QueryTypes.SELECT,
+  });
+  if (!invitation?.tenant_id) throw AppError.unprocessable('This invitation is not valid or has already been used.');
+  await withTenant(deps.sequelize, invitation.tenant_id, async (t) => {
     const row = await claimToken(deps, input.token, 'invite', t);
     let user = await findUserByEmail(deps.sequelize, row.email, t);
     if (user?.password_hash) {

@@ -20,7 +20,8 @@ import { queueAlert } from './alert-mail';
  *  2. Marks gas tests, vent and plug checks and fire-watch closing checks overdue.
  */
 export async function runScheduler(deps: AppDeps): Promise<{ expired: number; overdue: number }> {
-  const tenants = await deps.sequelize.query<{ id: string }>(`SELECT id FROM tenants ORDER BY id`, { type: QueryTypes.SELECT });
+  // The one owner-run look-up that may list tenants across row-level security (migration 0090).
+  const tenants = await deps.sequelize.query<{ id: string }>(`SELECT id FROM hp_tenant_ids() AS id`, { type: QueryTypes.SELECT });
   let expired = 0;
   let overdue = 0;
   for (const { id: tenantId } of tenants) {

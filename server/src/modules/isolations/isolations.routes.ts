@@ -15,12 +15,12 @@ import type { AppDeps } from '../../deps';
 import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
 import { authorizeType } from '../../lib/authorize';
-import { withTenant } from '../../db/sequelize';
 import { changeFeed } from '../../lib/change-feed';
 import type { CallerContext } from '../permits/permits.service';
 import { getPlan, proposePlan, savePlan } from './isolation-plan.service';
 import { acknowledgeStep, applyStep, removeStep, verifyStep } from './isolation-steps.service';
-import { boardItems, boardQuerySchema } from './board.service';
+import { boardQuerySchema } from './board.service';
+import { boardSnapshot, sendBoardSnapshot } from './board-cache';
 
 export function createIsolationsRouter(deps: AppDeps) {
   const router = Router();
@@ -59,9 +59,7 @@ export function createIsolationsRouter(deps: AppDeps) {
     const { actor, ability } = actorOf(req);
     authorizeType(ability, 'read', 'Board', { tenantId: actor.tenantId }, 'the isolation board');
     const q = parse(boardQuerySchema, req.query, 'query');
-    const now = deps.clock.now();
-    const items = await withTenant(deps.sequelize, actor.tenantId, () => boardItems(deps.sequelize, actor.tenantId, q, now));
-    res.json({ items, total: items.length, generatedAt: now.toISOString() });
+    await sendBoardSnapshot(req, res, await boardSnapshot(deps, actor.tenantId, q));
   });
 
   router.get('/board/stream', async (req, res) => {

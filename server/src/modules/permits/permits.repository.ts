@@ -114,19 +114,23 @@ export async function listPermits(sequelize: Sequelize, tenantId: string, q: Per
   }
   const whereSql = where.join(' AND ');
   const [{ n }] = await sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM permits p WHERE ${whereSql}`, { replacements: r, type: QueryTypes.SELECT });
+  const order = `${sortColumns[q.sort]} ${q.dir === 'asc' ? 'ASC' : 'DESC'}, p.id`;
+  // The page's ids first, from the permits alone (an index walk for the usual orders), then the
+  // joins and the gas-test look-up for those rows only: a deep page no longer sorts and joins
+  // every row before it.
   const items = await sequelize.query<PermitSummary>(
-    `SELECT p.id, p.number, p.state, p.version, p.kinds, p.title, p.pipeline_id AS "pipelineId", pl.name AS "pipelineName",
+    `WITH page AS (SELECT p.id FROM permits p WHERE ${whereSql} ORDER BY ${order} LIMIT :limit OFFSET :offset)
+     SELECT p.id, p.number, p.state, p.version, p.kinds, p.title, p.pipeline_id AS "pipelineId", pl.name AS "pipelineName",
             p.from_position::float8 AS "fromPosition", p.to_position::float8 AS "toPosition", p.valid_from AS "validFrom", p.valid_to AS "validTo",
             p.contractor_organisation_id AS "contractorOrganisationId", o.name AS "contractorName", p.updated_at AS "updatedAt",
             CASE WHEN p.state = 'live' THEN coalesce(
               (SELECT max(g.tested_at) FROM gas_tests g WHERE g.tenant_id = p.tenant_id AND g.permit_id = p.id AND g.verdict = 'pass') + make_interval(mins => p.gas_test_interval_minutes),
               now()) END AS "nextGasTestDue"
-     FROM permits p
+     FROM page
+     JOIN permits p ON p.tenant_id = :tenantId AND p.id = page.id
      JOIN pipelines pl ON pl.tenant_id = p.tenant_id AND pl.id = p.pipeline_id
      JOIN organisations o ON o.tenant_id = p.tenant_id AND o.id = p.contractor_organisation_id
-     WHERE ${whereSql}
-     ORDER BY ${sortColumns[q.sort]} ${q.dir === 'asc' ? 'ASC' : 'DESC'}, p.id
-     LIMIT :limit OFFSET :offset`,
+     ORDER BY ${order}`,
     { replacements: r, type: QueryTypes.SELECT },
   );
   return { items, total: n, page: q.page, pageSize: q.pageSize };

@@ -20,7 +20,7 @@ function Counts({ report }: { report: ImportReport }) {
 
 function Problems({ report }: { report: ImportReport }) {
   return (
-    <div className="overflow-x-auto rounded-card border border-line">
+    <div className="relative overflow-x-auto rounded-card border border-line">
       <table className="w-full text-left text-sm" data-testid="import-errors">
         <caption className="sr-only">Problems found in the file</caption>
         <thead className="bg-danger-soft">

@@ -21,7 +21,7 @@ export function PipelineFacts({ pipeline: p }: { pipeline: PipelineDetail }) {
     ['Runs', `${formatPosition(p.startPosition, p.unit)} to ${formatPosition(p.endPosition, p.unit)}`],
   ];
   return (
-    <dl className="grid gap-x-4 gap-y-2 text-sm sm:grid-cols-[auto_1fr]">
+    <dl className="grid gap-x-4 gap-y-2 text-sm sm:grid-cols-[auto_1fr] xl:grid-cols-[auto_1fr_auto_1fr]">
       {rows.map(([k, v]) => (
         <div key={k} className="contents">
           <dt className="font-semibold">{k}</dt>

@@ -11,7 +11,7 @@ function valveText(p: IsolationPoint) {
 
 export function PointsTable({ pipeline, onEdit }: { pipeline: PipelineDetail; onEdit: (p: IsolationPoint) => void }) {
   return (
-    <div className="overflow-x-auto rounded-card border border-line bg-surface">
+    <div className="relative overflow-x-auto rounded-card border border-line bg-surface">
       <table className="w-full text-left text-sm">
         <caption className="sr-only">Isolation points of {pipeline.name}, in position order</caption>
         <thead className="bg-brand-soft">
@@ -53,7 +53,7 @@ export function SegmentsTable({ pipeline, onShow }: { pipeline: PipelineDetail; 
   const tag = (id: string) => pipeline.points.find((p) => p.id === id)?.tagCode ?? '';
   const unitLabel = pipeline.unit === 'mi' ? 'mi' : 'km';
   return (
-    <div className="overflow-x-auto rounded-card border border-line bg-surface">
+    <div className="relative overflow-x-auto rounded-card border border-line bg-surface">
       <table className="w-full text-left text-sm">
         <caption className="sr-only">Segments between adjacent block valves</caption>
         <thead className="bg-brand-soft">
@@ -82,7 +82,7 @@ export function SegmentsTable({ pipeline, onShow }: { pipeline: PipelineDetail; 
               <td className="px-3 py-2">{s.ventIds.map(tag).join(', ') || 'none'}</td>
               <td className="px-3 py-2">{s.drainIds.map(tag).join(', ') || 'none'}</td>
               <td className="px-3 py-2">
-                {[s.oneWayEnd ? 'a check valve closes one end: it holds one way only' : null, s.remoteEnd ? 'an end valve can be worked from the control room' : null].filter(Boolean).join('; ')}
+                {[s.oneWayEnd ? 'Check valve at an end: holds one way only' : null, s.remoteEnd ? 'Remotely operable end valve' : null].filter(Boolean).join('; ')}
               </td>
               <td className="px-3 py-1 text-right">
                 <Button variant="ghost" onClick={() => onShow([s.from.position, s.to.position])}>

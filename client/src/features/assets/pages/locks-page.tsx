@@ -34,6 +34,10 @@ export default function LocksPage() {
   const ability = useAbility();
   const subject = kind === 'lock' ? 'Lock' : 'Tag';
   const canEdit = ability.can('update', subject);
+  const edit = (next: InventoryItem | 'new') => {
+    setEditing(next);
+    requestAnimationFrame(() => document.getElementById('inventory-panel')?.scrollIntoView({ behavior: 'smooth', block: 'start' }));
+  };
   const set = (patch: Record<string, string | undefined>) => {
     const next = new URLSearchParams(params);
     for (const [k, v] of Object.entries(patch)) {
@@ -56,10 +60,10 @@ export default function LocksPage() {
       { id: 'updated', header: 'Last change', cell: ({ row }) => format(parseISO(row.original.updatedAt), 'd MMM yyyy HH:mm') },
       {
         id: 'actions',
-        header: () => <span className="sr-only">Actions</span>,
+        header: 'Action',
         cell: ({ row }) =>
           canEdit ? (
-            <Button variant="ghost" onClick={() => setEditing(row.original)} aria-label={`Change ${row.original.number}`}>
+            <Button variant="ghost" onClick={() => edit(row.original)} aria-label={`Change ${row.original.number}`}>
               Change
             </Button>
           ) : null,
@@ -75,7 +79,7 @@ export default function LocksPage() {
         subtitle="The numbered padlocks and danger tags of this tenant: where each one is and who holds it. The isolation work puts them on and takes them off."
         actions={
           <Can I="create" a={subject}>
-            <Button onClick={() => setEditing('new')}>Add a {kind}</Button>
+            <Button onClick={() => edit('new')}>Add a {kind}</Button>
           </Can>
         }
       />
@@ -87,6 +91,7 @@ export default function LocksPage() {
             </Button>
           ))}
         </div>
+        <div id="inventory-panel" className="scroll-mt-4" />
         {editing ? (
           <Card>
             <h2 className="mb-3 text-lg font-semibold">{editing === 'new' ? `Add a ${kind}` : `${kindLabel[kind]} ${editing.number}`}</h2>

@@ -110,17 +110,16 @@ export default function PipelinePage() {
           <SchematicStrip key={focus ? focus.join(':') : 'whole'} pipeline={{ ...p }} points={p.points} sites={p.sites} initialRange={focus} />
         </Card>
 
-        <div className="grid gap-4 lg:grid-cols-[2fr_3fr] [&>*]:min-w-0">
-          <Card>
-            <h2 className="mb-3 text-lg font-semibold">Details</h2>
-            <PipelineFacts pipeline={p} />
-          </Card>
-          <section className="flex flex-col gap-2">
-            <h2 className="text-lg font-semibold">Segments between block valves</h2>
-            <p className="text-sm text-ink-soft">Worked out from the valves; they change when a valve is added or moved.</p>
-            {p.segments.length ? <SegmentsTable pipeline={p} onShow={showSection} /> : <EmptyState title="Fewer than two block valves, so no segments yet." />}
-          </section>
-        </div>
+        <Card>
+          <h2 className="mb-3 text-lg font-semibold">Details</h2>
+          <PipelineFacts pipeline={p} />
+        </Card>
+
+        <section className="flex flex-col gap-2">
+          <h2 className="text-lg font-semibold">Segments between block valves</h2>
+          <p className="text-sm text-ink-soft">Worked out from the valves; they change when a valve is added or moved.</p>
+          {p.segments.length ? <SegmentsTable pipeline={p} onShow={showSection} /> : <EmptyState title="Fewer than two block valves, so no segments yet." />}
+        </section>
 
         <section className="flex flex-col gap-2">
           <h2 className="text-lg font-semibold">Isolation points</h2>

@@ -19,6 +19,7 @@ function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckK
   const record = useRecordCheck(permitId);
   const toast = useToast();
   const [wall, setWall] = useState(() => toWall(new Date(), timeZone));
+  const [timeTouched, setTimeTouched] = useState(false);
   const form = useForm<CheckInput, unknown, CheckData>({
     resolver: zodResolver(checkInputSchema),
     defaultValues: { kind, checkedAt: fromWall(toWall(new Date(), timeZone), timeZone), actionTaken: '', notes: '' } as CheckInput,
@@ -29,11 +30,12 @@ function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckK
   const ofKind = (steps.data ?? []).filter((s) => s.kind === kind);
 
   const submit = form.handleSubmit((v) =>
-    record.mutate({ ...v, isolationStepId: v.isolationStepId || undefined, actionTaken: v.actionTaken || undefined, notes: v.notes || undefined } as CheckData, {
+    record.mutate({ ...v, checkedAt: timeTouched ? v.checkedAt : new Date().toISOString(), isolationStepId: v.isolationStepId || undefined, actionTaken: v.actionTaken || undefined, notes: v.notes || undefined } as CheckData, {
       onSuccess: (row) => {
         toast(row.ok ? 'success' : 'error', row.ok ? `${checkKindLabels[kind]} recorded.` : `${checkKindLabels[kind]} recorded: problem reported to the lead and authoriser.`);
         const w = toWall(new Date(), timeZone);
         setWall(w);
+        setTimeTouched(false);
         form.reset({ kind, checkedAt: fromWall(w, timeZone), actionTaken: '', notes: '' } as CheckInput);
       },
       onError: (err) => {
@@ -52,6 +54,7 @@ function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckK
           value={wall}
           onChange={(e) => {
             setWall(e.target.value);
+            setTimeTouched(true);
             form.setValue('checkedAt', fromWall(e.target.value, timeZone));
           }}
           error={errors.checkedAt?.message}

@@ -44,33 +44,35 @@ export function GasTestsSection({ permit }: { permit: PermitLike }) {
   const canTighten = ability.can('update', subject('Permit', { ...permit })) && !['returned_to_service', 'closed', 'cancelled', 'expired'].includes(permit.state);
 
   return (
-    <Card className="flex min-w-0 flex-col gap-4">
-      <h2 className="text-xl font-bold text-brand-strong" id={`gas-${permit.id}`}>
-        Gas tests
-      </h2>
-      <SafetyCaution>Test the atmosphere inside the pipe and around the work before cleaning, before hot work starts and at every repeat interval. Stop the work at any failing reading. </SafetyCaution>
-      {regime.isPending ? (
-        <Loading label="Loading the gas-test regime…" />
-      ) : regime.isError ? (
-        <Notice tone="danger" role="alert">
-          {regime.error.message}
-        </Notice>
-      ) : (
-        <>
-          <Regime r={regime.data} />
-          <div className="flex flex-col gap-2" data-testid="gas-due">
-            <h3 className="text-lg font-semibold">Next due</h3>
-            {permit.state === 'live' ? <DueList due={regime.data.due} kinds={['gas_test']} timeZone={regime.data.timeZone} testId="gas-due-list" /> : <p className="text-sm text-ink-soft">Repeat tests fall due while work is live.</p>}
-          </div>
-          <LimitsTable view={regime.data} />
-          {canTighten ? <TightenLimitsForm permitId={permit.id} view={regime.data} draft={permit.state === 'draft'} /> : null}
-          {canTest ? <RecordGasTestForm permit={permit} limits={regime.data.limits} timeZone={regime.data.timeZone} requireDailyBumpTest={regime.data.requireDailyBumpTest} /> : null}
-          {series.data?.length ? <GasReadingsChart tests={series.data} limits={regime.data.limits} hotWork={regime.data.hotWork} timeZone={regime.data.timeZone} /> : null}
-          <h3 className="text-lg font-semibold">History</h3>
-          <GasTestHistory permitId={permit.id} timeZone={regime.data.timeZone} />
-          {canTest ? <CsvImport permitId={permit.id} timeZone={regime.data.timeZone} /> : null}
-        </>
-      )}
+    <Card className="min-w-0">
+      <div className="flex min-w-0 flex-col gap-4" data-testid="gas-tests-section">
+        <h2 className="text-xl font-bold text-brand-strong" id={`gas-${permit.id}`}>
+          Gas tests
+        </h2>
+        <SafetyCaution>Test the atmosphere inside the pipe and around the work before cleaning, before hot work starts and at every repeat interval. Stop the work at any failing reading. </SafetyCaution>
+        {regime.isPending ? (
+          <Loading label="Loading the gas-test regime…" />
+        ) : regime.isError ? (
+          <Notice tone="danger" role="alert">
+            {regime.error.message}
+          </Notice>
+        ) : (
+          <>
+            <Regime r={regime.data} />
+            <div className="flex flex-col gap-2" data-testid="gas-due">
+              <h3 className="text-lg font-semibold">Next due</h3>
+              {permit.state === 'live' ? <DueList due={regime.data.due} kinds={['gas_test']} timeZone={regime.data.timeZone} testId="gas-due-list" /> : <p className="text-sm text-ink-soft">Repeat tests fall due while work is live.</p>}
+            </div>
+            <LimitsTable view={regime.data} />
+            {canTighten ? <TightenLimitsForm permitId={permit.id} view={regime.data} draft={permit.state === 'draft'} /> : null}
+            {canTest ? <RecordGasTestForm permit={permit} limits={regime.data.limits} timeZone={regime.data.timeZone} requireDailyBumpTest={regime.data.requireDailyBumpTest} /> : null}
+            {series.data?.length ? <GasReadingsChart tests={series.data} limits={regime.data.limits} hotWork={regime.data.hotWork} timeZone={regime.data.timeZone} /> : null}
+            <h3 className="text-lg font-semibold">History</h3>
+            <GasTestHistory permitId={permit.id} timeZone={regime.data.timeZone} />
+            {canTest ? <CsvImport permitId={permit.id} timeZone={regime.data.timeZone} /> : null}
+          </>
+        )}
+      </div>
     </Card>
   );
 }

@@ -35,6 +35,8 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
   const record = useRecordGasTest(permit.id);
   const toast = useToast();
   const [wall, setWall] = useState(() => toWall(new Date(), timeZone));
+  // Untouched, the time field means "now": the moment of recording, not the minute the form opened.
+  const [timeTouched, setTimeTouched] = useState(false);
   const [last, setLast] = useState<GasTestResult | null>(null);
   const live = ['live', 'suspended'].includes(permit.state);
   const form = useForm<GasTestInput, unknown, GasTestData>({
@@ -71,7 +73,7 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
 
   const submit = form.handleSubmit((values) => {
     record.mutate(
-      { ...values, placeNote: values.place === 'other' ? values.placeNote : undefined, notes: values.notes || undefined },
+      { ...values, testedAt: timeTouched ? values.testedAt : new Date().toISOString(), placeNote: values.place === 'other' ? values.placeNote : undefined, notes: values.notes || undefined },
       {
         onSuccess: (result) => {
           setLast(result);
@@ -79,6 +81,7 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
           else toast(result.verdict === 'pass' ? 'success' : 'error', result.verdict === 'pass' ? 'Gas test recorded: pass.' : 'Gas test recorded: FAIL.');
           const w = toWall(new Date(), timeZone);
           setWall(w);
+          setTimeTouched(false);
           form.reset({ ...values, testedAt: fromWall(w, timeZone), readings: { o2Pct: '', lelPct: '', h2sPpm: '', coPpm: '' }, notes: '' });
         },
         onError: (err) => {
@@ -109,6 +112,7 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
           value={wall}
           onChange={(e) => {
             setWall(e.target.value);
+            setTimeTouched(true);
             form.setValue('testedAt', fromWall(e.target.value, timeZone), { shouldValidate: form.formState.isSubmitted });
           }}
           error={errors.testedAt?.message}

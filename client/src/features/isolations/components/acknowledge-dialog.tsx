@@ -4,7 +4,7 @@ import { conditionLabels, type StepCondition } from '@shared/schemas/isolation.s
 import { Button } from '@client/components/ui/button';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
-import { ModalDialog } from '@client/features/permits/components/modal-dialog';
+import { ModalDialog } from '@client/components/ui/dialog';
 import { useStepAction } from '../api/step-mutations';
 
 export type AcknowledgeWhat = AcknowledgeStepInput['what'];

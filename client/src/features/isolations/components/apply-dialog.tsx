@@ -8,7 +8,7 @@ import { Button } from '@client/components/ui/button';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
-import { ModalDialog } from '@client/features/permits/components/modal-dialog';
+import { ModalDialog } from '@client/components/ui/dialog';
 import { isoToWallTime, wallTimeToIso } from '@client/features/permits/lib/zoned-time';
 import type { IsolationStep } from '../api/get-isolation-plan';
 import { useInStore } from '../api/get-inventory';

@@ -1,4 +1,4 @@
-import type { ReactNode } from 'react';
+import { memo, type ReactNode } from 'react';
 import { Link } from 'react-router-dom';
 import { subject } from '@casl/ability';
 import { conditionLabels, stepKindLabels } from '@shared/schemas/isolation.schema';
@@ -10,9 +10,12 @@ import { PermitStateBadge } from '@client/features/permits/components/permit-sta
 import { describeGasDue, formatSpan } from '@client/features/permits/lib/time-left';
 import { formatInZone } from '@client/features/permits/lib/zoned-time';
 import type { BoardItem } from '../api/get-board';
+import { slotClass, slotProps, type VirtualSlot } from './virtual-slot';
 
-interface Props {
+interface Props extends VirtualSlot {
   item: BoardItem;
+  /** The last row of its pipeline closes the pipeline's box. */
+  last: boolean;
   tenantId: string;
   unit: LocationUnit;
   timeZone: string;
@@ -36,16 +39,17 @@ function Cell({ label, children, testId }: { label: string; children: ReactNode;
 const ago = (now: Date, iso: string) => formatSpan(now.getTime() - new Date(iso).getTime());
 
 /** One isolation in place: the point, its lock, the permits relying on it, how long it has been on, what is due. */
-export function BoardRow({ item, tenantId, unit, timeZone, now, onAcknowledge }: Props) {
+export const BoardRow = memo(function BoardRow({ item, last, tenantId, unit, timeZone, now, onAcknowledge, ...slot }: Props) {
   const unacknowledged = !item.controlRoomAckAppliedAt;
   const gas = item.nextGasTestDue ? describeGasDue(now, item.nextGasTestDue) : null;
   return (
     <li
+      {...slotProps(slot)}
       data-testid="board-row"
       data-label={item.label}
       data-permit={item.permit.number}
       data-unacknowledged={unacknowledged ? 'true' : undefined}
-      className={`grid grid-cols-1 gap-x-4 gap-y-2 border-t border-line px-3 py-3 [contain-intrinsic-size:auto_10rem] [content-visibility:auto] sm:grid-cols-2 ${boardGrid} ${
+      className={`${slotClass} grid grid-cols-1 gap-x-4 gap-y-2 border-x border-t border-line px-3 py-3 sm:grid-cols-2 ${boardGrid} ${last ? 'rounded-b-card border-b' : ''} ${
         unacknowledged ? 'border-l-8 border-l-caution bg-caution-soft' : 'bg-surface'
       }`}
     >
@@ -121,4 +125,4 @@ export function BoardRow({ item, tenantId, unit, timeZone, now, onAcknowledge }:
       </Cell>
     </li>
   );
-}
+});

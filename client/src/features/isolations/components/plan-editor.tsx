@@ -1,4 +1,5 @@
 import { useEffect, useId, useState } from 'react';
+import { MUD_PLUG_CAUTION } from '@shared/calc';
 import { conditionForKind, conditionLabels, stepKindLabels } from '@shared/schemas/isolation.schema';
 import { pointKindLabels, type LocationUnit } from '@shared/schemas/assets.schema';
 import { formatPosition } from '@shared/assets/format';
@@ -8,11 +9,12 @@ import { Button } from '@client/components/ui/button';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
-import { ModalDialog } from '@client/features/permits/components/modal-dialog';
+import { ModalDialog } from '@client/components/ui/dialog';
 import type { IsolationStep } from '../api/get-isolation-plan';
 import { useProposePlan, useSavePlan } from '../api/plan-mutations';
 import { errorsByRow, kindForPoint, moveRow, newRowKey, rowsFromProposal, rowsFromSteps, toPlanStep, type DraftRow, type RowErrors } from '../lib/plan-draft';
 import { numberOrUndefined, tempStepSchema } from '../lib/step-forms';
+import { plugTargets } from './plug-record';
 import { StepKindTag } from './step-badges';
 
 export interface EditorPermit {
@@ -170,6 +172,7 @@ export function PlanEditor({ permit, steps, points, insideDiameterIn, unit }: Pr
                     ))}
                   </ul>
                 ) : null}
+                {row.kind === 'plug' ? <PlugSummary diameterIn={row.plugDiameterIn} /> : null}
                 {row.kind === 'plug' ? (
                   <div className="max-w-xs">
                     <TextField
@@ -216,6 +219,12 @@ export function PlanEditor({ permit, steps, points, insideDiameterIn, unit }: Pr
       ) : (
         <p className="rounded-card border border-dashed border-line bg-paper px-3 py-4 text-sm text-ink-soft">No steps yet. Propose a plan for the cut, or add points below.</p>
       )}
+
+      {rows.some((r) => r.kind === 'plug') ? (
+        <p className="text-sm text-ink-soft" data-testid="mud-plug-caution">
+          {MUD_PLUG_CAUTION}
+        </p>
+      ) : null}
 
       <div className="grid gap-4 lg:grid-cols-2">
         <AddRegisterPoint points={points.filter((p) => !inPlan.has(p.id))} unit={unit} onAdd={addPoint} />
@@ -308,5 +317,17 @@ function AddTemporaryStep({ insideDiameterIn, defaultPosition, onAdd }: { inside
         Add temporary step
       </Button>
     </fieldset>
+  );
+}
+
+/** What the crew will need for this plug, worked from the diameter as the planner types it. */
+function PlugSummary({ diameterIn }: { diameterIn: number | undefined }) {
+  const t = plugTargets(diameterIn);
+  if (!t) return null;
+  const n = (v: number) => Number(v.toFixed(1));
+  return (
+    <p className="text-sm" data-testid="plan-plug-targets">
+      To build: {n(t.bentoniteLb)} lb bentonite, {n(t.waterLb)} lb water, {n(t.plugLengthIn)} in long, about {t.mudBalls} balls.
+    </p>
   );
 }

@@ -7,7 +7,7 @@ import { Button } from '@client/components/ui/button';
 import { TextAreaField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
-import { ModalDialog } from '@client/features/permits/components/modal-dialog';
+import { ModalDialog } from '@client/components/ui/dialog';
 import type { IsolationStep } from '../api/get-isolation-plan';
 import { useStepAction } from '../api/step-mutations';
 import { appliedLater } from '../lib/step-rules';

@@ -6,7 +6,7 @@ import { Button } from '@client/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
-import { ModalDialog } from '@client/features/permits/components/modal-dialog';
+import { ModalDialog } from '@client/components/ui/dialog';
 import { formatInZone } from '@client/features/permits/lib/zoned-time';
 import type { IsolationStep } from '../api/get-isolation-plan';
 import { useStepAction } from '../api/step-mutations';

@@ -12,8 +12,8 @@ const REOPEN_MS = 5_000;
 
 /**
  * Keeps the board's query fresh from GET /api/board/stream: each "change" refetches (debounced), and
- * a "ready" after a dropped link refetches too, since changes made meanwhile were never heard.
- * The browser reconnects by itself (the server asks for 2 s between tries).
+ * so does each "ready" (after a drop, or the first time). The browser reconnects by itself (the
+ * server asks for 2 s between tries); when it gives up, the hook opens a new stream after 5 s.
  */
 export function useBoardStream(): StreamStatus {
   const qc = useQueryClient();
@@ -25,7 +25,6 @@ export function useBoardStream(): StreamStatus {
     let debounce: ReturnType<typeof setTimeout> | undefined;
     let reopen: ReturnType<typeof setTimeout> | undefined;
     let firstPending = 0;
-    let dropped = false;
 
     const refresh = () => {
       const now = Date.now();
@@ -45,14 +44,12 @@ export function useBoardStream(): StreamStatus {
       source = es;
       es.addEventListener('ready', () => {
         setStatus('live');
-        if (dropped) {
-          dropped = false;
-          refresh();
-        }
+        // After a drop, changes made meanwhile were never heard. The first "ready" refetches too: the
+        // board may have been read just before the server started listening.
+        refresh();
       });
       es.addEventListener('change', refresh);
       es.onerror = () => {
-        dropped = true;
         setStatus('reconnecting');
         if (es.readyState === EventSource.CLOSED) {
           es.close();

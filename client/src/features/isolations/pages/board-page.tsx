@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { useMemo, useState } from 'react';
 import { useSearchParams } from 'react-router-dom';
 import { Button } from '@client/components/ui/button';
 import { Notice, SafetyCaution } from '@client/components/ui/notice';
@@ -10,7 +10,7 @@ import { boardPermitStates, useBoard, type BoardFilters as Filters, type BoardIt
 import { AcknowledgeDialog } from '../components/acknowledge-dialog';
 import { BoardFilters } from '../components/board-filters';
 import { LiveIndicator } from '../components/live-indicator';
-import { PipelineBoard } from '../components/pipeline-board';
+import { BoardList } from '../components/board-list';
 import { useBoardStream } from '../hooks/use-board-stream';
 
 function filtersFrom(params: URLSearchParams): Filters {
@@ -19,17 +19,6 @@ function filtersFrom(params: URLSearchParams): Filters {
     pipelineId: params.get('pipelineId') || undefined,
     permitState: boardPermitStates.find((s) => s === state),
   };
-}
-
-/** Items arrive ordered by pipeline and position; keep that order inside each pipeline. */
-function byPipeline(items: BoardItem[]) {
-  const groups = new Map<string, { name: string; items: BoardItem[] }>();
-  for (const item of items) {
-    const g = groups.get(item.pipelineId) ?? { name: item.pipelineName, items: [] };
-    g.items.push(item);
-    groups.set(item.pipelineId, g);
-  }
-  return [...groups.entries()];
 }
 
 export default function BoardPage() {
@@ -51,8 +40,8 @@ export default function BoardPage() {
     setParams(p, { replace: true });
   };
 
-  const items = board.data?.items ?? [];
-  const unacknowledged = items.filter((i) => !i.controlRoomAckAppliedAt).length;
+  const items = useMemo(() => board.data?.items ?? [], [board.data]);
+  const unacknowledged = useMemo(() => items.filter((i) => !i.controlRoomAckAppliedAt).length, [items]);
 
   return (
     <>
@@ -82,9 +71,7 @@ export default function BoardPage() {
         ) : !items.length ? (
           <EmptyState title="No isolations in place.">{filters.pipelineId || filters.permitState ? 'None match these filters.' : 'Isolations appear here as soon as they are applied.'}</EmptyState>
         ) : (
-          byPipeline(items).map(([pipelineId, g]) => (
-            <PipelineBoard key={pipelineId} pipelineId={pipelineId} pipelineName={g.name} items={g.items} tenantId={tenantId} unit={unit} timeZone={timeZone} now={now} onAcknowledge={setAcknowledging} />
-          ))
+          <BoardList items={items} tenantId={tenantId} unit={unit} timeZone={timeZone} now={now} onAcknowledge={setAcknowledging} />
         )}
       </div>
       {acknowledging ? (

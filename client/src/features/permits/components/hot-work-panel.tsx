@@ -3,6 +3,7 @@ import { subject } from '@casl/ability';
 import { fireWatchEnd } from '@shared/calc';
 import { useAbility } from '@client/lib/ability';
 import { Button } from '@client/components/ui/button';
+import { ModalDialog } from '@client/components/ui/dialog';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import type { PermitDetail } from '../api/get-permit';
@@ -10,7 +11,6 @@ import { useRecordHotWorkStopped } from '../api/record-hot-work-stopped';
 import { formatInZone } from '../lib/zoned-time';
 import { formatSpan } from '../lib/time-left';
 import { useNow } from '../hooks/use-now';
-import { ModalDialog } from './modal-dialog';
 
 /** Hot work: the contractor lead records when it stopped, and the fire watch runs from then. */
 export function HotWorkPanel({ permit, timeZone }: { permit: PermitDetail; timeZone: string }) {

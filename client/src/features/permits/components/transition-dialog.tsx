@@ -4,13 +4,13 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { transitionInputSchema, type PermitAction } from '@shared/schemas/permit.schema';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
+import { ModalDialog } from '@client/components/ui/dialog';
 import { TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import type { PermitDetail } from '../api/get-permit';
 import { useTransitionPermit } from '../api/transition-permit';
 import { eventExplanations, irreversibleNotes } from '../lib/transition-copy';
 import { isoToWallTime, wallTimeToIso } from '../lib/zoned-time';
-import { ModalDialog } from './modal-dialog';
 
 type DialogValues = { reason?: string; password?: string; signedName?: string; validTo?: string };
 

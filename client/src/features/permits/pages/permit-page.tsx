@@ -104,7 +104,8 @@ export default function PermitPage() {
         </aside>
         <div className="flex min-w-0 flex-col gap-4 lg:order-1 lg:col-span-2">
           <JobSection permit={p} />
-          <PlaceSection permit={p} unit={unit} />
+          {/* The isolation plan section draws the line with the isolation envelope, so Place leaves its strip out. */}
+          <PlaceSection permit={p} unit={unit} showStrip={false} />
           <IsolationPlanSection permit={p} />
           <CrewSection permit={p} />
           <ChecklistSection permit={p} timeZone={timeZone} />

@@ -1,0 +1,42 @@
+// `npm run bench`: the performance run on the scale dataset (build it first with `npm run seed:scale`).
+// Starts the database of `npm start` if it is not running (and stops it again at the end), builds the
+// client when dist/ is missing, then runs scripts/bench/run.ts. Not part of `npm test`.
+import { existsSync, mkdirSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { ensureNodeModules } from './lib/deps.mjs';
+import { ensureAppRole, ensureRoleAndDatabase, keptSecret, startCluster, withCredentials } from './lib/pg.mjs';
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
+const dataDir = join(root, '.data');
+const pgPort = Number(process.env.PGPORT ?? 54329);
+// SCALE_DATABASE picks another database of the same cluster (e.g. a small trial dataset).
+const database = process.env.SCALE_DATABASE ?? 'holdpoint_scale';
+if (!/^[a-z_][a-z0-9_]*$/.test(database)) throw new Error(`SCALE_DATABASE must be a plain lower-case name, not ${database}`);
+
+ensureNodeModules(root);
+mkdirSync(dataDir, { recursive: true });
+const cluster = startCluster({ root: join(dataDir, 'pg'), port: pgPort });
+let status = 1;
+try {
+  const exists = cluster.psql(`SELECT 1 FROM pg_database WHERE datname = '${database}'`).trim() === '1';
+  if (!exists) throw new Error(`There is no ${database} database yet: run \`npm run seed:scale\` first.`);
+  const ownerUrl = ensureRoleAndDatabase(cluster, { role: 'holdpoint', password: keptSecret(join(dataDir, 'db-password')), database });
+  // As `npm start`: the server logs in as the app role (row-level security binds it), migrations run as the owner.
+  const appUrl = withCredentials(ownerUrl, ensureAppRole(cluster, { role: 'holdpoint_app', password: keptSecret(join(dataDir, 'db-app-password')) }));
+  if (!existsSync(join(root, 'dist/client/index.html'))) {
+    console.log('[bench] building the client');
+    if (spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: root, stdio: 'inherit' }).status !== 0) throw new Error('the client build failed');
+  }
+  status = spawnSync(process.execPath, ['--import', 'tsx', 'scripts/bench/run.ts'], {
+    cwd: root,
+    stdio: 'inherit',
+    env: { ...process.env, DATABASE_URL: appUrl, DATABASE_OWNER_URL: ownerUrl, DATA_DIR: dataDir },
+  }).status ?? 1;
+} catch (err) {
+  console.error(`[bench] ${err.message}`);
+} finally {
+  if (cluster.startedHere) cluster.stop();
+}
+process.exit(status);
