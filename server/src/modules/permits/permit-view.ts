@@ -19,12 +19,12 @@ export async function permitSignatures(sequelize: Sequelize, tenantId: string, p
 }
 
 /** When the next repeat gas test is due on a live permit (null otherwise). */
-export async function nextGasTestDue(sequelize: Sequelize, permit: PermitRow): Promise<string | null> {
+export async function nextGasTestDue(sequelize: Sequelize, permit: PermitRow, now: Date): Promise<string | null> {
   if (permit.state !== 'live') return null;
   const [row] = await sequelize.query<{ last: Date | null }>(
     `SELECT max(tested_at) AS last FROM gas_tests WHERE tenant_id = :tenantId AND permit_id = :permitId AND verdict = 'pass'`,
     { replacements: { tenantId: permit.tenantId, permitId: permit.id }, type: QueryTypes.SELECT },
   );
-  if (!row.last) return new Date().toISOString();
+  if (!row.last) return now.toISOString();
   return new Date(new Date(row.last).getTime() + permit.gasTestIntervalMinutes * 60_000).toISOString();
 }

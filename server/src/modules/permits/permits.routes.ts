@@ -34,7 +34,7 @@ export function createPermitsRouter(deps: AppDeps) {
       const actions = await availableActions(deps, c, permit);
       const timeline = await permitTimeline(sequelize, c.actor.tenantId, id);
       const signatures = await permitSignatures(sequelize, c.actor.tenantId, id);
-      const gasDue = await nextGasTestDue(sequelize, permit);
+      const gasDue = await nextGasTestDue(sequelize, permit, deps.clock.now());
       return { ...permit, actions, timeline, signatures, nextGasTestDue: gasDue };
     });
 

@@ -199,6 +199,10 @@ export async function availableActions(deps: AppDeps, caller: CallerContext, per
 export async function transitionPermit(deps: AppDeps, caller: CallerContext, id: string, input: TransitionInput) {
   const { tenantId } = caller.actor;
   const event = input.event as PermitEvent;
+  // Role first: someone who may not fire the event hears 403, not a remark about their signature.
+  await withTenant(deps.sequelize, tenantId, async () =>
+    authorizeRecord(caller.ability, eventAction[event], 'Permit', await findPermit(deps.sequelize, tenantId, id), 'permit'),
+  );
   if (signedEvents.includes(event)) {
     const details = [];
     if (!input.signedName || input.signedName.trim().toLowerCase() !== caller.user.name.trim().toLowerCase())
@@ -249,7 +253,8 @@ export async function applyTransition(
       sets.push('contractor_lead_user_id = coalesce(contractor_lead_user_id, :userId)', 'holder_user_id = :userId');
       break;
     case 'acknowledge_return':
-      sets.push('control_room_ack_at = :now', 'control_room_ack_by = :userId');
+      // A repeat acknowledgement is recorded in the trail but keeps the first one on the permit.
+      sets.push('control_room_ack_at = coalesce(control_room_ack_at, :now)', 'control_room_ack_by = coalesce(control_room_ack_by, :userId)');
       break;
     case 'start_work':
     case 'resume':
