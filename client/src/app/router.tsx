@@ -1,5 +1,4 @@
 import { createBrowserRouter, type RouteObject } from 'react-router-dom';
-import { AppLayout } from './layout';
 
 const page = (load: () => Promise<{ default: React.ComponentType }>) => async () => ({ Component: (await load()).default });
 
@@ -27,5 +26,6 @@ export const router = createBrowserRouter([
   { path: '/forgot-password', lazy: page(() => import('@client/features/auth/pages/forgot-password')) },
   { path: '/reset-password', lazy: page(() => import('@client/features/auth/pages/reset-password')) },
   { path: '/accept-invitation', lazy: page(() => import('@client/features/auth/pages/accept-invitation')) },
-  { path: '/', element: <AppLayout />, children: appRoutes },
+  // The signed-in shell is its own chunk, so the sign-in page loads without it.
+  { path: '/', lazy: async () => ({ Component: (await import('./layout')).AppLayout }), children: appRoutes },
 ]);
