@@ -85,14 +85,14 @@ async function createPermits(db: pg.Client, tenantId: string, pipelineId: string
       await db.query<{ id: string; number: string; title: string; created_at: Date }>(
         `INSERT INTO permits (tenant_id, number, state, version, kinds, title, scope, pipeline_id, from_position, to_position, method_statement, hazards, checklist, walkdown,
            valid_from, valid_to, contractor_organisation_id, contractor_lead_user_id, requester_user_id, created_at, updated_at)
-         SELECT $1, format('PW-%s-%s', $2::int, lpad(($3::int - $4::int + g)::text, 4, '0')), $5, $6, '{cold_work}', format('Bench %s: recoat a girth weld', g), 'Bench permit.', $7, $8, $8,
+         SELECT $1, format('PW-%s-%s', $2::int, lpad(n::text, greatest(4, length(n::text)), '0')), $5, $6, '{cold_work}', format('Bench %s: recoat a girth weld', g), 'Bench permit.', $7, $8, $8,
                 'Recoat by hand.', 'Residual vapour.',
                 coalesce((SELECT jsonb_agg(jsonb_build_object('key', key, 'label', label, 'required', 'all' = ANY (required_for) OR 'cold_work' = ANY (required_for), 'confirmed', false) ORDER BY sort)
                           FROM checklist_templates WHERE tenant_id = $1 AND stage = 'before_work'), '[]'::jsonb),
                 coalesce((SELECT jsonb_agg(jsonb_build_object('key', key, 'label', label, 'required', 'all' = ANY (required_for) OR 'cold_work' = ANY (required_for), 'confirmed', false) ORDER BY sort)
                           FROM checklist_templates WHERE tenant_id = $1 AND stage = 'walkdown'), '[]'::jsonb),
                 date_trunc('milliseconds', now()), date_trunc('milliseconds', now()) + interval '10 hours', $9, $10, $10, date_trunc('milliseconds', now()), date_trunc('milliseconds', now())
-         FROM generate_series(1, $4::int) g
+         FROM generate_series(1, $4::int) g, LATERAL (SELECT $3::int - $4::int + g AS n) num
          RETURNING id, number, title, created_at`,
         [tenantId, year, last, n, state, state === 'draft' ? 1 : 2, pipelineId, at.toFixed(3), org.id, lead.id],
       )

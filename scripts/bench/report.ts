@@ -27,6 +27,8 @@ export interface LoadResult {
   errors: number;
   bytesPerResponse: number;
   statusCodes: Record<string, number>;
+  /** The server's peak resident memory during this run (null for the floor). */
+  rssPeakMb: number | null;
 }
 
 /** Nearest-rank percentile of an unsorted list (copied, not changed). */
@@ -56,8 +58,9 @@ const fmt = (v: number, unit: string) => {
 
 export function printLoad(r: LoadResult) {
   const errors = r.non2xx || r.errors ? `  (${r.non2xx} non-2xx, ${r.errors} errors: ${JSON.stringify(r.statusCodes)})` : '';
+  const rss = r.rssPeakMb === null ? '' : `  RSS ${r.rssPeakMb.toFixed(0)} MB`;
   console.log(
-    `  ${r.name.padEnd(44)} p50 ${fmt(r.p50, 'ms').padStart(7)}  p95 ${fmt(r.p95, 'ms').padStart(7)}  p99 ${fmt(r.p99, 'ms').padStart(7)}  ${fmt(r.rps, 'req/s').padStart(10)}  ${String(r.requests).padStart(6)} req  ${(r.bytesPerResponse / 1024).toFixed(0).padStart(6)} KB/resp${errors}`,
+    `  ${r.name.padEnd(44)} p50 ${fmt(r.p50, 'ms').padStart(7)}  p95 ${fmt(r.p95, 'ms').padStart(7)}  p99 ${fmt(r.p99, 'ms').padStart(7)}  ${fmt(r.rps, 'req/s').padStart(10)}  ${String(r.requests).padStart(6)} req  ${(r.bytesPerResponse / 1024).toFixed(0).padStart(6)} KB/resp${rss}${errors}`,
   );
 }
 

@@ -51,9 +51,13 @@ export async function withTenant<T>(sequelize: Sequelize, tenantId: string, fn: 
   });
 }
 
-/** A pg pool for libraries that need one (the session store); errors on idle clients are logged, not fatal. */
+/**
+ * A pg pool for libraries that need one (the session store); errors on idle clients are logged, not fatal.
+ * Its commits do not wait for the disk: the session store writes on every request (the idle timer),
+ * and losing the last moment's writes in a crash only signs someone out a little early.
+ */
 export function createPgPool(databaseUrl: string, logger: Logger, max = 4): pg.Pool {
-  const pool = new pg.Pool({ connectionString: databaseUrl, max, connectionTimeoutMillis: 3_000, idleTimeoutMillis: 10_000 });
+  const pool = new pg.Pool({ connectionString: databaseUrl, max, connectionTimeoutMillis: 3_000, idleTimeoutMillis: 10_000, options: '-c synchronous_commit=off' });
   pool.on('error', (err) => logger.warn({ err: err.message }, 'idle database client failed'));
   return pool;
 }
