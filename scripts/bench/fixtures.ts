@@ -35,7 +35,8 @@ export async function loadFixtures(db: pg.Client, counts: { drafts: number; requ
   ))!;
   const live = (await first<{ n: number }>(db, `SELECT count(*)::int AS n FROM isolation_steps WHERE tenant_id = $1 AND status IN ('applied','verified')`, [tenantId]))!;
   const ids = async (sql: string, params: unknown[]) => (await db.query<{ id: string }>(sql, params)).rows.map((r) => r.id);
-  // A fixed sample (not random()), so two runs ask for the same permits.
+  // Fixed samples (not random()), so two runs ask for the same permits; the acknowledgements the
+  // stream test makes go to isolations the control room has not acknowledged yet, where there are any.
   const pagePermitIds = await ids(`SELECT id FROM permits WHERE tenant_id = $1 ORDER BY md5(id::text) LIMIT 500`, [tenantId]);
   const gasPermitIds = await ids(
     `SELECT p.id FROM permits p JOIN organisations o ON o.tenant_id = p.tenant_id AND o.id = p.contractor_organisation_id
@@ -45,7 +46,7 @@ export async function loadFixtures(db: pg.Client, counts: { drafts: number; requ
   const ackSteps = (
     await db.query<{ permit_id: string; id: string }>(
       `SELECT s.permit_id, s.id FROM isolation_steps s JOIN permits p ON p.tenant_id = s.tenant_id AND p.id = s.permit_id
-       WHERE s.tenant_id = $1 AND s.status = 'verified' AND p.state = 'live' ORDER BY md5(s.id::text) LIMIT 10`,
+       WHERE s.tenant_id = $1 AND s.status = 'verified' AND p.state = 'live' ORDER BY s.control_room_ack_applied_at IS NOT NULL, md5(s.id::text) LIMIT 10`,
       [tenantId],
     )
   ).rows.map((r) => ({ permitId: r.permit_id, stepId: r.id }));

@@ -16,7 +16,12 @@ function isDatabaseDown(err: unknown): boolean {
 
 /** Maps every error to the one JSON shape; never leaks stacks or SQL. */
 export function errorHandler(): ErrorRequestHandler {
-  return (err, req, res, _next) => {
+  return (err, req, res, next) => {
+    // An error after the answer went out (a late session save under load) can only be logged.
+    if (res.headersSent) {
+      req.log?.warn({ err: (err as Error)?.message }, 'error after the response was sent');
+      return next(err);
+    }
     let appErr: AppError;
     const status = (err as { status?: number; statusCode?: number }).status ?? (err as { statusCode?: number }).statusCode;
     const type = (err as { type?: string }).type;
