@@ -1,5 +1,6 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import { z } from 'zod';
+import type { BoardItem } from '@shared/types/board';
 import { uuidSchema } from '@shared/schemas/common.schema';
 
 export const boardQuerySchema = z.object({
@@ -8,31 +9,7 @@ export const boardQuerySchema = z.object({
 });
 export type BoardQuery = z.infer<typeof boardQuerySchema>;
 
-export interface BoardItem {
-  stepId: string;
-  status: 'applied' | 'verified';
-  pipelineId: string;
-  pipelineName: string;
-  pointId: string | null;
-  label: string;
-  position: number;
-  kind: string;
-  condition: string;
-  lockNumber: string | null;
-  tagNumber: string | null;
-  appliedAt: string;
-  appliedByName: string;
-  verifiedAt: string | null;
-  verifiedByName: string | null;
-  remotelyOperable: boolean;
-  remoteAckAt: string | null;
-  controlRoomAckAppliedAt: string | null;
-  plugBuiltAt: string | null;
-  /** The permit this step belongs to, with its work range (for the envelope on the strip). */
-  permit: { id: string; number: string; state: string; fromPosition: number; toPosition: number };
-  permits: { id: string; number: string; state: string }[];
-  nextGasTestDue: string | null;
-}
+export type { BoardItem } from '@shared/types/board';
 
 // Timestamps written by PostgreSQL exactly as JSON.stringify writes a JS Date (UTC, milliseconds, "Z").
 const isoUtc = (col: string) => `to_char(${col} AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`;

@@ -1,7 +1,9 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import type { PermitState } from '@shared/permit/states';
-import type { StepCondition, StepKind } from '@shared/schemas/isolation.schema';
+import type { BoardItem } from '@shared/types/board';
 import { api, qs } from '@client/lib/api-client';
+
+export type { BoardItem, BoardPermitRef } from '@shared/types/board';
 
 /** The permit states the board can be filtered by: those in which isolations can be on. */
 export const boardPermitStates = ['accepted', 'isolated', 'live', 'suspended', 'work_complete', 'cancelled'] as const satisfies readonly PermitState[];
@@ -10,39 +12,6 @@ export type BoardPermitState = (typeof boardPermitStates)[number];
 export interface BoardFilters {
   pipelineId?: string;
   permitState?: BoardPermitState;
-}
-
-export interface BoardPermitRef {
-  id: string;
-  number: string;
-  state: PermitState;
-}
-
-/** One isolation in place now, as GET /api/board answers. */
-export interface BoardItem {
-  stepId: string;
-  status: 'applied' | 'verified';
-  pipelineId: string;
-  pipelineName: string;
-  pointId: string | null;
-  label: string;
-  position: number;
-  kind: StepKind;
-  condition: StepCondition;
-  lockNumber: string | null;
-  tagNumber: string | null;
-  appliedAt: string;
-  appliedByName: string;
-  verifiedAt: string | null;
-  verifiedByName: string | null;
-  remotelyOperable: boolean;
-  remoteAckAt: string | null;
-  controlRoomAckAppliedAt: string | null;
-  plugBuiltAt: string | null;
-  permit: BoardPermitRef & { fromPosition: number; toPosition: number };
-  /** Every permit holding the same point (group lockout). */
-  permits: BoardPermitRef[];
-  nextGasTestDue: string | null;
 }
 
 export interface Board {
