@@ -1,5 +1,5 @@
 import { useId, useState } from 'react';
-import { permitStateLabels, permitStates, workKindLabels, workKinds } from '@shared/permit/states';
+import { permitStateLabels, permitStates, workKindLabels, workKinds, type PermitState } from '@shared/permit/states';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { Button } from '@client/components/ui/button';
 import type { PermitsParams } from '../api/get-permits';
@@ -25,10 +25,16 @@ export function PermitsFilters({ query, onChange, onClear }: Props) {
   const [open, setOpen] = useState(false);
   const active = [query.q, query.pipelineId, query.contractorOrganisationId, query.kind, query.from, query.to, query.state?.length ? 'state' : undefined].filter(Boolean).length;
   const panelId = useId();
-  const chosen = query.state ?? [];
+  // The address bar is the truth, but the router applies it in a transition that can lag on a slow
+  // tablet; the boxes show the tap at once and give way as soon as the address catches up.
+  const fromAddress = query.state ?? [];
+  const basis = fromAddress.join(',');
+  const [tapped, setTapped] = useState<{ basis: string; states: PermitState[] } | null>(null);
+  const chosen = tapped?.basis === basis ? tapped.states : fromAddress;
   const set = (patch: Record<string, string | undefined>) => onChange({ ...patch, page: undefined });
-  const toggleState = (s: string, on: boolean) => {
+  const toggleState = (s: PermitState, on: boolean) => {
     const next = on ? [...chosen, s] : chosen.filter((x) => x !== s);
+    setTapped({ basis, states: next });
     set({ state: next.length ? next.join(',') : undefined });
   };
 
