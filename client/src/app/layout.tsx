@@ -9,7 +9,7 @@ import { visibleNav } from './navigation';
 
 function Logo() {
   return (
-    <Link to="/" className="flex items-center gap-2 text-white no-underline" aria-label="Holdpoint home">
+    <Link to="/" className="flex min-h-11 items-center gap-2 text-white no-underline" aria-label="Holdpoint home">
       <svg viewBox="0 0 32 32" className="size-8" aria-hidden>
         <rect width="32" height="32" rx="6" fill="#10252f" />
         <rect x="6" y="13" width="20" height="6" fill="#f2efe6" />

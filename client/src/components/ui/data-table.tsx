@@ -46,7 +46,7 @@ export function DataTable<T>({ caption, columns, data, isLoading, page, onPage, 
                   return (
                     <th key={h.id} scope="col" className="px-3 py-2 font-semibold" aria-sort={dir === 'asc' ? 'ascending' : dir === 'desc' ? 'descending' : undefined}>
                       {sortable ? (
-                        <button type="button" className="min-h-11 font-semibold" onClick={h.column.getToggleSortingHandler()}>
+                        <button type="button" className="min-h-11 min-w-11 text-left font-semibold" onClick={h.column.getToggleSortingHandler()}>
                           {flexRender(h.column.columnDef.header, h.getContext())} {dir === 'asc' ? '▲' : dir === 'desc' ? '▼' : ''}
                         </button>
                       ) : (

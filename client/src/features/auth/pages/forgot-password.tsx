@@ -26,7 +26,7 @@ export default function ForgotPasswordPage() {
           </Button>
         </form>
       )}
-      <Link to="/sign-in" className="mt-4 inline-block text-sm">
+      <Link to="/sign-in" className="mt-4 inline-flex min-h-11 items-center text-sm">
         Back to sign-in
       </Link>
     </AuthFrame>
