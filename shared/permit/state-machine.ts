@@ -175,7 +175,9 @@ export function decide(event: PermitEvent, facts: PermitFacts, actor: ActorFacts
         const ageMs = now.getTime() - facts.gas.lastPassAt.getTime();
         if (ageMs > facts.gas.windowMinutes * 60_000)
           reasons.push(`The last passing gas test is ${Math.ceil(ageMs / 60_000)} minutes old; a new one is needed within ${facts.gas.windowMinutes} minutes of starting.`);
-        if (facts.gas.lastFailAt && facts.gas.lastFailAt > facts.gas.lastPassAt) reasons.push('The latest gas test failed; record a passing test first.');
+        // A fail at the same time as the last pass counts against it: times are typed to the minute, so
+        // the two cannot be told apart and the unsafe reading must win.
+        if (facts.gas.lastFailAt && facts.gas.lastFailAt >= facts.gas.lastPassAt) reasons.push('The latest gas test failed; record a passing test first.');
       }
       {
         const open = facts.checklist.filter((c) => c.required && !c.confirmed);

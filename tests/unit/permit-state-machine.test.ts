@@ -253,6 +253,10 @@ describe.each([
     expect(refused(go({ gas: { lastPassAt: at(-20), lastFailAt: at(-5) } }))).toEqual(['The latest gas test failed; record a passing test first.']);
   });
 
+  it('when a gas test failed at the same time as the last pass, then it is refused (the unsafe reading wins a tie)', () => {
+    expect(refused(go({ gas: { lastPassAt: at(-5), lastFailAt: at(-5) } }))).toEqual(['The latest gas test failed; record a passing test first.']);
+  });
+
   it('when a required checklist item is open, then it is named; an optional one does not block', () => {
     const checklist = [
       { key: 'extinguisher_ready', label: 'Fire extinguisher at the work site', required: true, confirmed: false },
