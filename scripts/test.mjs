@@ -1,5 +1,6 @@
 // `npm test`: bootstraps what is missing, then type-check, lint, unit + API tests (Vitest, real
-// PostgreSQL), the production build and the browser tests (Playwright on Debian's Chromium).
+// PostgreSQL), the production build, the client's bundle budgets and the browser tests (Playwright on
+// Debian's Chromium).
 // Prints one closing line "N passed, N failed" summed over every runner.
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
@@ -77,6 +78,18 @@ stage('api', () => {
   return vitestCounts(file);
 });
 stage('build', () => check('npx', ['vite', 'build', '--logLevel', 'warn']));
+// The client's JavaScript budgets, read from the manifest of the build above (`npm test -- bundle` on its own
+// needs a build in dist/): each PASS/FAIL line of the script counts, as summed on its closing line.
+stage('bundle', () => {
+  const r = spawnSync('node', ['scripts/check-bundle-budget.mjs'], { cwd: root, encoding: 'utf8' });
+  process.stdout.write(r.stdout ?? '');
+  process.stderr.write(r.stderr ?? '');
+  const counts = /^(\d+) passed, (\d+) failed\s*$/m.exec(r.stdout ?? '');
+  if (!counts) throw new Error(`the budget script printed no counts (exit ${r.status})`);
+  const result = { passed: Number(counts[1]), failed: Number(counts[2]) };
+  if (r.status !== 0 && !result.failed) result.failed = 1;
+  return result;
+});
 stage('e2e', () => {
   const file = join(out, 'e2e.json');
   run('npx', ['playwright', 'test'], { PLAYWRIGHT_JSON_OUTPUT_NAME: file });

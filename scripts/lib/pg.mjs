@@ -1,7 +1,7 @@
 // Dependency-free helpers that install, start and stop a PostgreSQL cluster run by the
 // `postgres` system user. Used by `npm start`, `npm test` and the Vitest global set-up,
 // so it must work before node_modules exists.
-import { execFileSync, spawnSync } from 'node:child_process';
+import { execFile, execFileSync, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, chownSync, chmodSync, readFileSync, writeFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { randomBytes } from 'node:crypto';
@@ -40,6 +40,14 @@ function asPostgres(cmd, args, opts = {}) {
   const isRoot = process.getuid && process.getuid() === 0;
   const [file, argv] = isRoot ? ['runuser', ['-u', 'postgres', '--', cmd, ...args]] : [cmd, args];
   return execFileSync(file, argv, { cwd: '/', stdio: opts.stdio ?? 'pipe', input: opts.input, env: { ...process.env, LC_ALL: 'C.UTF-8' } });
+}
+
+/** As asPostgres, without blocking the event loop (a test keeps serving requests while the cluster stops). */
+function asPostgresAsync(cmd, args) {
+  const [file, argv] = isRootUser() ? ['runuser', ['-u', 'postgres', '--', cmd, ...args]] : [cmd, args];
+  return new Promise((resolve, reject) =>
+    execFile(file, argv, { cwd: '/', env: { ...process.env, LC_ALL: 'C.UTF-8' } }, (err, stdout, stderr) => (err ? reject(new Error(`${err.message}\n${stderr}`)) : resolve(stdout))),
+  );
 }
 
 function ownedDir(dir) {
@@ -92,11 +100,11 @@ export function startCluster({ root, port: requestedPort, fsync = true }) {
     // Already up (a second `npm start`, or another command): use the port it actually listens on.
     const pid = readFileSync(join(data, 'postmaster.pid'), 'utf8').split('\n');
     if (pid[3] && Number(pid[3]) !== port) port = Number(pid[3]);
-  } else {
-    const opts = [`-c listen_addresses=127.0.0.1`, `-p ${port}`, `-c unix_socket_directories=${sock}`];
-    if (!fsync) opts.push('-c fsync=off', '-c synchronous_commit=off', '-c full_page_writes=off');
-    asPostgres(join(bin, 'pg_ctl'), ['-D', data, '-l', join(data, 'server.log'), '-w', '-t', '30', '-o', opts.join(' '), 'start']);
   }
+  const opts = [`-c listen_addresses=127.0.0.1`, `-p ${port}`, `-c unix_socket_directories=${sock}`];
+  if (!fsync) opts.push('-c fsync=off', '-c synchronous_commit=off', '-c full_page_writes=off');
+  const startArgs = ['-D', data, '-l', join(data, 'server.log'), '-w', '-t', '30', '-o', opts.join(' '), 'start'];
+  if (!running) asPostgres(join(bin, 'pg_ctl'), startArgs);
   const psql = (sql, db = 'postgres') =>
     asPostgres(join(bin, 'psql'), ['-h', sock, '-p', String(port), '-U', 'postgres', '-d', db, '-v', 'ON_ERROR_STOP=1', '-qAt'], { input: sql }).toString();
   const stop = () => {
@@ -106,7 +114,11 @@ export function startCluster({ root, port: requestedPort, fsync = true }) {
       /* already stopped */
     }
   };
-  return { bin, data, sock, port, psql, stop, startedHere: !running };
+  // Stop and start again with the same data and settings, for tests that restart PostgreSQL under load.
+  // mode: 'fast' (sessions terminated, a clean shutdown) or 'immediate' (no shutdown checkpoint, as a crash).
+  const stopServer = (mode = 'fast') => asPostgresAsync(join(bin, 'pg_ctl'), ['-D', data, '-m', mode, '-w', 'stop']);
+  const startServer = () => asPostgresAsync(join(bin, 'pg_ctl'), startArgs);
+  return { bin, data, sock, port, psql, stop, stopServer, startServer, startedHere: !running };
 }
 
 function isRootUser() {

@@ -35,6 +35,10 @@ export async function startTestDatabase(projectRoot) {
     templateUrl,
     appRole: TEST_APP_ROLE,
     superuserPsql: cluster.psql,
+    /** Stops the PostgreSQL server of this cluster, data kept (resolves once it is down). */
+    stopServer: cluster.stopServer,
+    /** Starts it again on the same port (resolves once it accepts connections). */
+    startServer: cluster.startServer,
     stop() {
       cluster.stop();
       rmSync(root, { recursive: true, force: true });

@@ -12,6 +12,29 @@ test('the sign-in page shows the product name in Noto Sans, the font shipped wit
   expect(loaded).toBe(true);
 });
 
+test('when someone sends the sign-in form empty, then each field says what is wrong and takes the focus; fixing a field clears its message; a demo account fills both', async ({ page }) => {
+  await page.goto('/sign-in');
+  const email = page.getByLabel('E-mail');
+  const password = page.getByLabel('Password', { exact: true });
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await expect(page.getByText('Enter a valid e-mail address.')).toBeVisible();
+  await expect(page.getByText('Password is required.')).toBeVisible();
+  await expect(email).toHaveAttribute('aria-invalid', 'true');
+  await expect(password).toHaveAttribute('aria-invalid', 'true');
+  await expect(email).toBeFocused();
+
+  await email.fill('  Auditor@Bramblecote.Example ');
+  await expect(page.getByText('Enter a valid e-mail address.')).toHaveCount(0);
+  await expect(email).not.toHaveAttribute('aria-invalid', 'true');
+  await expect(page.getByText('Password is required.')).toBeVisible();
+
+  await page.getByRole('button', { name: /control@bramblecote\.example/ }).click();
+  await expect(email).toHaveValue('control@bramblecote.example');
+  await expect(password).toHaveValue('holdpoint-demo');
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await expect(page.getByTestId('who')).toBeVisible();
+});
+
 test('an unknown address inside the app shows the not-found page', async ({ page }) => {
   await signIn(page, 'auditor@bramblecote.example');
   await page.goto('/no/such/page');

@@ -3,7 +3,7 @@ import { Link, NavLink, Navigate, Outlet, useLocation, useNavigate } from 'react
 import { roleLabels } from '@shared/abilities/roles';
 import { useMe } from '@client/features/auth/api/get-me';
 import { useSignOut, useSwitchTenant } from '@client/features/auth/api/auth-mutations';
-import { useAbility } from '@client/lib/ability';
+import { AbilityProvider, useAbility } from '@client/lib/ability';
 import { Loading } from '@client/components/ui/page';
 import { visibleNav } from './navigation';
 
@@ -20,7 +20,17 @@ function Logo() {
   );
 }
 
+// The CASL rules matter only inside the signed-in shell: providing them here keeps CASL out of the entry
+// chunk, so the sign-in page loads without it.
 export function AppLayout() {
+  return (
+    <AbilityProvider>
+      <Shell />
+    </AbilityProvider>
+  );
+}
+
+function Shell() {
   const { data: me, isPending } = useMe();
   const ability = useAbility();
   const location = useLocation();

@@ -2,7 +2,6 @@ import { useEffect, type ReactNode } from 'react';
 import { QueryClientProvider } from '@tanstack/react-query';
 import { queryClient } from '@client/lib/query-client';
 import { setUnauthenticatedHandler } from '@client/lib/api-client';
-import { AbilityProvider } from '@client/lib/ability';
 import { ToastProvider } from '@client/components/ui/toast';
 import { getMeQueryOptions } from '@client/features/auth/api/get-me';
 
@@ -12,9 +11,7 @@ export function AppProviders({ children }: { children: ReactNode }) {
   }, []);
   return (
     <QueryClientProvider client={queryClient}>
-      <AbilityProvider>
-        <ToastProvider>{children}</ToastProvider>
-      </AbilityProvider>
+      <ToastProvider>{children}</ToastProvider>
     </QueryClientProvider>
   );
 }

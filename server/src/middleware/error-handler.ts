@@ -11,7 +11,10 @@ function isDatabaseDown(err: unknown): boolean {
   const e = err as { code?: string; original?: { code?: string }; parent?: { code?: string }; message?: string };
   const code = e?.original?.code ?? e?.parent?.code ?? e?.code;
   if (code && ['ECONNREFUSED', 'ECONNRESET', '57P01', '57P02', '57P03', '08006', '08003', '08001'].includes(code)) return true;
-  return /Connection terminated|connection to server|ECONNREFUSED|Operation timeout|ResourceRequest timed out/i.test(e?.message ?? '');
+  // "not queryable": the next query of a transaction whose connection died when PostgreSQL stopped (pg gives it no code).
+  return /Connection terminated|connection to server|ECONNREFUSED|Operation timeout|ResourceRequest timed out|is not queryable|timeout exceeded when trying to connect/i.test(
+    e?.message ?? '',
+  );
 }
 
 /** Maps every error to the one JSON shape; never leaks stacks or SQL. */

@@ -2,7 +2,7 @@ import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { Link, Navigate, useNavigate, useSearchParams } from 'react-router-dom';
 import { useQuery } from '@tanstack/react-query';
-import { signInInputSchema, type SignInInput } from '@shared/schemas/auth.schema';
+import { signInInputSchema, type SignInInput } from '@shared/schemas/sign-in.schema';
 import { api, ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
 import { TextField } from '@client/components/ui/field';
@@ -66,7 +66,7 @@ export default function SignInPage() {
         <Button type="submit" busy={signIn.isPending}>
           Sign in
         </Button>
-        <Link to="/forgot-password" className="text-sm">
+        <Link to="/forgot-password" className="inline-flex min-h-11 items-center self-start text-sm">
           Forgot your password?
         </Link>
       </form>
@@ -80,8 +80,8 @@ export default function SignInPage() {
                   type="button"
                   className="min-h-11 w-full rounded-md px-2 text-left hover:bg-brand-soft"
                   onClick={() => {
-                    form.setValue('email', email);
-                    form.setValue('password', 'holdpoint-demo');
+                    form.setValue('email', email, { shouldValidate: form.formState.isSubmitted });
+                    form.setValue('password', 'holdpoint-demo', { shouldValidate: form.formState.isSubmitted });
                   }}
                 >
                   <span className="font-medium">{email}</span> <span className="text-ink-soft">— {role}</span>
