@@ -92,6 +92,23 @@ export async function acceptedPermit(title: string, tagCodes: string[]): Promise
 }
 
 /**
+ * The demo's in-date four-gas monitor (FG4-20731), bump-tested today as the authoriser records it on
+ * the Instruments page, so a gas test may be recorded with it. Opens its own session unless given one.
+ */
+export async function bumpTestedMonitor(authoriser?: ApiUser): Promise<{ id: string; serial: string }> {
+  const user = authoriser ?? (await apiAs('authoriser@bramblecote.example'));
+  try {
+    const instruments = await ok<{ items: { id: string; serial: string }[] }>(user.get('/api/instruments'));
+    const monitor = instruments.items.find((i) => i.serial === 'FG4-20731')!;
+    // Two minutes back, so a test timed to the minute on a form still comes after it.
+    await ok(user.patch(`/api/instruments/${monitor.id}`, { lastBumpTestAt: new Date(Date.now() - 2 * 60_000).toISOString() }));
+    return monitor;
+  } finally {
+    if (!authoriser) await user.close();
+  }
+}
+
+/**
  * An accepted permit (see acceptedPermit) taken live through the API as the crew would: each step
  * applied by the technician and verified by the second technician (the control room confirming
  * remote operation is inhibited), the before-work checklist confirmed by the lead, the demo monitor
@@ -119,10 +136,7 @@ export async function livePermit(title: string, tagCodes: string[]): Promise<{ i
     const current = await ok<{ state: string; checklist: { key: string }[] }>(lead.get(`/api/permits/${permit.id}`));
     expect(current.state).toBe('isolated');
     for (const item of current.checklist) await ok(lead.post(`/api/permits/${permit.id}/checklist`, { list: 'checklist', key: item.key, confirmed: true }));
-    const instruments = await ok<{ items: { id: string; serial: string }[] }>(authoriser.get('/api/instruments'));
-    const monitor = instruments.items.find((i) => i.serial === 'FG4-20731')!;
-    // Two minutes back, so a test timed to the minute on a form still comes after it.
-    await ok(authoriser.patch(`/api/instruments/${monitor.id}`, { lastBumpTestAt: new Date(Date.now() - 2 * 60_000).toISOString() }));
+    const monitor = await bumpTestedMonitor(authoriser);
     const test = await ok<{ verdict: string }>(
       tech.post(`/api/permits/${permit.id}/gas-tests`, { instrumentId: monitor.id, place: 'work_area', purpose: 'before_work', testedAt: new Date().toISOString(), readings: { o2Pct: 20.9, lelPct: 0, h2sPpm: 0, coPpm: 1 } }),
       201,

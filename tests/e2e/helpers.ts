@@ -1,4 +1,4 @@
-import { expect, type Page } from '@playwright/test';
+import { expect, type Browser, type Locator, type Page } from '@playwright/test';
 
 export const DEMO_PASSWORD = 'holdpoint-demo';
 
@@ -12,4 +12,61 @@ export async function signIn(page: Page, email: string, password = DEMO_PASSWORD
 
 export async function shot(page: Page, name: string) {
   await page.screenshot({ path: `docs/screenshots/${name}.png`, fullPage: true });
+}
+
+/** Each person in a browser context of their own, as on separate machines. */
+export async function signedInPage(browser: Browser, email: string) {
+  const context = await browser.newContext();
+  const page = await context.newPage();
+  await signIn(page, email);
+  return page;
+}
+
+/** A screenshot for the user guide: what is on the screen (not the whole page), with `target` scrolled into view. */
+export async function guideShot(page: Page, name: string, target?: Locator) {
+  if (target) await target.scrollIntoViewIfNeeded();
+  await page.screenshot({ path: `docs/screenshots/guide-${name}.png` });
+}
+
+/** The wall-clock time in a time zone, as a datetime-local field takes it (yyyy-MM-ddTHH:mm). */
+export function wallTime(at: Date, timeZone: string) {
+  const parts = Object.fromEntries(
+    new Intl.DateTimeFormat('en-GB', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' })
+      .formatToParts(at)
+      .map((p) => [p.type, p.value]),
+  );
+  return `${parts.year}-${parts.month}-${parts.day}T${parts.hour}:${parts.minute}`;
+}
+
+/** Opens a permit action from the "What you can do now" list, lets `fill` complete its dialog, and confirms it. */
+export async function takeAction(page: Page, action: string, fill?: (dialog: Locator) => Promise<void>) {
+  await page.getByTestId('permit-state').first().waitFor();
+  await page.getByRole('button', { name: action, exact: true }).click();
+  const dialog = page.getByRole('dialog');
+  await expect(dialog).toBeVisible();
+  if (fill) await fill(dialog);
+  await dialog.getByRole('button', { name: new RegExp(`^(Sign: )?${action.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}$`) }).click();
+  await expect(dialog).toHaveCount(0);
+}
+
+/** Fills a signing dialog: the password again and the signer's name as shown. */
+export const signAs = (name: string, password = DEMO_PASSWORD) => async (dialog: Locator) => {
+  await dialog.getByLabel('Your password').fill(password);
+  await dialog.getByLabel(`Type your name as it appears: ${name}`).fill(name);
+};
+
+/**
+ * The mail `to` received with this subject, from the development mailbox the e2e server runs
+ * (the outbox worker delivers within a few seconds, so the page is read again until it is there).
+ */
+export async function mailTo(browser: Browser, to: string, subject: string | RegExp) {
+  const mailbox = await browser.newPage();
+  const mail = mailbox.locator('article').filter({ hasText: `To ${to}` }).filter({ has: mailbox.getByRole('heading', { name: subject }) });
+  await expect(async () => {
+    await mailbox.goto('/dev/mail');
+    await expect(mail.first()).toBeVisible({ timeout: 1_000 });
+  }).toPass({ timeout: 20_000 });
+  const text = await mail.first().innerText();
+  await mailbox.close();
+  return text;
 }

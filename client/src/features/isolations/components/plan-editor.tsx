@@ -88,21 +88,20 @@ export function PlanEditor({ permit, steps, points, insideDiameterIn, unit }: Pr
     const sent = rows;
     setGeneral([]);
     setRowErrors({});
-    save.mutate(
-      { version: permit.version, steps: sent.map(toPlanStep) },
-      {
-        onSuccess: (plan) => {
-          setRows(rowsFromSteps(plan.items));
-          setDirty(false);
-          toast('success', `Plan saved with ${plan.items.length} step${plan.items.length === 1 ? '' : 's'}.`);
-        },
-        onError: (err) => {
-          if (err instanceof ApiError && err.details.length) {
-            const placed = errorsByRow(sent, err.details);
-            setRowErrors(placed.rows);
-            setGeneral([err.message, ...placed.general.filter((m) => m !== err.message)]);
-          } else setGeneral([err.message]);
-        },
+    // The promise, not mutate's callbacks: the saved plan has new step ids, so this editor is remounted
+    // (its key) before mutate's own onSuccess would run, and the confirmation would never show.
+    save.mutateAsync({ version: permit.version, steps: sent.map(toPlanStep) }).then(
+      (plan) => {
+        setRows(rowsFromSteps(plan.items));
+        setDirty(false);
+        toast('success', `Plan saved with ${plan.items.length} step${plan.items.length === 1 ? '' : 's'}.`);
+      },
+      (err: Error) => {
+        if (err instanceof ApiError && err.details.length) {
+          const placed = errorsByRow(sent, err.details);
+          setRowErrors(placed.rows);
+          setGeneral([err.message, ...placed.general.filter((m) => m !== err.message)]);
+        } else setGeneral([err.message]);
       },
     );
   };
