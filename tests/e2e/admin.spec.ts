@@ -1,17 +1,12 @@
-import { expect, test, type Page } from '@playwright/test';
+import { expect, test } from '@playwright/test';
 import { format, subDays } from 'date-fns';
-import { shot, signIn } from './helpers';
+import { noSideScroll, shot, signIn } from './helpers';
 
 // The invitation journey crosses three browser pages and a mail worker: give it room on a busy machine.
 test.describe.configure({ timeout: 180_000 });
 
 const invitee = `ellis.marr.${Date.now().toString(36)}@fenwick-survey.example`;
 const inviteePassword = 'slate-harbour-lantern-6';
-
-const noSideScroll = async (page: Page) => {
-  const { scroll, width } = await page.evaluate(() => ({ scroll: document.documentElement.scrollWidth, width: window.innerWidth }));
-  expect(scroll, 'no horizontal page scrolling').toBeLessThanOrEqual(width);
-};
 
 test('the sign-in page', async ({ page }) => {
   await page.goto('/sign-in');

@@ -1,22 +1,9 @@
-import { expect, test, type Browser, type Page } from '@playwright/test';
+import { expect, test } from '@playwright/test';
 import { acceptedPermit } from './api-helpers';
-import { shot, signIn } from './helpers';
+import { noSideScroll, shot, signedInPage } from './helpers';
 
 const TECH = 'tech@oxbow-repair.example';
 const CONTROL = 'control@bramblecote.example';
-
-/** Each person in a browser context of their own, as on two machines. */
-async function signedInPage(browser: Browser, email: string) {
-  const context = await browser.newContext();
-  const page = await context.newPage();
-  await signIn(page, email);
-  return page;
-}
-
-const noSideScroll = async (page: Page) => {
-  const { scroll, width } = await page.evaluate(() => ({ scroll: document.documentElement.scrollWidth, width: window.innerWidth }));
-  expect(scroll, 'no horizontal page scrolling').toBeLessThanOrEqual(width);
-};
 
 let permit: { id: string; number: string };
 

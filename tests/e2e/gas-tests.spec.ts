@@ -1,23 +1,10 @@
-import { expect, test, type Browser, type Page } from '@playwright/test';
+import { expect, test } from '@playwright/test';
 import { livePermit } from './api-helpers';
-import { shot, signIn } from './helpers';
+import { noSideScroll, shot, signedInPage } from './helpers';
 
 const TESTER = 'tech@oxbow-repair.example';
 const CONTROL = 'control@bramblecote.example';
 const AUTHORISER = 'authoriser@bramblecote.example';
-
-/** Each person in a browser context of their own, as on two machines. */
-async function signedInPage(browser: Browser, email: string, viewport = { width: 1280, height: 800 }) {
-  const context = await browser.newContext({ viewport });
-  const page = await context.newPage();
-  await signIn(page, email);
-  return page;
-}
-
-const noSideScroll = async (page: Page) => {
-  const { scroll, width } = await page.evaluate(() => ({ scroll: document.documentElement.scrollWidth, width: window.innerWidth }));
-  expect(scroll, 'no horizontal page scrolling').toBeLessThanOrEqual(width);
-};
 
 let permit: { id: string; number: string };
 

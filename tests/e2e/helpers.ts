@@ -14,9 +14,15 @@ export async function shot(page: Page, name: string) {
   await page.screenshot({ path: `docs/screenshots/${name}.png`, fullPage: true });
 }
 
+/** The page does not scroll sideways (field use on tablets and phones). */
+export async function noSideScroll(page: Page) {
+  const { scroll, width } = await page.evaluate(() => ({ scroll: document.documentElement.scrollWidth, width: window.innerWidth }));
+  expect(scroll, 'no horizontal page scrolling').toBeLessThanOrEqual(width);
+}
+
 /** Each person in a browser context of their own, as on separate machines. */
-export async function signedInPage(browser: Browser, email: string) {
-  const context = await browser.newContext();
+export async function signedInPage(browser: Browser, email: string, viewport = { width: 1280, height: 800 }) {
+  const context = await browser.newContext({ viewport });
   const page = await context.newPage();
   await signIn(page, email);
   return page;

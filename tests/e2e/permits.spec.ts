@@ -1,17 +1,12 @@
 import { readFile } from 'node:fs/promises';
 import { expect, test, type Browser, type Page } from '@playwright/test';
 import { addDays, format } from 'date-fns';
-import { DEMO_PASSWORD, shot, signIn } from './helpers';
+import { DEMO_PASSWORD, noSideScroll, shot, signedInPage, signIn } from './helpers';
 
 const LEAD = 'lead@oxbow-repair.example';
 const AUTHORISER = 'authoriser@bramblecote.example';
 const ADMIN = 'admin@bramblecote.example';
 const LINE = 'BM-10 Cedar Run Lateral';
-
-const noSideScroll = async (page: Page) => {
-  const { scroll, width } = await page.evaluate(() => ({ scroll: document.documentElement.scrollWidth, width: window.innerWidth }));
-  expect(scroll, 'no horizontal page scrolling').toBeLessThanOrEqual(width);
-};
 
 /** The demo seed has the Cedar Run lateral; a database seeded without it gets it through the API, as an admin would. */
 async function ensureDemoLine(browser: Browser) {
@@ -33,13 +28,6 @@ async function ensureDemoLine(browser: Browser) {
     expect(created.status(), await created.text()).toBe(201);
   }
   await context.close();
-}
-
-async function signedInPage(browser: Browser, email: string) {
-  const context = await browser.newContext();
-  const page = await context.newPage();
-  await signIn(page, email);
-  return page;
 }
 
 const dialog = (page: Page) => page.getByRole('dialog');
