@@ -30,7 +30,9 @@ const stopDb = () => {
   console.log('[start] PostgreSQL stopped');
 };
 
-const env = { ...process.env, DATABASE_URL: appUrl, DATABASE_OWNER_URL: ownerUrl, DATA_DIR: dataDir, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development', DEV_MAILBOX: process.env.SMTP_URL ? 'off' : 'on' };
+// Without SMTP_URL the demo keeps its mail in the development mailbox (/dev/mail, signed-in people see their own).
+const devMailbox = process.env.DEV_MAILBOX ?? (process.env.SMTP_URL ? 'off' : 'on');
+const env = { ...process.env, DATABASE_URL: appUrl, DATABASE_OWNER_URL: ownerUrl, DATA_DIR: dataDir, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development', DEV_MAILBOX: devMailbox };
 const run = (args) => spawnSync(process.execPath, args, { cwd: root, env: { ...env, DATABASE_URL: ownerUrl }, stdio: 'inherit' });
 
 try {
@@ -54,7 +56,13 @@ console.log(`
     tech@oxbow-repair.example        isolation technician and gas tester
     auditor@bramblecote.example      auditor
     authoriser@harlowridge.example   authoriser, second tenant
-  Mail sent by the demo: http://127.0.0.1:${port}/dev/mail
+${
+  devMailbox === 'on' && env.NODE_ENV !== 'production'
+    ? `  Development mailbox is ON (DEV_MAILBOX=on): mail is not sent but kept in memory. Sign in, then open
+    http://127.0.0.1:${port}/dev/mail to read the mail sent to you (a tenant admin also sees their tenant's).
+    DEV_MAILBOX=off turns it off; SMTP_URL then sends real mail.`
+    : `  Development mailbox is off: ${process.env.SMTP_URL ? 'mail goes out through SMTP_URL' : 'no SMTP_URL either, so mail waits in the outbox'}.`
+}
   Ctrl-C stops the server and its database; 'npm run stop' stops a database left running.
 `);
 const finish = (code) => {

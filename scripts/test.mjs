@@ -56,7 +56,7 @@ function playwrightCounts(file) {
 try {
   ensureNodeModules(root);
   ensurePostgres();
-  ensureAptPackages(['chromium', 'python3-fluids']);
+  ensureAptPackages(['chromium', 'python3-fluids', 'poppler-utils']);
 } catch (err) {
   console.error(`[test] bootstrap failed: ${err.message}`);
   console.log('0 passed, 1 failed');

@@ -10,6 +10,7 @@ import { sessionMiddleware } from './middleware/session';
 import { csrfProtection } from './middleware/csrf';
 import { authenticate } from './middleware/authenticate';
 import { idempotency } from './middleware/idempotency';
+import { storableInput } from './middleware/validate';
 import { createHealthRouter } from './modules/health/health.routes';
 import { createAuthRouter, type AuthLimits } from './modules/auth/auth.routes';
 import { featureRouters } from './modules';
@@ -25,7 +26,7 @@ export interface AppOptions {
 export function createApp(deps: AppDeps, options: AppOptions = {}) {
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  app.set('trust proxy', deps.config.TRUST_PROXY.length ? deps.config.TRUST_PROXY : false);
   app.set('query parser', 'simple');
 
   app.use(
@@ -58,7 +59,14 @@ export function createApp(deps: AppDeps, options: AppOptions = {}) {
   );
 
   const api = Router();
+  // API answers hold personal and tenant data: no cache keeps them. The board (ETag, revalidated) and
+  // file downloads set their own.
+  api.use((_req, res, next) => {
+    res.setHeader('Cache-Control', 'no-store');
+    next();
+  });
   api.use(express.json({ limit: '100kb', strict: true }));
+  api.use(storableInput());
   api.use(createHealthRouter(deps));
   api.use(sessionMiddleware(deps));
   api.use(csrfProtection(deps.config.SESSION_SECRET));
@@ -69,7 +77,8 @@ export function createApp(deps: AppDeps, options: AppOptions = {}) {
   api.use(notFoundApi());
   app.use('/api', api);
 
-  if (options.devMailbox) app.use('/dev/mail', createDevMailRouter(options.devMailbox));
+  // The development mailbox shows mail with sign-in and reset links: only when switched on, never in production.
+  if (options.devMailbox && deps.config.DEV_MAILBOX === 'on' && deps.config.NODE_ENV !== 'production') app.use('/dev/mail', createDevMailRouter(deps, options.devMailbox));
 
   const dist = resolve(deps.config.CLIENT_DIST);
   if (existsSync(join(dist, 'index.html'))) {

@@ -25,9 +25,12 @@ async function main() {
   const logger = createLogger(config.LOG_LEVEL);
   let devMailbox: DevMailbox | null = null;
   let smtpUrl = config.SMTP_URL;
-  if (config.DEV_MAILBOX === 'on' && config.NODE_ENV !== 'production') {
+  if (config.DEV_MAILBOX === 'on' && config.NODE_ENV === 'production') {
+    logger.warn('DEV_MAILBOX=on is ignored in production: mail goes out through SMTP_URL');
+  } else if (config.DEV_MAILBOX === 'on') {
     devMailbox = await startDevMailbox(0);
     smtpUrl = `smtp://127.0.0.1:${devMailbox.port}`;
+    logger.warn({ path: '/dev/mail' }, 'development mailbox is on (DEV_MAILBOX=on): mail is kept in memory, not sent; signed-in people read their own mail at /dev/mail');
   }
   const sequelize = createSequelize(config.DATABASE_URL, logger);
   if (config.DATABASE_OWNER_URL) {

@@ -1,10 +1,6 @@
 /**
- * A small RFC 4180 CSV reader and writer. No CSV package is installed; callers depend on the
- * `CsvParser` type, not on this implementation, so a library parser can be dropped in behind it.
- *
- * Reading accepts: a UTF-8 byte-order mark, CRLF / LF / CR line ends, quoted fields holding commas,
- * quotes ("" inside quotes) and line breaks. A record that is entirely empty (a blank line) is skipped.
- * Row numbers count records as a spreadsheet shows them: the header is row 1.
+ * CSV writing and the shapes a CSV reader answers with. Reading is papaparse's job, in
+ * `read-csv.ts`, kept apart so that pages which only write or guard cells do not load the parser.
  */
 
 export interface CsvParseError {
@@ -16,94 +12,11 @@ export interface CsvParseResult {
   /** Each record with its spreadsheet row number (header = 1). */
   records: { row: number; cells: string[] }[];
   errors: CsvParseError[];
+  /** The delimiter the file uses: ',' unless it was found to be ';', tab or '|'. */
+  delimiter: string;
 }
 
 export type CsvParser = (text: string) => CsvParseResult;
-
-const BOM = '\uFEFF';
-
-export const parseCsv: CsvParser = (input) => {
-  const text = input.startsWith(BOM) ? input.slice(1) : input;
-  const records: CsvParseResult['records'] = [];
-  const errors: CsvParseError[] = [];
-  let cells: string[] = [];
-  let cell = '';
-  let row = 1;
-  let quoted = false;
-  // After a closing quote only a delimiter or line end may follow.
-  let afterQuote = false;
-  let recordBroken = false;
-  let i = 0;
-
-  const endCell = () => {
-    cells.push(cell);
-    cell = '';
-    afterQuote = false;
-  };
-  const endRecord = () => {
-    endCell();
-    const blank = cells.length === 1 && cells[0] === '';
-    if (!blank && !recordBroken) records.push({ row, cells });
-    // A blank line is still a row in a spreadsheet, so it still counts.
-    row += 1;
-    cells = [];
-    recordBroken = false;
-  };
-
-  while (i < text.length) {
-    const ch = text[i];
-    if (quoted) {
-      if (ch === '"') {
-        if (text[i + 1] === '"') {
-          cell += '"';
-          i += 2;
-          continue;
-        }
-        quoted = false;
-        afterQuote = true;
-        i += 1;
-        continue;
-      }
-      cell += ch;
-      i += 1;
-      continue;
-    }
-    if (ch === ',') {
-      endCell();
-      i += 1;
-      continue;
-    }
-    if (ch === '\r' || ch === '\n') {
-      endRecord();
-      i += ch === '\r' && text[i + 1] === '\n' ? 2 : 1;
-      continue;
-    }
-    if (afterQuote) {
-      if (!recordBroken) errors.push({ row, message: 'Text follows a closing quote; a quoted value must end at a comma or the end of the line.' });
-      recordBroken = true;
-      cell += ch;
-      i += 1;
-      continue;
-    }
-    if (ch === '"' && cell === '') {
-      quoted = true;
-      i += 1;
-      continue;
-    }
-    if (ch === '"') {
-      if (!recordBroken) errors.push({ row, message: 'A quote appears inside an unquoted value; wrap the whole value in quotes and double the inner quote ("").' });
-      recordBroken = true;
-    }
-    cell += ch;
-    i += 1;
-  }
-  if (quoted) {
-    errors.push({ row, message: 'A quoted value is never closed; the file ends inside quotes.' });
-    return { records, errors };
-  }
-  if (cell !== '' || cells.length > 0) endRecord();
-  return { records, errors };
-};
 
 export type CsvValue = string | number | boolean | null | undefined;
 

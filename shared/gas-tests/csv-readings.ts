@@ -1,12 +1,12 @@
 /**
  * Reads a multi-gas monitor's CSV log into gas readings: which column holds what, and every row
  * either valid (time and four readings, judged against the permit's limits) or invalid with its
- * reasons. Parsing the CSV itself is shared/csv's job. Pure: the server runs it for the preview
+ * reasons. Parsing the CSV itself is shared/csv's job (papaparse). Pure: the server runs it for the preview
  * and for the import, so both say the same.
  */
 import type { CsvParseResult } from '../csv/csv';
 import { CalcInputError, assessAtmosphere, type AssessOptions, type AtmosphereAssessment, type AtmosphereLimits } from '../calc';
-import { wallTimeToInstant } from './zoned-day';
+import { wallTimeToInstant } from '../time/zone';
 
 export const readingColumns = ['timestamp', 'o2', 'lel', 'h2s', 'co'] as const;
 export type ReadingColumn = (typeof readingColumns)[number];
@@ -49,11 +49,16 @@ export function guessMapping(headers: string[]): Partial<ColumnMapping> {
 
 // 2026-12-02T07:15:00Z, 2026-12-02 07:15:00-06:00 (exact), or 2026-12-02 07:15[:00] / 2026/12/02 07:15 (site time).
 const STAMP = /^(\d{4})[-/](\d{1,2})[-/](\d{1,2})[T ](\d{1,2}):(\d{2})(?::(\d{2})(?:\.\d+)?)?\s*(Z|[+-]\d{2}:?\d{2})?$/i;
+// 02.12.2026 07:15[:00]: day first with dots, as monitors set to a European locale write it. Slashes
+// stay refused: 02/12/2026 is 2 December or 12 February depending on the locale.
+const DOTTED = /^(\d{1,2})\.(\d{1,2})\.(\d{4})[T ](\d{1,2}):(\d{2})(?::(\d{2})(?:[.,]\d+)?)?\s*(Z|[+-]\d{2}:?\d{2})?$/i;
 
 /** A log time → the instant; times without a zone are read as wall time at the site. */
 export function parseLogTime(text: string, timeZone: string): Date | null {
-  const m = STAMP.exec(text.trim());
-  if (!m) return null;
+  const iso = STAMP.exec(text.trim());
+  const dotted = iso ? null : DOTTED.exec(text.trim());
+  if (!iso && !dotted) return null;
+  const m = iso ?? [dotted![0], dotted![3], dotted![2], dotted![1], dotted![4], dotted![5], dotted![6], dotted![7]];
   const [year, month, day, hour, minute, second] = [m[1], m[2], m[3], m[4], m[5], m[6] ?? '0'].map(Number);
   const zone = m[7];
   if (!zone) return wallTimeToInstant({ year, month, day, hour, minute, second }, timeZone);
@@ -67,6 +72,17 @@ export function parseLogTime(text: string, timeZone: string): Date | null {
 }
 
 const DECIMAL = /^[+-]?(\d+(\.\d*)?|\.\d+)$/;
+const DECIMAL_COMMA = /^[+-]?(\d+(,\d*)?|,\d+)$/;
+
+/**
+ * A file delimited by something other than commas whose readings use a decimal comma ("20,9") comes
+ * from a European locale. There a dot may be a thousands separator ("1.000" ppm), so it is not read
+ * as a decimal point: such a cell is reported rather than read as a thousand times too small.
+ */
+function usesDecimalComma(csv: CsvParseResult, index: Record<ReadingColumn, number>): boolean {
+  if (csv.delimiter === ',') return false;
+  return csv.records.slice(1).some((r) => (['o2', 'lel', 'h2s', 'co'] as const).some((c) => /\d,\d|^,\d/.test((r.cells[index[c]] ?? '').trim())));
+}
 
 export interface ReadingRow {
   row: number;
@@ -110,6 +126,7 @@ export function readRows(csv: CsvParseResult, mapping: ColumnMapping, opts: Read
   const [header, ...data] = csv.records;
   const headers = header?.cells.map((h) => h.trim()) ?? [];
   const index = Object.fromEntries(readingColumns.map((c) => [c, headers.indexOf(mapping[c])])) as Record<ReadingColumn, number>;
+  const decimalComma = usesDecimalComma(csv, index);
   const valid: ReadingRow[] = [];
   const invalid: InvalidRow[] = csv.errors.map((e) => ({ row: e.row, reasons: [e.message] }));
   for (const record of data) {
@@ -124,8 +141,8 @@ export function readRows(csv: CsvParseResult, mapping: ColumnMapping, opts: Read
     for (const col of ['o2', 'lel', 'h2s', 'co'] as const) {
       const text = cell(col);
       if (!text) reasons.push(`${readingColumnLabels[col]} is empty.`);
-      else if (!DECIMAL.test(text)) reasons.push(`${readingColumnLabels[col]} "${text}" is not a number.`);
-      else readings[FIELD[col]] = Number(text);
+      else if (!(decimalComma ? DECIMAL_COMMA : DECIMAL).test(text)) reasons.push(`${readingColumnLabels[col]} "${text}" is not a number.`);
+      else readings[FIELD[col]] = Number(decimalComma ? text.replace(',', '.') : text);
     }
     if (testedAt && opts.instrumentReasons) reasons.push(...opts.instrumentReasons(testedAt));
     let assessment: AtmosphereAssessment | null = null;

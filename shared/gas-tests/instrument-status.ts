@@ -5,8 +5,7 @@
  * monitor must also have been bump-tested on the same calendar day at the site, before the test
  * (common practice, no single published source).
  */
-import { differenceInCalendarDays, parseISO } from 'date-fns';
-import { localDate, localTime } from './zoned-day';
+import { daysBetween, siteDay, siteTimeOfDay } from '../time/zone';
 
 export interface InstrumentDates {
   model: string;
@@ -37,8 +36,8 @@ export const CALIBRATION_WARNING_DAYS = 14;
 export const instrumentName = (i: Pick<InstrumentDates, 'model' | 'serial'>) => `${i.model} (serial ${i.serial})`;
 
 export function instrumentStatus(inst: InstrumentDates, at: Date, timeZone: string, requireDailyBumpTest: boolean): InstrumentStatus {
-  const day = localDate(at, timeZone);
-  const daysLeft = differenceInCalendarDays(parseISO(inst.calibrationDueOn), parseISO(day));
+  const day = siteDay(at, timeZone);
+  const daysLeft = daysBetween(day, inst.calibrationDueOn);
   const calibration: CalibrationStatus = daysLeft < 0 ? 'overdue' : daysLeft <= CALIBRATION_WARNING_DAYS ? 'due_soon' : 'in_date';
   const name = instrumentName(inst);
   const reasons: string[] = [];
@@ -49,11 +48,11 @@ export function instrumentStatus(inst: InstrumentDates, at: Date, timeZone: stri
   const bumpAt = inst.lastBumpTestAt ? new Date(inst.lastBumpTestAt) : null;
   let bump: BumpStatus;
   if (!bumpAt) bump = 'never';
-  else if (localDate(bumpAt, timeZone) !== day) bump = 'not_today';
+  else if (siteDay(bumpAt, timeZone) !== day) bump = 'not_today';
   else if (bumpAt.getTime() > at.getTime()) bump = 'after_test';
   else bump = 'today';
   if (requireDailyBumpTest && bump !== 'today') {
-    const when = bump === 'after_test' ? ` It was bump-tested at ${localTime(bumpAt!, timeZone)}, after this test.` : '';
+    const when = bump === 'after_test' ? ` It was bump-tested at ${siteTimeOfDay(bumpAt!, timeZone)}, after this test.` : '';
     reasons.push(`${name} has no bump test on ${day} before the test; this tenant requires a bump test on the day of use.${when}`);
   }
   return { usable: reasons.length === 0, calibration, calibrationDaysLeft: daysLeft, bump, reasons };

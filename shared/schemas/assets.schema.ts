@@ -66,13 +66,13 @@ const optionalNumber = (label: string, min: number, max: number) =>
     .nullable()
     .optional();
 
-export const siteInputSchema = z.object({
+export const siteInputSchema = z.strictObject({
   name: requiredText(120, 'Site name'),
   position: positionField('Position'),
 });
 export type SiteInput = z.infer<typeof siteInputSchema>;
 
-export const pipelineBaseSchema = z.object({
+export const pipelineBaseSchema = z.strictObject({
   code: codeField('Code'),
   name: requiredText(120, 'Name'),
   product: z.enum(productKinds, { message: 'Choose the product carried.' }),
@@ -110,10 +110,11 @@ export function checkPipeline(p: PipelineShape, ctx: z.RefinementCtx) {
 
 /**
  * Cross-field checks run even when an unrelated field already failed (a CSV row then lists all of
- * its problems at once), but not when a field they read did.
+ * its problems at once), but not when a field they read did, nor when the body is not an object at all.
  */
 const unlessFailed = (fields: string[]) => ({
-  when: (payload: { issues: ReadonlyArray<{ path?: readonly PropertyKey[] }> }) => payload.issues.every((i) => !fields.includes(String(i.path?.[0]))),
+  when: (payload: { value: unknown; issues: ReadonlyArray<{ path?: readonly PropertyKey[] }> }) =>
+    typeof payload.value === 'object' && payload.value !== null && !Array.isArray(payload.value) && payload.issues.every((i) => !fields.includes(String(i.path?.[0]))),
 });
 const pipelineCheckFields = ['nps', 'schedule', 'wallThicknessIn', 'insideDiameterIn', 'startPosition', 'endPosition', 'sites'];
 const pointCheckFields = ['kind', 'description', 'valveType', 'normalPosition', 'remotelyOperable'];
@@ -123,7 +124,7 @@ export type PipelineInput = z.infer<typeof pipelineInputSchema>;
 export const pipelinePatchSchema = pipelineBaseSchema.partial();
 export type PipelinePatch = z.infer<typeof pipelinePatchSchema>;
 
-export const pointBaseSchema = z.object({
+export const pointBaseSchema = z.strictObject({
   pipelineId: uuidSchema,
   tagCode: codeField('Tag code'),
   kind: z.enum(isolationPointKinds, { message: 'Choose the kind of point.' }),
@@ -160,7 +161,7 @@ export const pointRecordSchema = pointBaseSchema.omit({ pipelineId: true }).supe
 export const manualInventoryStates = ['in_store', 'lost', 'retired'] as const;
 const manualState = z.enum(inventoryStates, { message: 'Choose in store, lost or retired.' }).refine((s) => s !== 'applied', 'Only the isolation work puts a lock or tag on an isolation.');
 
-export const inventoryInputSchema = z.object({
+export const inventoryInputSchema = z.strictObject({
   number: codeField('Number', 20),
   state: manualState.optional(),
   holderUserId: uuidSchema.nullable().optional(),
@@ -177,4 +178,4 @@ export const pointsQuerySchema = pageQuerySchema.extend({ q: search, pipelineId:
 export type PointsQuery = z.infer<typeof pointsQuerySchema>;
 export const inventoryQuerySchema = pageQuerySchema.extend({ q: search, state: z.enum(inventoryStates).optional(), holderUserId: uuidSchema.optional() });
 export type InventoryQuery = z.infer<typeof inventoryQuerySchema>;
-export const importQuerySchema = z.object({ dryRun: z.enum(['true', 'false', '1', '0']).optional() });
+export const importQuerySchema = z.strictObject({ dryRun: z.enum(['true', 'false', '1', '0']).optional() });

@@ -30,7 +30,7 @@ export const uploadAttachmentFieldsSchema = z
   });
 export type UploadAttachmentFields = z.output<typeof uploadAttachmentFieldsSchema>;
 
-export const attachmentsQuerySchema = z.object({
+export const attachmentsQuerySchema = z.strictObject({
   page: z.coerce.number().int().min(1).max(100_000).default(1),
   pageSize: z.coerce.number().int().min(1).max(200).default(25),
   entityType: z.enum(attachmentEntityTypes).optional(),

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { roles, qualificationKinds } from '../abilities/roles';
-import { requiredText, uuidSchema } from './common.schema';
+import { isoDateField, requiredText, uuidSchema } from './common.schema';
 import { emailSchema } from './sign-in.schema';
 
 // The sign-in input lives in its own module so the sign-in page loads only what it needs.
@@ -18,36 +18,36 @@ export const newPasswordSchema = z
   .max(128, 'Use at most 128 characters.')
   .refine((p) => !commonPasswords.has(p.toLowerCase()), 'That password is too common; choose another.');
 
-export const switchTenantInputSchema = z.object({ tenantId: uuidSchema });
+export const switchTenantInputSchema = z.strictObject({ tenantId: uuidSchema });
 
-export const inviteInputSchema = z.object({
+export const inviteInputSchema = z.strictObject({
   email: emailSchema,
   organisationId: uuidSchema,
   role: z.enum(roles, { message: 'Choose a role.' }),
 });
 export type InviteInput = z.infer<typeof inviteInputSchema>;
 
-export const acceptInvitationInputSchema = z.object({
+export const acceptInvitationInputSchema = z.strictObject({
   token: z.string().min(20).max(200),
   name: requiredText(120, 'Name'),
   password: newPasswordSchema,
 });
 export type AcceptInvitationInput = z.infer<typeof acceptInvitationInputSchema>;
 
-export const forgotPasswordInputSchema = z.object({ email: emailSchema });
-export const resetPasswordInputSchema = z.object({ token: z.string().min(20).max(200), password: newPasswordSchema });
+export const forgotPasswordInputSchema = z.strictObject({ email: emailSchema });
+export const resetPasswordInputSchema = z.strictObject({ token: z.string().min(20).max(200), password: newPasswordSchema });
 export type ResetPasswordInput = z.infer<typeof resetPasswordInputSchema>;
 
-export const organisationInputSchema = z.object({
+export const organisationInputSchema = z.strictObject({
   name: requiredText(160, 'Name'),
   kind: z.enum(['operator', 'contractor'], { message: 'Choose operator or contractor.' }),
 });
 export type OrganisationInput = z.infer<typeof organisationInputSchema>;
 
-const isoDate = z.iso.date({ message: 'Use a date like 2026-12-31.' });
+const isoDate = isoDateField();
 
 export const qualificationInputSchema = z
-  .object({
+  .strictObject({
     userId: uuidSchema,
     kind: z.enum(qualificationKinds, { message: 'Choose a qualification.' }),
     reference: z.string().trim().max(120).optional(),
@@ -57,9 +57,9 @@ export const qualificationInputSchema = z
   .refine((q) => q.expiresOn >= q.issuedOn, { message: 'The expiry date must not be before the issue date.', path: ['expiresOn'] });
 export type QualificationInput = z.infer<typeof qualificationInputSchema>;
 
-export const membershipRoleInputSchema = z.object({ role: z.enum(roles, { message: 'Choose a role.' }) });
+export const membershipRoleInputSchema = z.strictObject({ role: z.enum(roles, { message: 'Choose a role.' }) });
 
-export const usersQuerySchema = z.object({
+export const usersQuerySchema = z.strictObject({
   page: z.coerce.number().int().min(1).max(100_000).default(1),
   pageSize: z.coerce.number().int().min(1).max(200).default(25),
   q: z.string().trim().max(100).optional(),

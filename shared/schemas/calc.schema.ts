@@ -79,7 +79,7 @@ export function waterFractionField(name: string) {
   );
 }
 
-export const mudPlugQuerySchema = z.object({
+export const mudPlugQuerySchema = z.strictObject({
   diameterIn: numberField({ name: 'diameterIn', ...diameterInRule }),
   // Absent or empty means the 50/50 default mix.
   waterFraction: z.preprocess(toNumber, waterFractionField('waterFraction').optional()).transform((w) => w ?? DEFAULT_WATER_FRACTION),
@@ -92,13 +92,13 @@ export const scheduleField = (name: string) =>
     z.enum(PIPE_SCHEDULES, { error: () => `${name} must be one of STD, 40, XS or 80.` }),
   );
 
-export const pipeQuerySchema = z.object({
+export const pipeQuerySchema = z.strictObject({
   nps: numberField({ name: 'nps', unit: 'in', min: 0.125, max: 60, why: 'NPS is the nominal pipe size, such as 10 or 1.25.' }),
   schedule: scheduleField('schedule'),
 });
 export type PipeQuery = z.infer<typeof pipeQuerySchema>;
 
-export const lineFillQuerySchema = z.object({
+export const lineFillQuerySchema = z.strictObject({
   idIn: numberField({ name: 'idIn', ...diameterInRule, why: 'Check the figure is the bore in inches.' }),
   lengthFt: numberField({
     name: 'lengthFt',
@@ -122,7 +122,7 @@ function reading(name: string, unit: string, max: number) {
   );
 }
 
-export const atmosphereReadingsSchema = z.object(
+export const atmosphereReadingsSchema = z.strictObject(
   {
     o2Pct: reading('oxygen', '%vol', 100),
     lelPct: reading('flammable gas', '%LEL', 100),
@@ -132,7 +132,7 @@ export const atmosphereReadingsSchema = z.object(
   { error: () => 'readings must be an object with o2Pct, lelPct, h2sPpm and coPpm; leave out a gas that was not measured.' },
 );
 
-export const atmosphereRequestSchema = z.object({
+export const atmosphereRequestSchema = z.strictObject({
   readings: atmosphereReadingsSchema,
   hotWork: z.boolean({ error: () => 'hotWork must be true or false.' }).default(false),
 });
@@ -162,7 +162,7 @@ export type TenantAtmosphereSettings = z.infer<typeof tenantAtmosphereSettingsSc
 export const WATER_FRACTION_CHOICES = ['0.50', '0.55', '0.60'] as const;
 
 export const mudPlugFormSchema = z
-  .object({
+  .strictObject({
     diameterMode: z.enum(['register', 'nominal', 'schedule', 'measured']),
     pipelineId: z.string(),
     nominalIn: z.string(),
@@ -190,7 +190,7 @@ export const mudPlugFormSchema = z
 export type MudPlugForm = z.infer<typeof mudPlugFormSchema>;
 
 export const lineFillFormSchema = z
-  .object({
+  .strictObject({
     idValue: z.string(),
     idUnit: z.enum(['in', 'mm']),
     length: z.string(),

@@ -2,10 +2,10 @@ import { z } from 'zod';
 import type { AtmosphereAssessment, AtmosphereLimits } from '../calc/atmosphere';
 import type { PermitState } from '../permit/states';
 import { readingColumns } from '../gas-tests/csv-readings';
-import { requiredText, textField, uuidSchema } from './common.schema';
+import { isoDateField, isoDateTimeField, requiredText, textField, uuidSchema } from './common.schema';
 
-const isoDateTime = z.iso.datetime({ offset: true, message: 'Use a date and time like 2026-12-02T07:00:00Z.' });
-const isoDate = z.iso.date({ message: 'Use a date like 2026-12-31.' });
+const isoDateTime = isoDateTimeField();
+const isoDate = isoDateField();
 
 export const gasTestPlaces = ['inside_pipe_upstream', 'inside_pipe_downstream', 'work_area', 'vent_outlet', 'other'] as const;
 export type GasTestPlace = (typeof gasTestPlaces)[number];
@@ -63,7 +63,7 @@ export const gasTestInputSchema = z
 export type GasTestInput = z.input<typeof gasTestInputSchema>;
 export type GasTestData = z.output<typeof gasTestInputSchema>;
 
-export const gasTestsQuerySchema = z.object({
+export const gasTestsQuerySchema = z.strictObject({
   page: z.coerce.number().int().min(1).max(100_000).default(1),
   pageSize: z.coerce.number().int().min(1).max(500).default(25),
   dir: z.enum(['asc', 'desc']).default('desc'),
@@ -86,7 +86,7 @@ export const gasImportInputSchema = z.strictObject({
 export type GasImportInput = z.input<typeof gasImportInputSchema>;
 
 /** The query string that goes with a text/csv body. */
-export const gasImportQuerySchema = z.object({
+export const gasImportQuerySchema = z.strictObject({
   instrumentId: uuidSchema,
   place: z.enum(gasTestPlaces, { message: 'Choose where the monitor was.' }),
   placeNote: z.string().max(200).optional(),
@@ -129,7 +129,7 @@ export const instrumentPatchSchema = z
   .refine((v) => Object.keys(v).length > 0, { message: 'Send at least one field to change.' });
 export type InstrumentPatch = z.infer<typeof instrumentPatchSchema>;
 
-export const instrumentsQuerySchema = z.object({
+export const instrumentsQuerySchema = z.strictObject({
   page: z.coerce.number().int().min(1).max(100_000).default(1),
   pageSize: z.coerce.number().int().min(1).max(200).default(50),
   includeRetired: z.enum(['true', 'false']).optional(),
@@ -160,6 +160,8 @@ export interface GasTestRow {
   source: 'manual' | 'import';
   seriesId: string | null;
   notes: string | null;
+  /** Written down more than a few minutes after the test was taken. */
+  enteredLate: boolean;
 }
 
 export interface GasTestResult {

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { textField, uuidSchema } from './common.schema';
+import { isoDateTimeField, textField, uuidSchema } from './common.schema';
 
 export const stepKinds = ['block_valve', 'vent', 'drain', 'plug', 'blind', 'isolator'] as const;
 export type StepKind = (typeof stepKinds)[number];
@@ -53,10 +53,10 @@ export const savePlanInputSchema = z.strictObject({
 export type SavePlanInput = z.infer<typeof savePlanInputSchema>;
 
 export const proposePlanQuerySchema = z
-  .object({ fromPosition: z.coerce.number().min(0), toPosition: z.coerce.number().min(0) })
+  .strictObject({ fromPosition: z.coerce.number().min(0), toPosition: z.coerce.number().min(0) })
   .refine((q) => q.toPosition >= q.fromPosition, { message: 'The end of the cut must not be before its start.', path: ['toPosition'] });
 
-const isoDateTime = z.iso.datetime({ offset: true, message: 'Use a date and time like 2026-12-02T07:00:00Z.' });
+const isoDateTime = isoDateTimeField();
 
 export const asBuiltPlugSchema = z.strictObject({
   bentoniteLb: z.number({ message: 'Enter the bentonite weighed, in pounds.' }).positive().max(5000),

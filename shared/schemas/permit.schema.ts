@@ -1,10 +1,10 @@
 import { z } from 'zod';
 import { permitStates, workKinds } from '../permit/states';
 import { permitEvents } from '../permit/state-machine';
-import { requiredText, textField, uuidSchema } from './common.schema';
+import { isoDateField, isoDateTimeField, requiredText, textField, uuidSchema } from './common.schema';
 
 const position = z.coerce.number({ message: 'Enter a position as a number.' }).min(0, 'A position cannot be negative.').max(100_000, 'That position is beyond any line.');
-const isoDateTime = z.iso.datetime({ offset: true, message: 'Use a date and time like 2026-12-02T07:00:00Z.' });
+const isoDateTime = isoDateTimeField();
 
 const permitFields = {
   kinds: z.array(z.enum(workKinds, { message: 'Unknown kind of work.' })).min(1, 'Choose at least one kind of work.').max(4),
@@ -65,7 +65,7 @@ export const transitionInputSchema = z.strictObject({
 });
 export type TransitionInput = z.infer<typeof transitionInputSchema>;
 
-export const permitsQuerySchema = z.object({
+export const permitsQuerySchema = z.strictObject({
   page: z.coerce.number().int().min(1).max(100_000).default(1),
   pageSize: z.coerce.number().int().min(1).max(200).default(25),
   state: z
@@ -76,8 +76,8 @@ export const permitsQuerySchema = z.object({
   pipelineId: uuidSchema.optional(),
   contractorOrganisationId: uuidSchema.optional(),
   kind: z.enum(workKinds).optional(),
-  from: z.iso.date().optional(),
-  to: z.iso.date().optional(),
+  from: isoDateField().optional(),
+  to: isoDateField().optional(),
   q: z.string().trim().max(100).optional(),
   sort: z.enum(['number', 'title', 'state', 'validFrom', 'updatedAt']).default('updatedAt'),
   dir: z.enum(['asc', 'desc']).default('desc'),

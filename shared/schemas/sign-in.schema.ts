@@ -10,7 +10,7 @@ export const emailSchema = z.pipe(
   z.email({ message: 'Enter a valid e-mail address.' }),
 );
 
-export const signInInputSchema = z.object({
+export const signInInputSchema = z.strictObject({
   email: emailSchema,
   password: z.string({ message: 'Password is required.' }).check(z.minLength(1, 'Password is required.'), z.maxLength(256, 'Password is too long.')),
 });

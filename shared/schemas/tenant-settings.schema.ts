@@ -13,6 +13,8 @@ export const tenantSettingsSchema = z.object({
   plugCheckIntervalMinutes: z.number().int().min(5).max(480).default(60),
   groupLockout: z.enum(['per_permit', 'per_person']).default('per_permit'),
   requireDailyBumpTest: z.boolean().default(true),
+  // How long after the event a gas test, check or isolation may still be written down (it is then marked "entered late").
+  lateEntryWindowMinutes: z.number().int().min(5).max(24 * 60).default(60),
 });
 export type TenantSettings = z.infer<typeof tenantSettingsSchema>;
 

@@ -2,9 +2,9 @@ import { z } from 'zod';
 import type { PermitState } from '../permit/states';
 import type { TimedCheckKind } from '../permit/due-times';
 import type { PermitLimitsView } from './gas-tests.schema';
-import { requiredText, textField, uuidSchema } from './common.schema';
+import { isoDateTimeField, requiredText, textField, uuidSchema } from './common.schema';
 
-const isoDateTime = z.iso.datetime({ offset: true, message: 'Use a date and time like 2026-12-02T07:00:00Z.' });
+const isoDateTime = isoDateTimeField();
 const DECIMAL = /^[+-]?(\d+(\.\d*)?|\.\d+)$/;
 const optionalNumber = (label: string, max: number) =>
   z.preprocess(
@@ -52,7 +52,7 @@ export const checkInputSchema = z
 export type CheckInput = z.input<typeof checkInputSchema>;
 export type CheckData = z.output<typeof checkInputSchema>;
 
-export const checksQuerySchema = z.object({
+export const checksQuerySchema = z.strictObject({
   page: z.coerce.number().int().min(1).max(100_000).default(1),
   pageSize: z.coerce.number().int().min(1).max(200).default(25),
   kind: z.enum(checkKinds).optional(),
@@ -69,6 +69,8 @@ export interface CheckRow {
   isolationStepId: string | null;
   stepLabel: string | null;
   recordedByName: string;
+  /** Written down more than a few minutes after the check was made. */
+  enteredLate: boolean;
 }
 
 const signature = {

@@ -173,18 +173,53 @@ describe('malformed bodies', () => {
 });
 
 describe('unknown keys and prototype keys', () => {
-  it('when a body has keys the API does not know, then they are ignored and the request works', async () => {
+  const organisations = async () => (await srv.deps.sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM organisations`, { type: QueryTypes.SELECT }))[0].n;
+
+  it('finding 13: when a body has keys the API does not know, then 400 naming each of them and nothing is stored', async () => {
+    const before = await organisations();
     const res = await admin.post('/api/organisations', { name: 'Extra Keys Ltd', kind: 'contractor', colour: 'teal', tenantId: '0b5e9c57-5a0e-4a43-9a4e-1f1f2d2b9c11', id: 'mine' });
-    expect(res.status).toBe(201);
-    expect(res.body).not.toHaveProperty('colour');
-    expect(res.body.id).not.toBe('mine');
-    const me = (await admin.get('/api/auth/me')).body;
-    expect(res.body.tenantId).toBe(me.activeTenantId);
+    expectErrorShape(res, 400, 'validation_failed');
+    expect(pathsOf(res)).toEqual(['colour', 'id', 'tenantId']);
+    expect(res.body.error.details[0].message).toBe('This field is not accepted here; leave it out.');
+    expect(await organisations()).toBe(before);
   });
 
-  it('when a body carries __proto__ and constructor.prototype keys, then nothing is polluted and the request still works', async () => {
+  it('finding 13: when a query string has a parameter the list does not know, then 400 naming it', async () => {
+    const res = await admin.get('/api/users?page=1&colour=teal');
+    expectErrorShape(res, 400, 'validation_failed');
+    expect(pathsOf(res)).toEqual(['colour']);
+  });
+
+  it('finding 13: when the client builds its list and search queries, then every one of them is accepted', async () => {
+    const [pipeline] = await srv.deps.sequelize.query<{ id: string }>(`SELECT id FROM pipelines WHERE tenant_id = (SELECT tenant_id FROM organisations WHERE id = :org) LIMIT 1`, {
+      replacements: { org: operatorOrgId },
+      type: QueryTypes.SELECT,
+    });
+    // The query strings the client's query functions send (client/src/features/*/api), each parameter they can set.
+    const urls = [
+      `/api/users?page=1&q=a&role=auditor&sort=email&dir=desc&organisationId=${operatorOrgId}&pageSize=200`,
+      '/api/organisations?page=1&pageSize=100',
+      '/api/qualifications?page=1&pageSize=50',
+      `/api/permits?page=1&pageSize=25&state=draft,requested&pipelineId=${pipeline.id}&contractorOrganisationId=${operatorOrgId}&kind=hot_work&from=2026-01-01&to=2026-12-31&q=valve&sort=number&dir=asc`,
+      '/api/pipelines?page=1&pageSize=25&q=BM&product=crude_oil',
+      '/api/locks?page=1&pageSize=25&state=in_store&q=L',
+      '/api/tags?state=in_store&q=T&pageSize=200',
+      `/api/isolation-points?pipelineId=${pipeline.id}&pageSize=200`,
+      `/api/board?pipelineId=${pipeline.id}&permitState=live`,
+      '/api/instruments?pageSize=200&includeRetired=true',
+      '/api/calc/mud-plug?diameterIn=10&waterFraction=0.5',
+      '/api/calc/pipe?nps=10&schedule=40',
+      '/api/calc/line-fill?idIn=10&lengthFt=100',
+      `/api/exports/assets.csv?pipelineId=${pipeline.id}`,
+      '/api/audit/events?page=1&pageSize=25',
+    ];
+    for (const url of urls) expect((await readAnswer(admin.agent.get(url) as unknown as Parameters<typeof readAnswer>[0])).status, url).toBe(200);
+  });
+
+  it('finding 13: when a body carries __proto__ and constructor.prototype keys, then 400 naming them and nothing is polluted', async () => {
     const res = await rawJson(admin, 'post', '/api/organisations', '{"name":"Proto Ltd","kind":"contractor","__proto__":{"polluted":"yes","role":"tenant_admin"},"constructor":{"prototype":{"polluted2":"yes"}}}');
-    expect(res.status).toBe(201);
+    expectErrorShape(res, 400, 'validation_failed');
+    expect(pathsOf(res)).toEqual(['__proto__', 'constructor']);
     const probe = {} as Record<string, unknown>;
     expect(probe.polluted).toBeUndefined();
     expect(probe.polluted2).toBeUndefined();
@@ -192,17 +227,75 @@ describe('unknown keys and prototype keys', () => {
     expect(Object.prototype).not.toHaveProperty('polluted');
   });
 
-  it('when a required field is smuggled in through __proto__, then it does not count', async () => {
+  it('finding 13: when a required field is smuggled in through __proto__, then it does not count and __proto__ is named', async () => {
     const res = await rawJson(admin, 'post', '/api/organisations', '{"name":"Smuggled Kind Ltd","__proto__":{"kind":"operator"}}');
     expectErrorShape(res, 400, 'validation_failed');
-    expect(pathsOf(res)).toEqual(['kind']);
+    expect(pathsOf(res)).toEqual(['__proto__', 'kind']);
   });
 
-  it('when a query string carries __proto__ keys, then nothing is polluted', async () => {
+  it('finding 13: when a query string carries __proto__ keys, then 400 and nothing is polluted', async () => {
     const res = await admin.get('/api/users?__proto__[polluted3]=1&constructor[prototype][polluted4]=1');
-    expect(res.status).toBe(200);
+    expectErrorShape(res, 400, 'validation_failed');
     expect(({} as Record<string, unknown>).polluted3).toBeUndefined();
     expect(({} as Record<string, unknown>).polluted4).toBeUndefined();
+  });
+});
+
+describe('finding 1: text PostgreSQL cannot store as sent', () => {
+  it('when a field holds a lone surrogate or a NUL, then 400 naming the field and nothing is stored', async () => {
+    const before = (await srv.deps.sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM organisations`, { type: QueryTypes.SELECT }))[0].n;
+    // JSON escapes: a lone surrogate written as a character would be sent as U+FFFD.
+    for (const name of ['probe \\ud800 text', 'probe \\u0000 text']) {
+      const res = await rawJson(admin, 'post', '/api/organisations', `{"name":"${name}","kind":"contractor"}`);
+      expectErrorShape(res, 400, 'validation_failed');
+      expect(res.body.error.details).toEqual([{ path: 'name', message: 'Contains a broken or hidden character that cannot be saved. Type this text again.' }]);
+    }
+    const invite = await rawJson(admin, 'post', '/api/invitations', `{"email":"a@river.example","organisationId":"${operatorOrgId}","role":"auditor","extra":{"list":["ok","\\udfff"]}}`);
+    expectErrorShape(invite, 400, 'validation_failed');
+    expect(pathsOf(invite)).toEqual(['extra.list.1']);
+    const after = (await srv.deps.sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM organisations`, { type: QueryTypes.SELECT }))[0].n;
+    expect(after).toBe(before);
+  });
+
+  it('when a field name holds a lone surrogate, then 400 and the answer shows it replaced, so it can be stored', async () => {
+    const res = await rawJson(admin, 'post', '/api/organisations', '{"name":"Key Ltd","kind":"contractor","\\ud800":1}');
+    expectErrorShape(res, 400, 'validation_failed');
+    expect(res.body.error.details).toEqual([{ path: '\ufffd', message: 'This field name has a broken or hidden character.' }]);
+  });
+
+  it('when a query parameter holds a NUL, then 400 naming it', async () => {
+    const res = await admin.get('/api/users?q=a%00b');
+    expectErrorShape(res, 400, 'validation_failed');
+    expect(pathsOf(res)).toEqual(['q']);
+  });
+
+  it('when a sign-in password holds a NUL, then 400 (not a database error)', async () => {
+    const res = await (await srv.anonymous()).post('/api/auth/sign-in', { email: 'admin@bramblecote.example', password: 'holdpoint-demo\u0000' });
+    expectErrorShape(res, 400, 'validation_failed');
+    expect(pathsOf(res)).toEqual(['password']);
+  });
+});
+
+describe('finding 12: answers are not kept by caches', () => {
+  it('when a signed-in user reads, changes or fails, then every API answer says Cache-Control: no-store', async () => {
+    const answers = {
+      me: await admin.get('/api/auth/me'),
+      users: await admin.get('/api/users'),
+      organisations: await admin.get('/api/organisations?page=1'),
+      refused: await admin.post('/api/organisations', {}),
+      'no such route': await admin.get('/api/no-such-route'),
+      'not signed in': await (await srv.anonymous()).get('/api/users'),
+    };
+    for (const [label, res] of Object.entries(answers)) expect(res.headers['cache-control'], label).toBe('no-store');
+  });
+
+  it('when the board is read again with its ETag, then 304 and the board keeps its revalidation header', async () => {
+    const first = await admin.get('/api/board');
+    expect(first.status).toBe(200);
+    expect(first.headers['cache-control']).toBe('private, no-cache');
+    const again = await admin.get('/api/board').set('if-none-match', first.headers.etag);
+    expect(again.status).toBe(304);
+    expect(again.headers['cache-control']).toBe('private, no-cache');
   });
 });
 

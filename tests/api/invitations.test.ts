@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
+import pg from 'pg';
 import { startMailCatcher } from '../../server/src/lib/mail-catcher';
 import { deliverDueMail } from '../../server/src/lib/mailer';
 import { DEMO_PASSWORD, startTestServer, type TestServer } from '../fixtures/test-server';
@@ -183,5 +184,93 @@ describe('password reset', () => {
     const { token } = linkIn((await mailTo('wrong.page@fenwick-survey.example')).body, 'accept-invitation');
     const res = await (await srv.anonymous()).post('/api/auth/reset-password', { token, password: 'wrong-page-password-3' });
     expect(res.status).toBe(422);
+  });
+});
+
+describe('reset links and requests under abuse', () => {
+  const resetTokensOf = (email: string) =>
+    srv.deps.sequelize.query<{ used: boolean }>(`SELECT used_at IS NOT NULL AS used FROM auth_tokens WHERE kind = 'reset' AND lower(email) = lower(:email)`, {
+      replacements: { email },
+      type: QueryTypes.SELECT,
+    });
+
+  it('finding 7: when someone asked for two reset links and used the newer one, then the older link is refused too', async () => {
+    const visitor = await srv.anonymous();
+    expect((await visitor.post('/api/auth/forgot-password', { email: 'tech@oxbow-repair.example' })).status).toBe(200);
+    const older = linkIn((await mailTo('tech@oxbow-repair.example')).body, 'reset-password').token;
+    expect((await visitor.post('/api/auth/forgot-password', { email: 'tech@oxbow-repair.example' })).status).toBe(200);
+    const newer = linkIn((await mailTo('tech@oxbow-repair.example')).body, 'reset-password').token;
+    expect(older).not.toBe(newer);
+
+    expect((await visitor.post('/api/auth/reset-password', { token: newer, password: 'newer-link-password-1' })).status).toBe(200);
+    const stale = await visitor.post('/api/auth/reset-password', { token: older, password: 'older-link-password-2' });
+    expect(stale.status).toBe(422);
+    expect(stale.body.error).toMatchObject({ code: 'unprocessable', message: expect.stringMatching(/not valid or has already been used/) });
+    expect(await resetTokensOf('tech@oxbow-repair.example')).toEqual([{ used: true }, { used: true }]);
+    await srv.signIn('tech@oxbow-repair.example', 'newer-link-password-1');
+  });
+
+  it('finding 9: when one address asks for a reset again and again, then after three in an hour it is told to wait, the same for a known and an unknown address', async () => {
+    const known = 'authoriser2@bramblecote.example';
+    const unknown = 'nobody.at.all@fenwick-survey.example';
+    const visitor = await srv.anonymous();
+    const ask = (email: string) => visitor.post('/api/auth/forgot-password', { email });
+    try {
+      for (let i = 0; i < 3; i++) {
+        const [a, b] = [await ask(known), await ask(unknown)];
+        expect([a.status, b.status]).toEqual([200, 200]);
+        expect(b.body).toEqual(a.body);
+      }
+      const [a, b] = [await ask(known), await ask(unknown)];
+      expect(a.status).toBe(429);
+      expect(a.body).toEqual({ error: { code: 'rate_limited', message: 'Too many reset requests for this address. Wait 60 minutes and try again.', details: [] } });
+      expect(Number(a.headers['retry-after'])).toBe(3600);
+      expect(b.status).toBe(a.status);
+      expect(b.body).toEqual(a.body);
+      expect(b.headers['retry-after']).toBe(a.headers['retry-after']);
+      expect(await outboxCount(known)).toBe(3);
+      expect(await outboxCount(unknown)).toBe(0);
+      // Another address is not held up by this one.
+      expect((await ask('someone.else@fenwick-survey.example')).status).toBe(200);
+
+      srv.clock.advanceMinutes(61);
+      expect((await ask(known)).status).toBe(200);
+      expect((await ask(unknown)).status).toBe(200);
+      expect(await outboxCount(known)).toBe(4);
+    } finally {
+      srv.clock.advanceMinutes(-61);
+    }
+  });
+
+  it('finding 14: when a reset is asked for a known and an unknown address, then the server sends the very same SQL statements for both', async () => {
+    const realQuery = pg.Client.prototype.query;
+    let seen: string[] | null = null;
+    pg.Client.prototype.query = function (this: pg.Client, ...args: unknown[]) {
+      const sql = typeof args[0] === 'string' ? args[0] : (args[0] as { text?: string })?.text;
+      // Values differ (the address, the token); the statements must not.
+      if (seen && sql) seen.push(sql.replace(/'(?:[^']|'')*'/g, '?').replace(/\s+/g, ' ').trim());
+      return (realQuery as (...a: unknown[]) => unknown).apply(this, args);
+    } as typeof pg.Client.prototype.query;
+    const statementsOf = async (email: string) => {
+      const visitor = await srv.anonymous();
+      seen = [];
+      const res = await visitor.post('/api/auth/forgot-password', { email });
+      const done = seen;
+      seen = null;
+      expect(res.status).toBe(200);
+      return done;
+    };
+    try {
+      const runs = [];
+      for (let i = 0; i < 3; i++) runs.push(await statementsOf('tech2@oxbow-repair.example'), await statementsOf('no.one.here@fenwick-survey.example'));
+      console.log(`forgot-password: ${runs[0].length} statement(s) per request, known and unknown address alike`);
+      expect(runs[0].length).toBeGreaterThan(0);
+      for (const run of runs) expect(run).toEqual(runs[0]);
+    } finally {
+      pg.Client.prototype.query = realQuery;
+    }
+    // The work the statements did differs only inside the database: mail for the known address alone.
+    expect(await outboxCount('tech2@oxbow-repair.example')).toBe(3);
+    expect(await outboxCount('no.one.here@fenwick-survey.example')).toBe(0);
   });
 });

@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import type { Response } from 'supertest';
 import { DEMO_PASSWORD, startTestServer, type TestServer } from '../fixtures/test-server';
+import { users } from '../fixtures/permit-fixtures';
 
 /** `name=value` of one cookie the response set, and the attributes that came with it. */
 function setCookie(res: Response, name: string) {
@@ -267,38 +268,58 @@ describe('tenant switch', () => {
   });
 });
 
-describe('sign-in rate limit', () => {
+describe('finding 3: sign-in limits that cannot lock the real person out', () => {
+  // Three failures answered at once, then 250 ms, 500 ms, 1 s, 1 s … before each further failure is answered.
+  const limits = { perIp: 30, perAccount: 3, windowMs: 10 * 60_000, failureDelay: { baseMs: 250, maxMs: 1_000 } };
   let limited: TestServer;
   beforeAll(async () => {
-    limited = await startTestServer({ authLimits: { perIp: 1000, perAccount: 3, windowMs: 10 * 60_000 } });
+    limited = await startTestServer({ authLimits: limits });
   });
   afterAll(async () => {
     await limited?.close();
   });
 
-  it('when an account gets more failed sign-ins than allowed, then 429 in the error shape with a clear message, even with the right password', async () => {
+  const attempt = async (email: string, password: string) => {
     const client = await limited.anonymous();
-    for (let i = 0; i < 3; i++) {
-      const bad = await client.post('/api/auth/sign-in', { email: 'authoriser@bramblecote.example', password: `wrong-${i}` });
-      expect(bad.status).toBe(401);
-    }
-    const res = await client.post('/api/auth/sign-in', { email: 'Authoriser@Bramblecote.example', password: DEMO_PASSWORD });
+    const started = performance.now();
+    const res = await client.post('/api/auth/sign-in', { email, password });
+    return { res, ms: performance.now() - started };
+  };
+
+  it('when an account gets many wrong passwords, then each further failure is answered more slowly, but the right password signs in at once', async () => {
+    for (let i = 0; i < 5; i++) expect((await attempt(users.authoriser, `wrong-${i}`)).res.status).toBe(401);
+    // The sixth failure in a row waits the cap (1 s); a timer never fires early, so this cannot flake.
+    const slowed = await attempt(users.authoriser, 'wrong-again');
+    expect(slowed.res.status).toBe(401);
+    expect(slowed.res.body).toEqual({ error: { code: 'unauthenticated', message: 'E-mail or password is incorrect.', details: [] } });
+    expect(slowed.ms).toBeGreaterThanOrEqual(limits.failureDelay.maxMs - 5);
+
+    // Not refused and not held back: the failures above decide nothing about a right password.
+    const right = await attempt('Authoriser@Bramblecote.example', DEMO_PASSWORD);
+    expect(right.res.status, JSON.stringify(right.res.body)).toBe(200);
+    expect(right.ms).toBeLessThan(limits.failureDelay.maxMs);
+  });
+
+  it('when the right password has signed in, then the next mistake is answered at once again', async () => {
+    const next = await attempt(users.authoriser, 'one-typo');
+    expect(next.res.status).toBe(401);
+    // Still counting, it would have waited the cap (1 s) like the sixth failure above.
+    expect(next.ms).toBeLessThan(limits.failureDelay.maxMs - 5);
+  });
+
+  it('when one account is being slowed, then another account from the same address still signs in', async () => {
+    expect((await attempt(users.auditor, DEMO_PASSWORD)).res.status).toBe(200);
+  });
+
+  it('when a person signs in successfully several times, then the successes count for nothing', async () => {
+    for (let i = 0; i < 5; i++) expect((await attempt(users.control, DEMO_PASSWORD)).res.status, `sign-in ${i + 1}`).toBe(200);
+  });
+
+  it('when one network address keeps trying, then the hard per-IP limit still answers 429 in the error shape', async () => {
+    let res = (await attempt(`nobody-0@fenwick-survey.example`, 'not the password')).res;
+    for (let n = 1; n <= limits.perIp && res.status !== 429; n++) res = (await attempt(`nobody-${n}@fenwick-survey.example`, 'not the password')).res;
     expect(res.status).toBe(429);
-    expect(res.body).toEqual({ error: { code: 'rate_limited', message: expect.stringMatching(/too many sign-in attempts.*try again/i), details: [] } });
+    expect(res.body).toEqual({ error: { code: 'rate_limited', message: expect.stringMatching(/too many attempts from this network.*try again/i), details: [] } });
     expect(Number(res.headers['retry-after'])).toBeGreaterThan(0);
-  });
-
-  it('when one account is locked out, then another account from the same address still signs in', async () => {
-    const client = await limited.anonymous();
-    const res = await client.post('/api/auth/sign-in', { email: 'auditor@bramblecote.example', password: DEMO_PASSWORD });
-    expect(res.status).toBe(200);
-  });
-
-  it('when a person signs in successfully several times, then the successes do not use up the allowance', async () => {
-    for (let i = 0; i < 5; i++) {
-      const client = await limited.anonymous();
-      const res = await client.post('/api/auth/sign-in', { email: 'control@bramblecote.example', password: DEMO_PASSWORD });
-      expect(res.status, `sign-in ${i + 1}`).toBe(200);
-    }
   });
 });

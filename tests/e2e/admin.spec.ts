@@ -42,8 +42,9 @@ test('when the tenant admin invites someone, then the mail arrives, the link ope
   await expect(page.getByRole('status').filter({ hasText: 'Invitation sent' })).toHaveCount(0, { timeout: 8_000 });
   await shot(page, 'people');
 
-  // The demo server's mail worker delivers to the in-process catcher shown on /dev/mail.
-  const mailbox = await browser.newPage();
+  // The demo server's mail worker delivers to the in-process catcher shown on /dev/mail, where the
+  // signed-in tenant admin sees the mail their tenant sent.
+  const mailbox = await page.context().newPage();
   await expect(async () => {
     await mailbox.goto('/dev/mail');
     await expect(mailbox.locator('article').filter({ hasText: `To ${invitee}` })).toBeVisible({ timeout: 1_000 });

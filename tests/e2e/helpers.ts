@@ -10,8 +10,11 @@ export async function signIn(page: Page, email: string, password = DEMO_PASSWORD
   await expect(page.getByTestId('who')).toBeVisible();
 }
 
+/** Screenshots refresh the committed ones in docs/ only when asked (`SCREENSHOTS=docs`); otherwise they land in .tmp/. */
+const shotDir = process.env.SCREENSHOTS === 'docs' ? 'docs/screenshots' : '.tmp/screenshots';
+
 export async function shot(page: Page, name: string) {
-  await page.screenshot({ path: `docs/screenshots/${name}.png`, fullPage: true });
+  await page.screenshot({ path: `${shotDir}/${name}.png`, fullPage: true });
 }
 
 /** The page does not scroll sideways (field use on tablets and phones). */
@@ -31,7 +34,7 @@ export async function signedInPage(browser: Browser, email: string, viewport = {
 /** A screenshot for the user guide: what is on the screen (not the whole page), with `target` scrolled into view. */
 export async function guideShot(page: Page, name: string, target?: Locator) {
   if (target) await target.scrollIntoViewIfNeeded();
-  await page.screenshot({ path: `docs/screenshots/guide-${name}.png` });
+  await page.screenshot({ path: `${shotDir}/guide-${name}.png` });
 }
 
 /** The wall-clock time in a time zone, as a datetime-local field takes it (yyyy-MM-ddTHH:mm). */
@@ -62,17 +65,18 @@ export const signAs = (name: string, password = DEMO_PASSWORD) => async (dialog:
 };
 
 /**
- * The mail `to` received with this subject, from the development mailbox the e2e server runs
- * (the outbox worker delivers within a few seconds, so the page is read again until it is there).
+ * The mail `to` received with this subject, from the development mailbox the e2e server runs, read
+ * by `to` signed in (the mailbox shows each person their own mail; the outbox worker delivers within
+ * a few seconds, so the page is read again until it is there).
  */
 export async function mailTo(browser: Browser, to: string, subject: string | RegExp) {
-  const mailbox = await browser.newPage();
+  const mailbox = await signedInPage(browser, to);
   const mail = mailbox.locator('article').filter({ hasText: `To ${to}` }).filter({ has: mailbox.getByRole('heading', { name: subject }) });
   await expect(async () => {
     await mailbox.goto('/dev/mail');
     await expect(mail.first()).toBeVisible({ timeout: 1_000 });
   }).toPass({ timeout: 20_000 });
   const text = await mail.first().innerText();
-  await mailbox.close();
+  await mailbox.context().close();
   return text;
 }

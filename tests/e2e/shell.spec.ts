@@ -35,6 +35,24 @@ test('when someone sends the sign-in form empty, then each field says what is wr
   await expect(page.getByTestId('who')).toBeVisible();
 });
 
+test('finding 15: when the sign-in page is opened with next=//host, then it stays on the sign-in page without an error and signing in leads home, not away', async ({ page, baseURL }) => {
+  const errors: string[] = [];
+  page.on('pageerror', (err) => errors.push(err.message));
+  await page.goto('/sign-in?next=//evil.example/permits');
+  await expect(page.getByRole('heading', { name: 'Sign in' })).toBeVisible();
+  await page.getByLabel('E-mail').fill('auditor@bramblecote.example');
+  await page.getByLabel('Password', { exact: true }).fill('holdpoint-demo');
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await expect(page.getByTestId('who')).toBeVisible();
+  expect(new URL(page.url()).origin).toBe(new URL(baseURL!).origin);
+  expect(new URL(page.url()).pathname).toBe('/');
+  // Signed in already, the same link leads home as well.
+  await page.goto('/sign-in?next=/%5Cevil.example');
+  await expect(page.getByTestId('who')).toBeVisible();
+  expect(new URL(page.url()).origin).toBe(new URL(baseURL!).origin);
+  expect(errors).toEqual([]);
+});
+
 test('an unknown address inside the app shows the not-found page', async ({ page }) => {
   await signIn(page, 'auditor@bramblecote.example');
   await page.goto('/no/such/page');

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { parseCsv } from '@shared/csv/csv';
+import { parseCsv } from '@shared/csv/read-csv';
 import { DEFAULT_ATMOSPHERE_LIMITS } from '@shared/calc';
 import { guessMapping, mappingProblems, parseLogTime, readRows } from '@shared/gas-tests/csv-readings';
 import { instrumentStatus } from '@shared/gas-tests/instrument-status';

@@ -1,7 +1,29 @@
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { randomBytes } from 'node:crypto';
+import { isIP } from 'node:net';
 import { z } from 'zod';
+
+const proxyNames = ['loopback', 'linklocal', 'uniquelocal'];
+
+/** One entry of Express's 'trust proxy' list: a named range, an address, or a subnet (address/prefix length). */
+function isProxyEntry(entry: string): boolean {
+  if (proxyNames.includes(entry)) return true;
+  const [address, prefix, ...rest] = entry.split('/');
+  const family = isIP(address);
+  if (!family || rest.length) return false;
+  if (prefix === undefined) return true;
+  return /^\d{1,3}$/.test(prefix) && Number(prefix) <= (family === 4 ? 32 : 128);
+}
+
+// Only the proxies named here may say who the client is (X-Forwarded-For); nobody by default.
+const trustProxySchema = z
+  .string()
+  .default('')
+  .transform((v) => v.split(',').map((s) => s.trim()).filter(Boolean))
+  .refine((list) => list.every(isProxyEntry), {
+    message: 'TRUST_PROXY must list proxy addresses or subnets separated by commas, such as "127.0.0.1", "10.0.0.0/8" or "loopback"',
+  });
 
 const envSchema = z.object({
   NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
@@ -25,6 +47,7 @@ const envSchema = z.object({
   WORKERS: z.enum(['on', 'off']).default('on'),
   // The live board reuses its answer while the tenant's data is unchanged (modules/isolations/board-cache.ts).
   BOARD_CACHE: z.enum(['on', 'off']).default('on'),
+  TRUST_PROXY: trustProxySchema,
 });
 
 export type Env = z.infer<typeof envSchema>;

@@ -1,4 +1,4 @@
-// `node --import tsx server/src/db/cli.ts migrate|seed|reset-demo` with DATABASE_URL set.
+// `node --import tsx server/src/db/cli.ts migrate|seed|setup` with DATABASE_URL set (setup = migrate, then seed).
 import { createSequelize } from './sequelize';
 import { migrateUp } from './migrator';
 import { seedDemo } from './seed';

@@ -44,6 +44,7 @@ export async function enqueueMail(sequelize: Sequelize, mail: OutgoingMail, tran
 
 interface OutboxRow {
   id: number;
+  tenant_id: string | null;
   to_address: string;
   subject: string;
   text_body: string;
@@ -52,35 +53,34 @@ interface OutboxRow {
 
 const MAX_ATTEMPTS = 12;
 
+/** Names the tenant a mail was sent for, so the development mailbox can show a tenant admin their tenant's mail. */
+export const TENANT_HEADER = 'X-Holdpoint-Tenant';
+
 /**
- * Sends due mail. Each row is claimed with FOR UPDATE SKIP LOCKED inside its own transaction, so
- * several server processes can run this at once without sending a mail twice.
+ * Sends due mail. The outbox is under row-level security, so the sender works through owner-run
+ * functions (migration 0100): each row is claimed with FOR UPDATE SKIP LOCKED inside its own
+ * transaction, so several server processes can run this at once without sending a mail twice, and a
+ * sent mail keeps no usable link in its stored body.
  */
 export async function deliverDueMail(sequelize: Sequelize, transport: Transporter | null, from: string, logger: Logger, limit = 20): Promise<number> {
   if (!transport) return 0;
   let sent = 0;
   for (let i = 0; i < limit; i++) {
     const done = await sequelize.transaction(async (t) => {
-      const rows = await sequelize.query<OutboxRow>(
-        `SELECT id, to_address, subject, text_body, attempts FROM mail_outbox
-         WHERE status = 'pending' AND next_attempt_at <= now()
-         ORDER BY id LIMIT 1 FOR UPDATE SKIP LOCKED`,
-        { type: QueryTypes.SELECT, transaction: t },
-      );
+      const rows = await sequelize.query<OutboxRow>(`SELECT id, tenant_id, to_address, subject, text_body, attempts FROM hp_outbox_claim()`, { type: QueryTypes.SELECT, transaction: t });
       const row = rows[0];
       if (!row) return false;
       try {
-        await transport.sendMail({ from, to: row.to_address, subject: row.subject, text: row.text_body });
-        await sequelize.query(`UPDATE mail_outbox SET status = 'sent', sent_at = now(), attempts = attempts + 1 WHERE id = :id`, { replacements: { id: row.id }, transaction: t });
+        await transport.sendMail({ from, to: row.to_address, subject: row.subject, text: row.text_body, headers: row.tenant_id ? { [TENANT_HEADER]: row.tenant_id } : {} });
+        await sequelize.query(`SELECT hp_outbox_sent(:id)`, { replacements: { id: row.id }, transaction: t });
         sent++;
       } catch (err) {
         const attempts = row.attempts + 1;
         const backoffSeconds = Math.min(2 ** attempts, 300);
-        await sequelize.query(
-          `UPDATE mail_outbox SET attempts = :attempts, last_error = :error, status = :status,
-             next_attempt_at = now() + make_interval(secs => :backoff) WHERE id = :id`,
-          { replacements: { id: row.id, attempts, error: String((err as Error).message).slice(0, 500), status: attempts >= MAX_ATTEMPTS ? 'failed' : 'pending', backoff: backoffSeconds }, transaction: t },
-        );
+        await sequelize.query(`SELECT hp_outbox_failed(:id, :attempts, :error, :giveUp, :backoff)`, {
+          replacements: { id: row.id, attempts, error: String((err as Error).message).slice(0, 500), giveUp: attempts >= MAX_ATTEMPTS, backoff: backoffSeconds },
+          transaction: t,
+        });
         logger.warn({ mailId: row.id, attempts, err: (err as Error).message }, 'mail delivery failed; will retry');
         return 'failed';
       }

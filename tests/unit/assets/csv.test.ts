@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { guardFormula, parseCsv, toCsv, unguardFormula } from '@shared/csv/csv';
+import { guardFormula, toCsv, unguardFormula } from '@shared/csv/csv';
+import { parseCsv } from '@shared/csv/read-csv';
 
 // Expected readings follow RFC 4180 ("Common Format and MIME Type for CSV Files"), sections 2.1–2.7.
 const cells = (text: string) => parseCsv(text).records.map((r) => r.cells);
@@ -17,10 +18,10 @@ describe('parseCsv', () => {
     expect(cells('\uFEFFrecord_type,pipeline_code\r\n')[0][0]).toBe('record_type');
   });
 
-  it('when a quoted value holds commas, doubled quotes and a line break, then they are part of the value', () => {
+  it('when a quoted value holds commas, doubled quotes and a line break, then they are part of the value (the line break read as LF)', () => {
     const parsed = parseCsv('name,notes\r\n"Line, north","Says ""hi""\r\nthen stops"\r\nnext,row\r\n');
     expect(parsed.errors).toEqual([]);
-    expect(parsed.records.map((r) => r.cells)).toEqual([['name', 'notes'], ['Line, north', 'Says "hi"\r\nthen stops'], ['next', 'row']]);
+    expect(parsed.records.map((r) => r.cells)).toEqual([['name', 'notes'], ['Line, north', 'Says "hi"\nthen stops'], ['next', 'row']]);
   });
 
   it('when a quoted value spans lines or a blank line sits between records, then row numbers still match a spreadsheet', () => {
@@ -38,14 +39,18 @@ describe('parseCsv', () => {
     expect(parsed.errors).toEqual([{ row: 3, message: expect.stringContaining('never closed') }]);
   });
 
-  it('when text follows a closing quote or a quote sits inside a bare value, then that row is reported and left out', () => {
-    const parsed = parseCsv('h,i\n"a"b,c\nx"y,z\ngood,row\n');
-    expect(parsed.errors.map((e) => e.row)).toEqual([2, 3]);
-    expect(parsed.records.map((r) => r.row)).toEqual([1, 4]);
+  it('when text follows a closing quote, then that row is reported and left out', () => {
+    const parsed = parseCsv('h,i\nok,1\n"a"b,c\n');
+    expect(parsed.errors).toEqual([{ row: 3, message: 'Text follows a closing quote; a quoted value must end at a comma or the end of the line.' }]);
+    expect(parsed.records.map((r) => r.row)).toEqual([1, 2]);
+  });
+
+  it('when a quote sits inside a bare value, then it is kept as written, as spreadsheet programs read it', () => {
+    expect(cells('h,i\nx"y,z\n')).toEqual([['h', 'i'], ['x"y', 'z']]);
   });
 
   it('when the file is empty, then there are no records and no errors', () => {
-    expect(parseCsv('')).toEqual({ records: [], errors: [] });
+    expect(parseCsv('')).toEqual({ records: [], errors: [], delimiter: ',' });
   });
 });
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { parseCsv } from '@shared/csv/csv';
+import { parseCsv } from '@shared/csv/read-csv';
 import { assetCsvColumns } from '@shared/assets/asset-csv';
 import { planAssetImport, type ImportSnapshot } from '@shared/assets/import-plan';
 

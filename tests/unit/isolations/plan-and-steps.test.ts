@@ -9,7 +9,7 @@ const row = (key: string, extra: Partial<DraftRow> = {}): DraftRow => ({ key, po
 function step(id: string, extra: Partial<IsolationStep> = {}): IsolationStep {
   return {
     id, permitId: 'permit', seq: 1, pointId: null, label: id, position: 1, kind: 'block_valve', condition: 'closed_locked_tagged', status: 'planned', remotelyOperable: false,
-    lockId: null, lockNumber: null, tagId: null, tagNumber: null, appliedBy: null, appliedByName: null, appliedAt: null, photoAttachmentId: null, remoteAckAt: null,
+    lockId: null, lockNumber: null, tagId: null, tagNumber: null, appliedBy: null, appliedByName: null, appliedAt: null, appliedEnteredLate: false, photoAttachmentId: null, remoteAckAt: null,
     remoteAckByName: null, verifiedBy: null, verifiedByName: null, verifiedAt: null, verificationMethod: null, verificationReading: null, verificationUnit: null,
     verificationNotes: null, removedByName: null, removedAt: null, removalNote: null, controlRoomAckAppliedAt: null, controlRoomAckRemovedAt: null, plugDiameterIn: null,
     plugAsBuilt: null, plugWarnings: [], plugWarningsAckAt: null, ...extra,

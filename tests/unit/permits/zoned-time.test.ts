@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatInZone, isoToWallTime, nextWholeHourWall, wallTimeToIso, zoneOffsetMinutes } from '@client/features/permits/lib/zoned-time';
+import { formatInZone, isoToWallTime, nextWholeHourWall, wallTimeToIso, zoneOffsetMinutes } from '@shared/time/zone';
 
 // Offsets from the IANA time zone database as shipped with Node's ICU (America/Chicago: CST -06:00, CDT -05:00;
 // US summer time 2026 runs from 8 March to 1 November).
@@ -40,7 +40,7 @@ describe('wall time in the tenant time zone', () => {
   });
 
   it('when a time is displayed, then it is shown where the line is with the zone written out', () => {
-    expect(formatInZone('2026-12-02T13:00:00Z', 'America/Chicago')).toBe('2 Dec 2026, 07:00 GMT-6');
+    expect(formatInZone('2026-12-02T13:00:00Z', 'America/Chicago')).toBe('2 Dec 2026, 07:00 CST');
     expect(formatInZone(null, 'America/Chicago')).toBe('—');
   });
 

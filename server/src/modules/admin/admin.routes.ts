@@ -7,21 +7,18 @@
 //   GET    /api/qualifications                tenant admin, authoriser, auditor
 //   POST   /api/qualifications                tenant admin
 //   POST   /api/invitations                   tenant admin
-import { Router } from 'express';
+import { Router, type Request } from 'express';
 import { z } from 'zod';
-import { subject } from '@casl/ability';
 import { inviteInputSchema, membershipRoleInputSchema, organisationInputSchema, qualificationInputSchema, usersQuerySchema } from '@shared/schemas/auth.schema';
 import { pageQuerySchema, uuidSchema } from '@shared/schemas/common.schema';
 import type { AppDeps } from '../../deps';
 import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
-import { authorizeRecord, authorizeType } from '../../lib/authorize';
-import { AppError } from '../../errors/app-error';
-import { invite } from '../auth/auth.service';
+import { clientIp } from '../../lib/client-ip';
+import type { CallerContext } from '../permits/permits.service';
 import * as admin from './admin.service';
-import { withTenant } from '../../db/sequelize';
 
-const idParams = z.object({ id: uuidSchema });
+const idParams = z.strictObject({ id: uuidSchema });
 
 // Checks the shared schema does not make yet (they belong there): dates PostgreSQL can store and that
 // make sense for a certificate, and a reference free of control characters.
@@ -36,78 +33,51 @@ const qualificationBodySchema = qualificationInputSchema.superRefine((q, ctx) =>
 
 export function createAdminRouter(deps: AppDeps) {
   const router = Router();
-  const { sequelize } = deps;
   router.use(['/organisations', '/users', '/memberships', '/qualifications', '/invitations'], requireTenant);
+  const caller = (req: Request): CallerContext => ({ ...actorOf(req), ip: clientIp(req) });
 
   router.get('/organisations', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    authorizeType(ability, 'read', 'Organisation', { tenantId: actor.tenantId }, 'organisations');
-    const q = parse(pageQuerySchema, req.query, 'query');
-    res.json(await withTenant(sequelize, actor.tenantId, () => admin.listOrganisations(sequelize, actor.tenantId, q.page, q.pageSize)));
+    res.json(await admin.listOrganisations(deps, caller(req), parse(pageQuerySchema, req.query, 'query')));
   });
 
   router.post('/organisations', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    authorizeType(ability, 'create', 'Organisation', { tenantId: actor.tenantId }, 'organisations');
-    const input = parse(organisationInputSchema, req.body, 'organisation');
-    res.status(201).json(await withTenant(sequelize, actor.tenantId, () => admin.createOrganisation(sequelize, actor.tenantId, input)));
+    res.status(201).json(await admin.createOrganisation(deps, caller(req), parse(organisationInputSchema, req.body, 'organisation')));
   });
 
   router.get('/users', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    const q = parse(usersQuerySchema, req.query, 'query');
-    if (ability.can('read', subject('User', { tenantId: actor.tenantId }))) return res.json(await withTenant(sequelize, actor.tenantId, () => admin.listUsers(sequelize, actor.tenantId, q)));
-    // A contractor lead sees the members of their own organisation only.
-    const own = actor.memberships.find((m) => ability.can('read', subject('Membership', { tenantId: actor.tenantId, organisationId: m.organisationId })));
-    if (!own) throw AppError.forbidden('Your role does not allow you to list people.');
-    res.json(await withTenant(sequelize, actor.tenantId, () => admin.listUsers(sequelize, actor.tenantId, q, own.organisationId)));
+    res.json(await admin.listUsers(deps, caller(req), parse(usersQuerySchema, req.query, 'query')));
   });
 
   router.patch('/memberships/:id', async (req, res) => {
-    const { actor, ability } = actorOf(req);
+    const c = caller(req);
     const { id } = parse(idParams, req.params, 'path');
-    const record = authorizeRecord(ability, 'update', 'Membership', await withTenant(sequelize, actor.tenantId, () => admin.findMembership(sequelize, actor.tenantId, id)), 'membership');
     const { role } = parse(membershipRoleInputSchema, req.body, 'membership');
-    if (record.userId === actor.userId && record.role === 'tenant_admin' && role !== 'tenant_admin') {
-      throw AppError.unprocessable('You cannot remove your own tenant admin role; ask another admin.');
-    }
-    await withTenant(sequelize, actor.tenantId, () => admin.changeMembershipRole(sequelize, actor.tenantId, id, role));
-    req.log.info({ event: 'role_changed', membershipId: id, from: record.role, to: role, by: actor.userId }, 'role changed');
-    res.json({ ...record, role });
+    const { membership, from } = await admin.changeMembershipRole(deps, c, id, role);
+    if (from !== role) req.log.info({ event: 'role_changed', membershipId: id, from, to: role, by: c.actor.userId }, 'role changed');
+    res.json(membership);
   });
 
   router.delete('/memberships/:id', async (req, res) => {
-    const { actor, ability } = actorOf(req);
+    const c = caller(req);
     const { id } = parse(idParams, req.params, 'path');
-    const record = authorizeRecord(ability, 'delete', 'Membership', await withTenant(sequelize, actor.tenantId, () => admin.findMembership(sequelize, actor.tenantId, id)), 'membership');
-    if (record.userId === actor.userId) throw AppError.unprocessable('You cannot remove your own membership.');
-    await withTenant(sequelize, actor.tenantId, () => admin.removeMembership(sequelize, actor.tenantId, id));
-    req.log.info({ event: 'membership_removed', membershipId: id, by: actor.userId }, 'membership removed');
+    await admin.removeMembership(deps, c, id);
+    req.log.info({ event: 'membership_removed', membershipId: id, by: c.actor.userId }, 'membership removed');
     res.status(204).end();
   });
 
   router.get('/qualifications', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    authorizeType(ability, 'read', 'Qualification', { tenantId: actor.tenantId }, 'qualifications');
-    const q = parse(pageQuerySchema.extend({ userId: uuidSchema.optional() }), req.query, 'query');
-    res.json(await withTenant(sequelize, actor.tenantId, () => admin.listQualifications(sequelize, actor.tenantId, q.page, q.pageSize, q.userId)));
+    res.json(await admin.listQualifications(deps, caller(req), parse(pageQuerySchema.extend({ userId: uuidSchema.optional() }), req.query, 'query')));
   });
 
   router.post('/qualifications', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    authorizeType(ability, 'create', 'Qualification', { tenantId: actor.tenantId }, 'qualifications');
-    const input = parse(qualificationBodySchema, req.body, 'qualification');
-    res.status(201).json(await withTenant(sequelize, actor.tenantId, () => admin.createQualification(sequelize, actor.tenantId, input)));
+    res.status(201).json(await admin.createQualification(deps, caller(req), parse(qualificationBodySchema, req.body, 'qualification')));
   });
 
   router.post('/invitations', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    authorizeType(ability, 'create', 'Invitation', { tenantId: actor.tenantId }, 'invitations');
     const input = parse(inviteInputSchema, req.body, 'invitation');
-    await invite(deps, actor.tenantId, actor.userId, input);
+    await admin.inviteMember(deps, caller(req), input);
     res.status(202).json({ ok: true, email: input.email });
   });
 
   return router;
 }
-

@@ -1,13 +1,16 @@
 import type { Request } from 'express';
 import type { Sequelize } from 'sequelize';
+import type { AppAbility } from '@shared/abilities/define-ability';
 import type { AppDeps } from '../../deps';
 import { actorOf } from '../../middleware/authenticate';
+import { clientIp } from '../../lib/client-ip';
 import { appendAudit } from '../audit/audit.service';
 
-/** Who is changing the register, in which tenant, and when: what every write and its audit event need. */
+/** Who is reading or changing the register, in which tenant, and when: what every check, write and audit event needs. */
 export interface AssetContext {
   sequelize: Sequelize;
   tenantId: string;
+  ability: AppAbility;
   who: { userId: string; name: string; role: string | null };
   now: Date;
   ip: string | null;
@@ -17,14 +20,15 @@ export interface AssetContext {
 const EDITOR_ROLES = ['tenant_admin', 'authoriser'];
 
 export function assetContext(deps: AppDeps, req: Request): AssetContext {
-  const { actor, user } = actorOf(req);
+  const { actor, ability, user } = actorOf(req);
   const roles = actor.memberships.map((m) => m.role);
   return {
     sequelize: deps.sequelize,
     tenantId: actor.tenantId,
+    ability,
     who: { userId: user.id, name: user.name, role: roles.find((r) => EDITOR_ROLES.includes(r)) ?? roles[0] ?? null },
     now: deps.clock.now(),
-    ip: req.ip ?? null,
+    ip: clientIp(req),
   };
 }
 

@@ -25,16 +25,15 @@ import {
 } from '@shared/schemas/assets.schema';
 import type { InventoryKind } from '@shared/assets/inventory-state';
 import type { AppDeps } from '../../deps';
-import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
-import { actorOf, requireTenant } from '../../middleware/authenticate';
+import { requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
-import { authorizeRecord, authorizeType } from '../../lib/authorize';
+import { idempotentBody } from '../../middleware/idempotency';
 import { assetContext } from './asset-context';
-import { createPipeline, findPipelineRow, getPipeline, listPipelines, updatePipeline } from './pipelines.service';
-import { createPoint, findPoint, listPoints, updatePoint } from './points.service';
-import { createInventory, findInventory, listInventory, updateInventory } from './inventory.service';
-import { exportAssets, importAssets } from './import.service';
+import { createPipeline, getPipeline, listPipelines, updatePipeline } from './pipelines.service';
+import { createPoint, getPoint, listPoints, updatePoint } from './points.service';
+import { createInventory, getInventory, listInventory, updateInventory } from './inventory.service';
+import { exportRegisterCsv, importRegisterCsv } from './register-csv.service';
 
 const CSV_LIMIT_BYTES = 2 * 1024 * 1024;
 const csvText = express.text({ type: ['text/csv', 'text/plain', 'application/csv'], limit: CSV_LIMIT_BYTES });
@@ -51,7 +50,7 @@ const csvUpload: RequestHandler = (req, res, next) => {
   });
 };
 
-const importBodySchema = z.object({ csv: z.string({ message: 'Put the CSV text in "csv".' }).max(CSV_LIMIT_BYTES) });
+const importBodySchema = z.strictObject({ csv: z.string({ message: 'Put the CSV text in "csv".' }).max(CSV_LIMIT_BYTES) });
 
 function csvFromRequest(req: express.Request): string {
   if (req.file) {
@@ -69,124 +68,71 @@ function csvFromRequest(req: express.Request): string {
 
 export function createAssetsRouter(deps: AppDeps) {
   const router = Router();
-  const { sequelize } = deps;
   router.use(['/pipelines', '/isolation-points', '/locks', '/tags', '/imports/assets', '/exports/assets.csv'], requireTenant);
-  const tenantOf = (req: express.Request) => actorOf(req).actor.tenantId;
-  const inTenant = <T>(req: express.Request, fn: () => Promise<T>) => withTenant(sequelize, tenantOf(req), fn);
+  const ctx = (req: express.Request) => assetContext(deps, req);
   const idOf = (req: express.Request) => parse(uuidSchema, req.params.id, 'path');
 
   router.get('/pipelines', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    authorizeType(ability, 'read', 'Pipeline', { tenantId: actor.tenantId }, 'pipelines');
-    const q = parse(pipelinesQuerySchema, req.query, 'query');
-    res.json(await inTenant(req, () => listPipelines(sequelize, actor.tenantId, q)));
+    res.json(await listPipelines(ctx(req), parse(pipelinesQuerySchema, req.query, 'query')));
   });
 
   router.post('/pipelines', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    authorizeType(ability, 'create', 'Pipeline', { tenantId: actor.tenantId }, 'pipelines');
-    const input = parse(pipelineInputSchema, req.body, 'pipeline');
-    res.status(201).json(await inTenant(req, () => createPipeline(assetContext(deps, req), input)));
+    res.status(201).json(await createPipeline(ctx(req), parse(pipelineInputSchema, req.body, 'pipeline')));
   });
 
   router.get('/pipelines/:id', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    const id = idOf(req);
-    res.json(authorizeRecord(ability, 'read', 'Pipeline', await inTenant(req, () => getPipeline(sequelize, actor.tenantId, id)), 'pipeline'));
+    res.json(await getPipeline(ctx(req), idOf(req)));
   });
 
   router.patch('/pipelines/:id', async (req, res) => {
-    const { actor, ability } = actorOf(req);
     const id = idOf(req);
-    const result = await inTenant(req, async () => {
-      authorizeRecord(ability, 'update', 'Pipeline', await findPipelineRow(sequelize, actor.tenantId, id), 'pipeline');
-      const patch = parse(pipelinePatchSchema, req.body, 'pipeline');
-      return updatePipeline(assetContext(deps, req), id, patch);
-    });
-    res.json(result);
+    res.json(await updatePipeline(ctx(req), id, parse(pipelinePatchSchema, req.body, 'pipeline')));
   });
 
   router.get('/isolation-points', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    authorizeType(ability, 'read', 'IsolationPoint', { tenantId: actor.tenantId }, 'isolation points');
-    const q = parse(pointsQuerySchema, req.query, 'query');
-    res.json(await inTenant(req, () => listPoints(sequelize, actor.tenantId, q)));
+    res.json(await listPoints(ctx(req), parse(pointsQuerySchema, req.query, 'query')));
   });
 
   router.post('/isolation-points', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    authorizeType(ability, 'create', 'IsolationPoint', { tenantId: actor.tenantId }, 'isolation points');
-    const input = parse(pointInputSchema, req.body, 'isolation point');
-    res.status(201).json(await inTenant(req, () => createPoint(assetContext(deps, req), input)));
+    res.status(201).json(await createPoint(ctx(req), parse(pointInputSchema, req.body, 'isolation point')));
   });
 
   router.get('/isolation-points/:id', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    const id = idOf(req);
-    res.json(authorizeRecord(ability, 'read', 'IsolationPoint', await inTenant(req, () => findPoint(sequelize, actor.tenantId, id)), 'isolation point'));
+    res.json(await getPoint(ctx(req), idOf(req)));
   });
 
   router.patch('/isolation-points/:id', async (req, res) => {
-    const { actor, ability } = actorOf(req);
     const id = idOf(req);
-    const result = await inTenant(req, async () => {
-      const current = authorizeRecord(ability, 'update', 'IsolationPoint', await findPoint(sequelize, actor.tenantId, id, true), 'isolation point');
-      const patch = parse(pointPatchSchema, req.body, 'isolation point');
-      return updatePoint(assetContext(deps, req), current, patch);
-    });
-    res.json(result);
+    res.json(await updatePoint(ctx(req), id, parse(pointPatchSchema, req.body, 'isolation point')));
   });
 
-  const inventory = (kind: InventoryKind, path: string, subjectName: 'Lock' | 'Tag', what: string) => {
+  const inventory = (kind: InventoryKind, path: string) => {
     router.get(path, async (req, res) => {
-      const { actor, ability } = actorOf(req);
-      authorizeType(ability, 'read', subjectName, { tenantId: actor.tenantId }, `${what}s`);
-      const q = parse(inventoryQuerySchema, req.query, 'query');
-      res.json(await inTenant(req, () => listInventory(sequelize, kind, actor.tenantId, q)));
+      res.json(await listInventory(ctx(req), kind, parse(inventoryQuerySchema, req.query, 'query')));
     });
     router.post(path, async (req, res) => {
-      const { actor, ability } = actorOf(req);
-      authorizeType(ability, 'create', subjectName, { tenantId: actor.tenantId }, `${what}s`);
-      const input = parse(inventoryInputSchema, req.body, what);
-      res.status(201).json(await inTenant(req, () => createInventory(assetContext(deps, req), kind, input)));
+      res.status(201).json(await createInventory(ctx(req), kind, parse(inventoryInputSchema, req.body, kind)));
     });
     router.get(`${path}/:id`, async (req, res) => {
-      const { actor, ability } = actorOf(req);
-      const id = idOf(req);
-      res.json(authorizeRecord(ability, 'read', subjectName, await inTenant(req, () => findInventory(sequelize, kind, actor.tenantId, id)), what));
+      res.json(await getInventory(ctx(req), kind, idOf(req)));
     });
     router.patch(`${path}/:id`, async (req, res) => {
-      const { actor, ability } = actorOf(req);
       const id = idOf(req);
-      const result = await inTenant(req, async () => {
-        authorizeRecord(ability, 'update', subjectName, await findInventory(sequelize, kind, actor.tenantId, id), what);
-        const patch = parse(inventoryPatchSchema, req.body, what);
-        return updateInventory(assetContext(deps, req), kind, id, patch);
-      });
-      res.json(result);
+      res.json(await updateInventory(ctx(req), kind, id, parse(inventoryPatchSchema, req.body, kind)));
     });
   };
-  inventory('lock', '/locks', 'Lock', 'lock');
-  inventory('tag', '/tags', 'Tag', 'tag');
+  inventory('lock', '/locks');
+  inventory('tag', '/tags');
 
-  router.post('/imports/assets', csvText, csvUpload, async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    // An import both adds and changes records.
-    for (const action of ['create', 'update'] as const) {
-      authorizeType(ability, action, 'Pipeline', { tenantId: actor.tenantId }, 'pipelines');
-      authorizeType(ability, action, 'IsolationPoint', { tenantId: actor.tenantId }, 'isolation points');
-    }
+  router.post('/imports/assets', csvText, csvUpload, idempotentBody(deps), async (req, res) => {
     const { dryRun } = parse(importQuerySchema, req.query, 'query');
     const csv = csvFromRequest(req);
-    res.json(await inTenant(req, () => importAssets(assetContext(deps, req), csv, dryRun === 'true' || dryRun === '1')));
+    res.json(await importRegisterCsv(ctx(req), csv, dryRun === 'true' || dryRun === '1'));
   });
 
   router.get('/exports/assets.csv', async (req, res) => {
-    const { actor, ability } = actorOf(req);
-    authorizeType(ability, 'read', 'Pipeline', { tenantId: actor.tenantId }, 'pipelines');
-    authorizeType(ability, 'read', 'IsolationPoint', { tenantId: actor.tenantId }, 'isolation points');
-    const { pipelineId } = parse(z.object({ pipelineId: uuidSchema.optional() }), req.query, 'query');
-    const csv = await inTenant(req, () => exportAssets(sequelize, actor.tenantId, pipelineId));
+    const { pipelineId } = parse(z.strictObject({ pipelineId: uuidSchema.optional() }), req.query, 'query');
+    const csv = await exportRegisterCsv(ctx(req), pipelineId);
     const day = deps.clock.now().toISOString().slice(0, 10);
     res.type('text/csv; charset=utf-8').attachment(`holdpoint-assets-${day}.csv`).send(csv);
   });

@@ -1,6 +1,7 @@
 // CSV import and export of the asset register (pipelines, their sites, isolation points).
 import { QueryTypes, type Sequelize } from 'sequelize';
-import { parseCsv, toCsv, type CsvParser } from '@shared/csv/csv';
+import { toCsv, type CsvParser } from '@shared/csv/csv';
+import { parseCsv } from '@shared/csv/read-csv';
 import { assetCsvColumns, pipelineRow, pointRow, siteRow } from '@shared/assets/asset-csv';
 import { planAssetImport, summarise, type ImportSnapshot } from '@shared/assets/import-plan';
 import type { ImportReport } from '@shared/assets/types';

@@ -4,17 +4,25 @@ import type { Page } from '@shared/schemas/common.schema';
 import type { InventoryInput, InventoryPatch, InventoryQuery, InventoryState } from '@shared/schemas/assets.schema';
 import { inventoryChangeRefusal, type InventoryKind } from '@shared/assets/inventory-state';
 import type { InventoryItem } from '@shared/assets/types';
+import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
+import { authorizeRecord, authorizeType } from '../../lib/authorize';
 import { auditAsset, type AssetContext } from './asset-context';
 
 // Only these two names ever reach the SQL below.
 const TABLE: Record<InventoryKind, 'locks' | 'tags'> = { lock: 'locks', tag: 'tags' };
 const LABEL: Record<InventoryKind, string> = { lock: 'Lock', tag: 'Tag' };
+const SUBJECT: Record<InventoryKind, 'Lock' | 'Tag'> = { lock: 'Lock', tag: 'Tag' };
 
 const select = (kind: InventoryKind) => `SELECT x.id, x.number, x.state, x.holder_user_id AS "holderUserId", u.name AS "holderName", x.notes, x.updated_at AS "updatedAt"
   FROM ${TABLE[kind]} x LEFT JOIN users u ON u.id = x.holder_user_id`;
 
-export async function listInventory(sequelize: Sequelize, kind: InventoryKind, tenantId: string, q: InventoryQuery): Promise<Page<InventoryItem>> {
+export async function listInventory(ctx: AssetContext, kind: InventoryKind, q: InventoryQuery): Promise<Page<InventoryItem>> {
+  authorizeType(ctx.ability, 'read', SUBJECT[kind], { tenantId: ctx.tenantId }, `${kind}s`);
+  return withTenant(ctx.sequelize, ctx.tenantId, () => inventoryPage(ctx.sequelize, kind, ctx.tenantId, q));
+}
+
+async function inventoryPage(sequelize: Sequelize, kind: InventoryKind, tenantId: string, q: InventoryQuery): Promise<Page<InventoryItem>> {
   const where = ['x.tenant_id = :tenantId'];
   const replacements: Record<string, unknown> = { tenantId, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
   if (q.state) {
@@ -36,7 +44,11 @@ export async function listInventory(sequelize: Sequelize, kind: InventoryKind, t
   return { items, total: n, page: q.page, pageSize: q.pageSize };
 }
 
-export async function findInventory(sequelize: Sequelize, kind: InventoryKind, tenantId: string, id: string, lock = false): Promise<(InventoryItem & { tenantId: string }) | null> {
+export async function getInventory(ctx: AssetContext, kind: InventoryKind, id: string): Promise<InventoryItem & { tenantId: string }> {
+  return withTenant(ctx.sequelize, ctx.tenantId, async () => authorizeRecord(ctx.ability, 'read', SUBJECT[kind], await findInventory(ctx.sequelize, kind, ctx.tenantId, id), kind));
+}
+
+async function findInventory(sequelize: Sequelize, kind: InventoryKind, tenantId: string, id: string, lock = false): Promise<(InventoryItem & { tenantId: string }) | null> {
   const rows = await sequelize.query<InventoryItem>(`${select(kind)} WHERE x.tenant_id = :tenantId AND x.id = :id${lock ? ' FOR UPDATE OF x' : ''}`, {
     replacements: { tenantId, id },
     type: QueryTypes.SELECT,
@@ -70,6 +82,11 @@ async function guardUnique<T>(kind: InventoryKind, number: string, write: () => 
 }
 
 export async function createInventory(ctx: AssetContext, kind: InventoryKind, input: InventoryInput): Promise<InventoryItem> {
+  authorizeType(ctx.ability, 'create', SUBJECT[kind], { tenantId: ctx.tenantId }, `${kind}s`);
+  return withTenant(ctx.sequelize, ctx.tenantId, () => insertInventory(ctx, kind, input));
+}
+
+async function insertInventory(ctx: AssetContext, kind: InventoryKind, input: InventoryInput): Promise<InventoryItem> {
   const { sequelize, tenantId } = ctx;
   if (await numberTaken(sequelize, kind, tenantId, input.number, null)) throw numberConflict(kind, input.number);
   await requireMember(sequelize, tenantId, input.holderUserId);
@@ -86,8 +103,15 @@ export async function createInventory(ctx: AssetContext, kind: InventoryKind, in
 }
 
 export async function updateInventory(ctx: AssetContext, kind: InventoryKind, id: string, patch: InventoryPatch): Promise<InventoryItem> {
+  return withTenant(ctx.sequelize, ctx.tenantId, async () => {
+    const current = authorizeRecord(ctx.ability, 'update', SUBJECT[kind], await findInventory(ctx.sequelize, kind, ctx.tenantId, id, true), kind);
+    return applyInventoryPatch(ctx, kind, current, patch);
+  });
+}
+
+async function applyInventoryPatch(ctx: AssetContext, kind: InventoryKind, current: InventoryItem, patch: InventoryPatch): Promise<InventoryItem> {
   const { sequelize, tenantId } = ctx;
-  const current = (await findInventory(sequelize, kind, tenantId, id, true))!;
+  const { id } = current;
   const refusal = inventoryChangeRefusal(kind, current, patch);
   if (refusal) throw AppError.unprocessable(refusal);
   if (patch.number && patch.number !== current.number && (await numberTaken(sequelize, kind, tenantId, patch.number, id))) throw numberConflict(kind, patch.number);

@@ -4,7 +4,9 @@ import { pipelineInputSchema, type PipelineInput, type PipelinePatch, type Pipel
 import { outsideDiameter, resolveInsideDiameter } from '@shared/assets/inside-diameter';
 import { deriveSegments } from '@shared/assets/segments';
 import type { PipelineDetail, PipelineSite, PipelineSummary } from '@shared/assets/types';
+import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
+import { authorizeRecord, authorizeType } from '../../lib/authorize';
 import { zodDetails } from '../../middleware/validate';
 import { auditAsset, type AssetContext } from './asset-context';
 import { pointsOfPipeline } from './points.service';
@@ -16,7 +18,12 @@ const SUMMARY_COLUMNS = `p.id, p.code, p.name, p.product, p.nps::float8 AS nps, 
 
 const likeOf = (q: string) => `%${q.replace(/[%_\\]/g, (c) => `\\${c}`)}%`;
 
-export async function listPipelines(sequelize: Sequelize, tenantId: string, q: PipelinesQuery): Promise<Page<PipelineSummary>> {
+export async function listPipelines(ctx: AssetContext, q: PipelinesQuery): Promise<Page<PipelineSummary>> {
+  authorizeType(ctx.ability, 'read', 'Pipeline', { tenantId: ctx.tenantId }, 'pipelines');
+  return withTenant(ctx.sequelize, ctx.tenantId, () => pipelinesPage(ctx.sequelize, ctx.tenantId, q));
+}
+
+async function pipelinesPage(sequelize: Sequelize, tenantId: string, q: PipelinesQuery): Promise<Page<PipelineSummary>> {
   const where = ['p.tenant_id = :tenantId'];
   const replacements: Record<string, unknown> = { tenantId, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
   if (q.q) {
@@ -55,7 +62,11 @@ export async function sitesOf(sequelize: Sequelize, tenantId: string, pipelineId
   });
 }
 
-export async function getPipeline(sequelize: Sequelize, tenantId: string, id: string): Promise<(PipelineDetail & { tenantId: string }) | null> {
+export async function getPipeline(ctx: AssetContext, id: string): Promise<PipelineDetail & { tenantId: string }> {
+  return withTenant(ctx.sequelize, ctx.tenantId, async () => authorizeRecord(ctx.ability, 'read', 'Pipeline', await loadPipeline(ctx.sequelize, ctx.tenantId, id), 'pipeline'));
+}
+
+async function loadPipeline(sequelize: Sequelize, tenantId: string, id: string): Promise<(PipelineDetail & { tenantId: string }) | null> {
   const row = await findPipelineRow(sequelize, tenantId, id);
   if (!row) return null;
   const [sites, points] = [await sitesOf(sequelize, tenantId, id), await pointsOfPipeline(sequelize, tenantId, id)];
@@ -138,12 +149,15 @@ async function guardUnique<T>(code: string, write: () => Promise<T>): Promise<T>
 
 export async function createPipeline(ctx: AssetContext, input: PipelineInput): Promise<PipelineDetail> {
   const { sequelize, tenantId } = ctx;
-  const taken = await codeTaken(sequelize, tenantId, input.code, null);
-  if (taken) throw codeConflict(input.code, taken);
-  const id = await guardUnique(input.code, () => insertPipelineRow(sequelize, tenantId, input));
-  for (const s of input.sites ?? []) await upsertSite(sequelize, tenantId, id, s);
-  await auditAsset(ctx, { entityType: 'pipeline', entityId: id, action: 'created', data: { code: input.code, name: input.name } });
-  return (await getPipeline(sequelize, tenantId, id))!;
+  authorizeType(ctx.ability, 'create', 'Pipeline', { tenantId }, 'pipelines');
+  return withTenant(sequelize, tenantId, async () => {
+    const taken = await codeTaken(sequelize, tenantId, input.code, null);
+    if (taken) throw codeConflict(input.code, taken);
+    const id = await guardUnique(input.code, () => insertPipelineRow(sequelize, tenantId, input));
+    for (const s of input.sites ?? []) await upsertSite(sequelize, tenantId, id, s);
+    await auditAsset(ctx, { entityType: 'pipeline', entityId: id, action: 'created', data: { code: input.code, name: input.name } });
+    return (await loadPipeline(sequelize, tenantId, id))!;
+  });
 }
 
 /** The record as the create schema sees it, so a change is checked against the whole pipeline. */
@@ -165,8 +179,15 @@ function asInput(row: PipelineRow, sites: PipelineSite[]): PipelineInput {
 }
 
 export async function updatePipeline(ctx: AssetContext, id: string, patch: PipelinePatch): Promise<PipelineDetail> {
+  return withTenant(ctx.sequelize, ctx.tenantId, async () => {
+    const row = authorizeRecord(ctx.ability, 'update', 'Pipeline', await findPipelineRow(ctx.sequelize, ctx.tenantId, id, true), 'pipeline');
+    return applyPipelinePatch(ctx, row, patch);
+  });
+}
+
+async function applyPipelinePatch(ctx: AssetContext, row: PipelineRow, patch: PipelinePatch): Promise<PipelineDetail> {
   const { sequelize, tenantId } = ctx;
-  const row = (await findPipelineRow(sequelize, tenantId, id, true))!;
+  const { id } = row;
   const before = asInput(row, await sitesOf(sequelize, tenantId, id));
   const merged = { ...before, ...patch };
   const checked = pipelineInputSchema.safeParse(merged);
@@ -192,5 +213,5 @@ export async function updatePipeline(ctx: AssetContext, id: string, patch: Pipel
   if (patch.sites) await replaceSites(sequelize, tenantId, id, next.sites ?? []);
   const changed = Object.keys(patch).filter((k) => JSON.stringify((patch as Record<string, unknown>)[k]) !== JSON.stringify((before as Record<string, unknown>)[k]));
   await auditAsset(ctx, { entityType: 'pipeline', entityId: id, action: 'updated', data: { code: next.code, fields: changed } });
-  return (await getPipeline(sequelize, tenantId, id))!;
+  return (await loadPipeline(sequelize, tenantId, id))!;
 }

@@ -3,7 +3,9 @@ import type { Page } from '@shared/schemas/common.schema';
 import { pointRecordSchema, type PointInput, type PointPatch, type PointsQuery } from '@shared/schemas/assets.schema';
 import type { IsolationPoint } from '@shared/assets/types';
 import type { PointRecord } from '@shared/assets/import-plan';
+import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
+import { authorizeRecord, authorizeType } from '../../lib/authorize';
 import { parse } from '../../middleware/validate';
 import { auditAsset, type AssetContext } from './asset-context';
 
@@ -16,7 +18,12 @@ export const POINT_SELECT = `SELECT ip.id, ip.pipeline_id AS "pipelineId", p.cod
 
 const likeOf = (q: string) => `%${q.replace(/[%_\\]/g, (c) => `\\${c}`)}%`;
 
-export async function listPoints(sequelize: Sequelize, tenantId: string, q: PointsQuery): Promise<Page<IsolationPoint>> {
+export async function listPoints(ctx: AssetContext, q: PointsQuery): Promise<Page<IsolationPoint>> {
+  authorizeType(ctx.ability, 'read', 'IsolationPoint', { tenantId: ctx.tenantId }, 'isolation points');
+  return withTenant(ctx.sequelize, ctx.tenantId, () => pointsPage(ctx.sequelize, ctx.tenantId, q));
+}
+
+async function pointsPage(sequelize: Sequelize, tenantId: string, q: PointsQuery): Promise<Page<IsolationPoint>> {
   const where = ['ip.tenant_id = :tenantId'];
   const replacements: Record<string, unknown> = { tenantId, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
   if (q.pipelineId) {
@@ -44,7 +51,11 @@ export async function pointsOfPipeline(sequelize: Sequelize, tenantId: string, p
   });
 }
 
-export async function findPoint(sequelize: Sequelize, tenantId: string, id: string, lock = false): Promise<(IsolationPoint & { tenantId: string }) | null> {
+export async function getPoint(ctx: AssetContext, id: string): Promise<IsolationPoint & { tenantId: string }> {
+  return withTenant(ctx.sequelize, ctx.tenantId, async () => authorizeRecord(ctx.ability, 'read', 'IsolationPoint', await findPoint(ctx.sequelize, ctx.tenantId, id), 'isolation point'));
+}
+
+async function findPoint(sequelize: Sequelize, tenantId: string, id: string, lock = false): Promise<(IsolationPoint & { tenantId: string }) | null> {
   const rows = await sequelize.query<IsolationPoint>(`${POINT_SELECT} WHERE ip.tenant_id = :tenantId AND ip.id = :id${lock ? ' FOR UPDATE OF ip' : ''}`, {
     replacements: { tenantId, id },
     type: QueryTypes.SELECT,
@@ -125,6 +136,11 @@ async function guardUnique<T>(tagCode: string, write: () => Promise<T>): Promise
 }
 
 export async function createPoint(ctx: AssetContext, input: PointInput): Promise<IsolationPoint> {
+  authorizeType(ctx.ability, 'create', 'IsolationPoint', { tenantId: ctx.tenantId }, 'isolation points');
+  return withTenant(ctx.sequelize, ctx.tenantId, () => insertPoint(ctx, input));
+}
+
+async function insertPoint(ctx: AssetContext, input: PointInput): Promise<IsolationPoint> {
   const { sequelize, tenantId } = ctx;
   const line = await lockPipeline(sequelize, tenantId, input.pipelineId);
   if (!line) throw AppError.validation('The pipeline was not found.', [{ path: 'pipelineId', message: 'Choose a pipeline of this register.' }]);
@@ -139,9 +155,17 @@ export async function createPoint(ctx: AssetContext, input: PointInput): Promise
 
 const VALVE_FIELDS = ['valveType', 'normalPosition', 'remotelyOperable'] as const;
 
-export async function updatePoint(ctx: AssetContext, current: IsolationPoint, patch: PointPatch): Promise<IsolationPoint> {
+export async function updatePoint(ctx: AssetContext, id: string, patch: PointPatch): Promise<IsolationPoint> {
+  return withTenant(ctx.sequelize, ctx.tenantId, async () => {
+    const current = authorizeRecord(ctx.ability, 'update', 'IsolationPoint', await findPoint(ctx.sequelize, ctx.tenantId, id, true), 'isolation point');
+    return applyPointPatch(ctx, current, patch);
+  });
+}
+
+async function applyPointPatch(ctx: AssetContext, current: IsolationPoint, patch: PointPatch): Promise<IsolationPoint> {
   const { sequelize, tenantId } = ctx;
-  const merged: Record<string, unknown> = { ...current, ...patch };
+  // Only the record's own fields: the row also carries ids, names and times, which the strict schema refuses.
+  const merged: Record<string, unknown> = Object.fromEntries(Object.entries({ ...current, ...patch }).filter(([k]) => k in pointRecordSchema.shape));
   // Turning a valve into something else drops the valve details unless the change sets them.
   if (patch.kind && patch.kind !== 'block_valve') for (const f of VALVE_FIELDS) if (!(f in patch)) merged[f] = null;
   const record = parse(pointRecordSchema, merged, 'isolation point');

@@ -13,6 +13,8 @@ import type { AppDeps } from '../../deps';
 import { AppError } from '../../errors/app-error';
 import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
+import { idempotentBody } from '../../middleware/idempotency';
+import { clientIp } from '../../lib/client-ip';
 import type { CallerContext } from '../permits/permits.service';
 import { addAttachment, checkMayUpload, listAttachments, openAttachment } from './attachments.service';
 import { contentDisposition } from './file-checks';
@@ -49,7 +51,7 @@ export function createAttachmentsRouter(deps: AppDeps) {
 
   const router = Router();
   router.use(['/permits/:id/attachments', '/attachments'], requireTenant);
-  const caller = (req: Request): CallerContext => ({ ...actorOf(req), ip: req.ip });
+  const caller = (req: Request): CallerContext => ({ ...actorOf(req), ip: clientIp(req) });
   const permitId = (req: Request) => parse(uuidSchema, req.params.id, 'path');
 
   const mayUpload = async (req: Request, _res: Response, next: NextFunction) => {
@@ -57,7 +59,8 @@ export function createAttachmentsRouter(deps: AppDeps) {
     next();
   };
 
-  router.post('/permits/:id/attachments', mayUpload, singleUpload(deps.config.UPLOAD_MAX_BYTES), async (req, res) => {
+  // The Idempotency-Key covers the file too: idempotentBody runs once multer has read it.
+  router.post('/permits/:id/attachments', mayUpload, singleUpload(deps.config.UPLOAD_MAX_BYTES), idempotentBody(deps), async (req, res) => {
     const fields = parse(uploadAttachmentFieldsSchema, { ...req.body }, 'upload');
     res.status(201).json(await addAttachment(deps, caller(req), permitId(req), req.file, fields));
   });

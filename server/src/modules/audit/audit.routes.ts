@@ -1,5 +1,5 @@
 // Audit trail.
-//   GET /api/audit/verify   tenant admin, authoriser, auditor: recompute the tenant's hash chain
+//   GET /api/audit/verify   tenant admin, authoriser, auditor: recompute the tenant's hash chain; lists every break found
 //   GET /api/audit/events   tenant admin, authoriser, auditor: the tenant's events, newest first, paged
 import { Router } from 'express';
 import { QueryTypes } from 'sequelize';

@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto';
 import { QueryTypes, type Sequelize } from 'sequelize';
+import { validIp } from '../../lib/client-ip';
 import { canonicalJson } from './canonical-json';
 
 export interface AuditInput {
@@ -38,27 +39,37 @@ interface StoredEvent {
   hash: string;
 }
 
-/** Exported so a bulk import (the scale dataset) chains its events exactly as appendAudit does. */
+/**
+ * The hash of one event: SHA-256 over the previous hash, a line break and the event's canonical form,
+ * a JSON array of its fields (object keys sorted at every level, the time as ISO-8601 UTC) in UTF-8.
+ * The values must be those PostgreSQL returns for the stored row (appendAudit hashes exactly those), so
+ * reading the row back gives the same bytes. Exported so a bulk import (the scale dataset) chains its
+ * events exactly as appendAudit does.
+ */
 export function eventHash(prevHash: string, e: Omit<StoredEvent, 'hash' | 'prev_hash'>): string {
+  return createHash('sha256').update(prevHash).update('\n').update(canonicalEventBytes(e)).digest('hex');
+}
+
+export function canonicalEventBytes(e: Omit<StoredEvent, 'hash' | 'prev_hash'>): Buffer {
   const body = canonicalJson([
-    e.tenant_id, e.seq, e.entity_type, e.entity_id, e.permit_id, e.action, e.from_state, e.to_state,
+    e.tenant_id, Number(e.seq), e.entity_type, e.entity_id, e.permit_id, e.action, e.from_state, e.to_state,
     e.actor_user_id, e.actor_name, e.actor_role, e.membership_id, e.reason, e.ip, e.data, new Date(e.occurred_at).toISOString(),
   ]);
-  return createHash('sha256').update(prevHash).update('\n').update(body).digest('hex');
+  return Buffer.from(body, 'utf8');
 }
+
+type EventFields = Omit<StoredEvent, 'seq' | 'hash' | 'prev_hash'>;
 
 /**
  * Appends one event to the tenant's chain inside the caller's transaction. The chain head is locked,
- * so two writers of one tenant queue rather than fork the chain.
+ * so two writers of one tenant queue rather than fork the chain. The statement that locks the head
+ * also hands the event's values to PostgreSQL and takes them back as the columns' types return them
+ * (jsonb reorders keys and rewrites numbers, uuid is lower-cased, text is UTF-8): the hash is taken
+ * over what is stored, so verifying the row read back gives the same hash.
  */
 export async function appendAudit(sequelize: Sequelize, input: AuditInput): Promise<{ seq: number; hash: string }> {
   await sequelize.query(`INSERT INTO audit_chain_heads (tenant_id) VALUES (:tenantId) ON CONFLICT DO NOTHING`, { replacements: { tenantId: input.tenantId } });
-  const [head] = await sequelize.query<{ seq: number; last_hash: string }>(`SELECT seq, last_hash FROM audit_chain_heads WHERE tenant_id = :tenantId FOR UPDATE`, {
-    replacements: { tenantId: input.tenantId },
-    type: QueryTypes.SELECT,
-  });
-  const event = {
-    seq: Number(head.seq) + 1,
+  const given = {
     tenant_id: input.tenantId,
     entity_type: input.entityType,
     entity_id: input.entityId,
@@ -71,34 +82,64 @@ export async function appendAudit(sequelize: Sequelize, input: AuditInput): Prom
     actor_role: input.actor?.role ?? null,
     membership_id: input.actor?.membershipId ?? null,
     reason: input.reason ?? null,
-    ip: input.ip ?? null,
-    data: JSON.parse(canonicalJson(input.data ?? {})) as Record<string, unknown>,
+    // Whatever a caller passes, the trail holds an IP address or nothing.
+    ip: validIp(input.ip),
+    data: canonicalJson(input.data ?? {}),
     occurred_at: input.occurredAt,
   };
-  const hash = eventHash(head.last_hash, event);
+  const [head] = await sequelize.query<{ seq: number; last_hash: string } & EventFields>(
+    `SELECT h.seq, h.last_hash,
+            CAST(:tenant_id AS uuid) AS tenant_id, CAST(:entity_type AS text) AS entity_type, CAST(:entity_id AS uuid) AS entity_id,
+            CAST(:permit_id AS uuid) AS permit_id, CAST(:action AS text) AS action, CAST(:from_state AS text) AS from_state,
+            CAST(:to_state AS text) AS to_state, CAST(:actor_user_id AS uuid) AS actor_user_id, CAST(:actor_name AS text) AS actor_name,
+            CAST(:actor_role AS text) AS actor_role, CAST(:membership_id AS uuid) AS membership_id, CAST(:reason AS text) AS reason,
+            CAST(:ip AS text) AS ip, CAST(:data AS jsonb) AS data, CAST(:occurred_at AS timestamptz) AS occurred_at
+     FROM audit_chain_heads h WHERE h.tenant_id = :tenantId FOR UPDATE`,
+    { replacements: { ...given, tenantId: input.tenantId }, type: QueryTypes.SELECT },
+  );
+  const { seq: headSeq, last_hash: prevHash, ...stored } = head;
+  const event = { ...stored, seq: Number(headSeq) + 1 };
+  const hash = eventHash(prevHash, event);
   await sequelize.query(
     `INSERT INTO audit_events (tenant_id, seq, entity_type, entity_id, permit_id, action, from_state, to_state, actor_user_id, actor_name, actor_role,
        membership_id, reason, ip, data, occurred_at, prev_hash, hash)
      VALUES (:tenant_id, :seq, :entity_type, :entity_id, :permit_id, :action, :from_state, :to_state, :actor_user_id, :actor_name, :actor_role,
        :membership_id, :reason, :ip, CAST(:data AS jsonb), :occurred_at, :prev_hash, :hash)`,
-    { replacements: { ...event, data: JSON.stringify(event.data), prev_hash: head.last_hash, hash } },
+    // The same text for data and the same instant as the values hashed above.
+    { replacements: { ...event, data: given.data, occurred_at: given.occurred_at, prev_hash: prevHash, hash } },
   );
   await sequelize.query(`UPDATE audit_chain_heads SET seq = :seq, last_hash = :hash WHERE tenant_id = :tenantId`, { replacements: { seq: event.seq, hash, tenantId: input.tenantId } });
   return { seq: event.seq, hash };
 }
 
+export interface ChainBreak {
+  /** The event, or the first of a run of events, the problem is found at. */
+  seq: number;
+  /** The last event of the run, when the problem covers several. */
+  lastSeq?: number;
+  problem: string;
+}
+
 export interface ChainReport {
   ok: boolean;
+  /** Events read and checked. */
   events: number;
+  /** Every problem found, in the order found; a changed event does not hide later ones. */
+  breaks: ChainBreak[];
+  /** The first problem found (for readers of the earlier answer, which had only this one). */
   brokenAtSeq?: number;
   problem?: string;
 }
 
+const run = (seq: number, lastSeq: number, problem: string): ChainBreak => (lastSeq > seq ? { seq, lastSeq, problem } : { seq, problem });
+
 /**
- * Recomputes every hash of the tenant's chain, in pages, and reports the first break. The head and the
- * last sequence are read first, in one statement (one snapshot): events appended while the check runs
- * commit together with their head and are left for the next check instead of being reported missing,
- * while an event sitting beyond the head in that snapshot was not written by appendAudit.
+ * Recomputes every hash of the tenant's chain, in pages, and reports every break. Each event is checked
+ * on its own (its stored fields against its hash, its link against the event before it), so one changed
+ * event does not hide a later change. The head and the last sequence are read first, in one statement
+ * (one snapshot): events appended while the check runs commit together with their head and are left for
+ * the next check instead of being reported missing, while an event sitting beyond the head in that
+ * snapshot was not written by appendAudit.
  */
 export async function verifyChain(sequelize: Sequelize, tenantId: string, pageSize = 5_000): Promise<ChainReport> {
   const [start] = await sequelize.query<{ seq: number | null; last_hash: string | null; last_seq: number | null }>(
@@ -107,30 +148,41 @@ export async function verifyChain(sequelize: Sequelize, tenantId: string, pageSi
     { replacements: { tenantId }, type: QueryTypes.SELECT },
   );
   const headSeq = start.seq === null ? 0 : Number(start.seq);
-  if (start.last_seq !== null && Number(start.last_seq) > headSeq)
-    return { ok: false, events: 0, brokenAtSeq: headSeq + 1, problem: start.seq === null ? 'the chain head is missing' : 'an event lies beyond the end of the chain' };
-  let prev = '';
-  let expectedSeq = 1;
+  const lastSeq = start.last_seq === null ? 0 : Number(start.last_seq);
+  const breaks: ChainBreak[] = [];
+  if (lastSeq > headSeq) breaks.push(run(headSeq + 1, lastSeq, start.seq === null ? 'the chain head is missing' : 'an event lies beyond the end of the chain'));
+  let prevSeq = 0;
+  let prevHash = '';
+  let lastWithinHead = 0;
+  let headEventHash: string | null = null;
   let count = 0;
-  while (expectedSeq <= headSeq) {
+  const until = Math.max(headSeq, lastSeq);
+  for (let from = 1; from <= until; ) {
     const rows = await sequelize.query<StoredEvent>(
       `SELECT seq, tenant_id, entity_type, entity_id, permit_id, action, from_state, to_state, actor_user_id, actor_name, actor_role,
               membership_id, reason, ip, data, occurred_at, prev_hash, hash
        FROM audit_events WHERE tenant_id = :tenantId AND seq >= :from AND seq <= :to ORDER BY seq LIMIT :limit`,
-      { replacements: { tenantId, from: expectedSeq, to: headSeq, limit: pageSize }, type: QueryTypes.SELECT },
+      { replacements: { tenantId, from, to: until, limit: pageSize }, type: QueryTypes.SELECT },
     );
     for (const row of rows) {
       const seq = Number(row.seq);
-      if (seq !== expectedSeq) return { ok: false, events: count, brokenAtSeq: expectedSeq, problem: 'an event is missing from the chain' };
-      if (row.prev_hash !== prev) return { ok: false, events: count, brokenAtSeq: seq, problem: 'the link to the previous event does not match' };
-      const { hash: _h, prev_hash: _p, ...rest } = row;
-      if (eventHash(prev, { ...rest, seq }) !== row.hash) return { ok: false, events: count, brokenAtSeq: seq, problem: 'the event was changed after it was written' };
-      prev = row.hash;
-      expectedSeq++;
+      const follows = seq === prevSeq + 1;
+      if (!follows && seq <= headSeq) breaks.push(run(prevSeq + 1, seq - 1, 'events are missing from the chain'));
+      // After a gap the event before is gone, so its link cannot be judged on its own.
+      if (follows && row.prev_hash !== prevHash) breaks.push({ seq, problem: 'the link to the previous event does not match' });
+      const { hash: _h, prev_hash: _p, ...fields } = row;
+      if (eventHash(row.prev_hash, { ...fields, seq }) !== row.hash) breaks.push({ seq, problem: 'the event was changed after it was written' });
+      if (seq <= headSeq) lastWithinHead = seq;
+      if (seq === headSeq) headEventHash = row.hash;
+      prevSeq = seq;
+      prevHash = row.hash;
       count++;
     }
     if (rows.length < pageSize) break;
+    from = prevSeq + 1;
   }
-  if (count !== headSeq || (start.last_hash ?? '') !== prev) return { ok: false, events: count, brokenAtSeq: count + 1, problem: 'events at the end of the chain are missing' };
-  return { ok: true, events: count };
+  if (lastWithinHead < headSeq) breaks.push(run(lastWithinHead + 1, headSeq, 'events at the end of the chain are missing'));
+  else if (headSeq > 0 && headEventHash !== start.last_hash) breaks.push({ seq: headSeq, problem: 'the chain head does not match the last event' });
+  if (!breaks.length) return { ok: true, events: count, breaks };
+  return { ok: false, events: count, breaks, brokenAtSeq: breaks[0].seq, problem: breaks[0].problem };
 }

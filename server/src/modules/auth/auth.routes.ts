@@ -1,11 +1,11 @@
 // Sign-in and account routes.
 //   GET  /api/auth/csrf              anyone: the double-submit token
-//   POST /api/auth/sign-in           anyone (rate-limited per IP and per account)
+//   POST /api/auth/sign-in           anyone (hard limit per IP; failures of one account answered ever more slowly, never locked)
 //   POST /api/auth/sign-out          anyone (ends the session when there is one; clears the cookie)
 //   GET  /api/auth/me                signed in
 //   POST /api/auth/switch-tenant     signed in, member of that tenant
 //   POST /api/auth/accept-invitation anyone holding a valid invitation token
-//   POST /api/auth/forgot-password   anyone (same answer whether or not the account exists)
+//   POST /api/auth/forgot-password   anyone (same answer whether or not the account exists; a few per address and hour)
 //   POST /api/auth/reset-password    anyone holding a valid reset token
 import { Router } from 'express';
 import { rateLimit, ipKeyGenerator } from 'express-rate-limit';
@@ -20,19 +20,15 @@ import type { AppDeps } from '../../deps';
 import { AppError } from '../../errors/app-error';
 import { parse } from '../../middleware/validate';
 import { requireSignIn } from '../../middleware/authenticate';
+import { clientIp } from '../../lib/client-ip';
 import { CSRF_COOKIE, issueCsrfToken } from '../../middleware/csrf';
 import { SECURE_SESSION_COOKIE, SESSION_COOKIE } from '../../middleware/session';
 import { acceptInvitation, buildMe, forgotPassword, resetPassword, signIn, signOut, switchTenant } from './auth.service';
+import { setUpAttemptLimits, tooManyResetRequests, type AuthLimits } from './attempt-limits';
 
-export interface AuthLimits {
-  perIp: number;
-  perAccount: number;
-  windowMs: number;
-}
+export { defaultAuthLimits, type AuthLimits } from './attempt-limits';
 
-export const defaultAuthLimits: AuthLimits = { perIp: 100, perAccount: 10, windowMs: 15 * 60_000 };
-
-function limiter(max: number, windowMs: number, key: (req: import('express').Request) => string, message: string, onlyFailures = false) {
+function limiter(max: number, windowMs: number, key: (req: import('express').Request) => string, message: string) {
   const minutes = Math.max(1, Math.ceil(windowMs / 60_000));
   return rateLimit({
     windowMs,
@@ -40,14 +36,15 @@ function limiter(max: number, windowMs: number, key: (req: import('express').Req
     standardHeaders: 'draft-8',
     legacyHeaders: false,
     keyGenerator: key,
-    // Per account only failures count: a person who signs in often must not lock themselves out.
-    skipSuccessfulRequests: onlyFailures,
+    // X-Forwarded-For from anyone but a proxy named in TRUST_PROXY is ignored on purpose, not a misconfiguration.
+    validate: { xForwardedForHeader: false },
     handler: (_req, _res, next) => next(new AppError('rate_limited', `${message} Wait ${minutes} minute${minutes === 1 ? '' : 's'} and try again.`)),
   });
 }
 
-export function createAuthRouter(deps: AppDeps, limits: AuthLimits = defaultAuthLimits) {
+export function createAuthRouter(deps: AppDeps, authLimits?: AuthLimits) {
   const router = Router();
+  const limits = setUpAttemptLimits(deps, authLimits).limits;
   const secure = deps.config.PUBLIC_URL.startsWith('https://');
 
   router.get('/auth/csrf', (req, res) => {
@@ -56,19 +53,9 @@ export function createAuthRouter(deps: AppDeps, limits: AuthLimits = defaultAuth
     res.json({ csrfToken: token });
   });
 
-  const perIp = limiter(limits.perIp, limits.windowMs, (req) => `ip:${ipKeyGenerator(req.ip ?? '')}`, 'Too many attempts from this network.');
-  const perAccount = limiter(
-    limits.perAccount,
-    limits.windowMs,
-    (req) => {
-      const email = typeof req.body?.email === 'string' ? req.body.email.trim().toLowerCase().slice(0, 254) : '';
-      return `acct:${email}`;
-    },
-    'Too many sign-in attempts for this account.',
-    true,
-  );
-
-  router.post('/auth/sign-in', perIp, perAccount, async (req, res) => {
+  const perIp = limiter(limits.perIp, limits.windowMs, (req) => `ip:${ipKeyGenerator(clientIp(req) ?? req.socket.remoteAddress ?? '')}`, 'Too many attempts from this network.');
+  // Per account there is no hard limit on purpose (it would lock the real person out): see attempt-limits.ts.
+  router.post('/auth/sign-in', perIp, async (req, res) => {
     const input = parse(signInInputSchema, req.body, 'sign-in');
     res.json(await signIn(deps, req, input));
   });
@@ -95,7 +82,11 @@ export function createAuthRouter(deps: AppDeps, limits: AuthLimits = defaultAuth
 
   router.post('/auth/forgot-password', perIp, async (req, res) => {
     const { email } = parse(forgotPasswordInputSchema, req.body);
-    await forgotPassword(deps, email);
+    const retryAfterSeconds = await forgotPassword(deps, email, limits.resetsPerAddress);
+    if (retryAfterSeconds > 0) {
+      res.set('Retry-After', String(retryAfterSeconds));
+      throw tooManyResetRequests(retryAfterSeconds);
+    }
     res.json({ ok: true, message: 'If an account uses that address, a reset link is on its way.' });
   });
 

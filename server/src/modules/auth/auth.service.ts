@@ -11,6 +11,7 @@ import { hashPassword, verifyPassword } from '../../lib/passwords';
 import { hashToken, newToken } from '../../lib/tokens';
 import { csrfNonceOf, newCsrfNonce } from '../../middleware/csrf';
 import { findUserByEmail, loadActor, membershipsOf, tenantSummary } from './auth.repository';
+import { attemptLimits, RESET_WINDOW_SECONDS } from './attempt-limits';
 
 const INVITE_HOURS = 72;
 const RESET_HOURS = 1;
@@ -39,10 +40,14 @@ export async function buildMe(deps: AppDeps, userId: string, tenantId: string | 
 export async function signIn(deps: AppDeps, req: Request, input: SignInInput): Promise<MeResponse> {
   const user = await findUserByEmail(deps.sequelize, input.email);
   const ok = await verifyPassword(user?.password_hash, input.password);
+  const limits = attemptLimits(deps);
   if (!user || !ok || user.disabled_at) {
     req.log?.info({ event: 'sign_in_failed', email: input.email }, 'sign-in failed');
+    // Known and unknown addresses are slowed alike, so the delay does not tell them apart.
+    await limits.signInFailed(input.email);
     throw new AppError('unauthenticated', SIGN_IN_FAILED);
   }
+  limits.signInSucceeded(input.email);
   const memberships = await membershipsOf(deps.sequelize, user.id);
   // Whoever held the session this browser carried may know its CSRF nonce: then the new session gets a fresh one.
   const carriedSession = Boolean(req.session.userId);
@@ -146,7 +151,7 @@ async function claimToken(deps: AppDeps, token: string, kind: TokenRow['kind'], 
 export async function acceptInvitation(deps: AppDeps, input: AcceptInvitationInput) {
   // The membership it adds is tenant data under row-level security: find the invitation's tenant
   // first, then claim the token and write everything in that tenant's one transaction.
-  const [invitation] = await deps.sequelize.query<{ tenant_id: string | null }>(`SELECT tenant_id FROM auth_tokens WHERE token_hash = :hash AND kind = 'invite'`, {
+  const [invitation] = await deps.sequelize.query<{ tenant_id: string | null }>(`SELECT hp_invitation_tenant(:hash) AS tenant_id`, {
     replacements: { hash: hashToken(input.token) },
     type: QueryTypes.SELECT,
   });
@@ -181,42 +186,49 @@ export async function acceptInvitation(deps: AppDeps, input: AcceptInvitationInp
   });
 }
 
-export async function forgotPassword(deps: AppDeps, email: string) {
-  const user = await findUserByEmail(deps.sequelize, email);
-  if (!user || user.disabled_at) return; // never reveal whether the address exists
+/**
+ * Queues a reset link when the address belongs to an active account; answers how many seconds to wait
+ * (0 = accepted) when the address has asked too often. Everything that could differ between a known
+ * and an unknown address happens in one database function (migration 0100): this side builds the
+ * token and the mail the same way for both and sends the same one statement, and the mail itself
+ * goes out later through the outbox.
+ */
+export async function forgotPassword(deps: AppDeps, email: string, perHour: number): Promise<number> {
   const token = newToken();
-  await deps.sequelize.transaction(async (t) => {
-    await deps.sequelize.query(`INSERT INTO auth_tokens (kind, token_hash, email, user_id, expires_at) VALUES ('reset', :hash, :email, :userId, :expires)`, {
-      replacements: { hash: hashToken(token), email: user.email, userId: user.id, expires: new Date(deps.clock.now().getTime() + RESET_HOURS * 3600_000) },
-      transaction: t,
-    });
-    await enqueueMail(
-      deps.sequelize,
-      {
-        to: user.email,
-        subject: 'Reset your Holdpoint password',
-        text: [
-          'Someone asked to reset the password of this Holdpoint account. If it was not you, ignore this mail.',
-          '',
-          `Choose a new password: ${deps.config.PUBLIC_URL}/reset-password?token=${token}`,
-          '',
-          `The link works once and expires in ${RESET_HOURS} hour.`,
-        ].join('\n'),
-      },
-      t,
-    );
-  });
+  const now = deps.clock.now();
+  const text = [
+    'Someone asked to reset the password of this Holdpoint account. If it was not you, ignore this mail.',
+    '',
+    `Choose a new password: ${deps.config.PUBLIC_URL}/reset-password?token=${token}`,
+    '',
+    `The link works once and expires in ${RESET_HOURS} hour.`,
+  ].join('\n');
+  const [{ wait }] = await deps.sequelize.query<{ wait: number }>(
+    `SELECT hp_request_password_reset(:email, :hash, :now, :expires, :subject, :text, :perHour, :window) AS wait`,
+    {
+      replacements: { email, hash: hashToken(token), now, expires: new Date(now.getTime() + RESET_HOURS * 3600_000), subject: 'Reset your Holdpoint password', text, perHour, window: RESET_WINDOW_SECONDS },
+      type: QueryTypes.SELECT,
+    },
+  );
+  return wait;
 }
 
 export async function resetPassword(deps: AppDeps, input: ResetPasswordInput) {
   await deps.sequelize.transaction(async (t) => {
-    const row = await claimToken(deps, input.token, 'reset', t);
+    // Reset links carry no tenant: they are claimed through an owner-run function, which also spends
+    // every other outstanding reset link of the account.
+    const [claim] = await deps.sequelize.query<{ outcome: 'ok' | 'invalid' | 'expired'; userId: string | null }>(
+      `SELECT outcome, reset_user AS "userId" FROM hp_claim_reset_token(:hash, :now)`,
+      { replacements: { hash: hashToken(input.token), now: deps.clock.now() }, type: QueryTypes.SELECT, transaction: t },
+    );
+    if (claim.outcome === 'expired') throw AppError.unprocessable('This reset link has expired. Ask for a new one.');
+    if (claim.outcome !== 'ok' || !claim.userId) throw AppError.unprocessable('This reset link is not valid or has already been used.');
     await deps.sequelize.query(`UPDATE users SET password_hash = :hash, updated_at = now() WHERE id = :id`, {
-      replacements: { id: row.user_id, hash: await hashPassword(input.password) },
+      replacements: { id: claim.userId, hash: await hashPassword(input.password) },
       transaction: t,
     });
     // Every existing session of the account ends with the old password.
-    await deps.sequelize.query(`DELETE FROM http_sessions WHERE sess->>'userId' = :id`, { replacements: { id: row.user_id }, transaction: t });
-    deps.logger.info({ event: 'password_reset', userId: row.user_id }, 'password reset');
+    await deps.sequelize.query(`DELETE FROM http_sessions WHERE sess->>'userId' = :id`, { replacements: { id: claim.userId }, transaction: t });
+    deps.logger.info({ event: 'password_reset', userId: claim.userId }, 'password reset');
   });
 }

@@ -13,7 +13,6 @@ import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { zodDetails } from '../../middleware/validate';
 import { authorizeType } from '../../lib/authorize';
 import { AppError } from '../../errors/app-error';
-import { withTenant } from '../../db/sequelize';
 import * as calc from './calc.service';
 
 /** Like parse(), but a single bad field leads with its own message, as a CalcInputError does. */
@@ -59,9 +58,9 @@ export function createCalcRouter(deps: AppDeps) {
   router.post('/calc/atmosphere', async (req, res) => {
     const actor = allowed(req);
     const input = parseInput(atmosphereRequestSchema, req.body, 'gas readings');
-    const { limits, ignored } = await withTenant(sequelize, actor.tenantId, () => calc.tenantAtmosphereLimits(sequelize, actor.tenantId));
+    const { assessment, ignored } = await calc.assessForTenant(sequelize, actor.tenantId, input);
     if (ignored.length) req.log.warn({ event: 'tenant_limits_ignored', tenantId: actor.tenantId, ignored }, 'stored atmosphere limits left out');
-    res.json(calc.assessWith(limits, input));
+    res.json(assessment);
   });
 
   return router;

@@ -25,6 +25,7 @@ import {
   type PipeQuery,
   type PipeSizesResponse,
 } from '@shared/schemas/calc.schema';
+import { withTenant } from '../../db/sequelize';
 
 export function mudPlugFor(q: MudPlugQuery): MudPlugResponse {
   return {
@@ -113,4 +114,10 @@ export async function tenantAtmosphereLimits(sequelize: Sequelize, tenantId: str
 
 export function assessWith(limits: AtmosphereLimits, input: AtmosphereRequest): AtmosphereAssessment {
   return assessAtmosphere(input.readings, limits, { hotWork: input.hotWork });
+}
+
+/** Assesses the readings against the tenant's limits, read in the tenant's own transaction; `ignored` names stored limits left out. */
+export async function assessForTenant(sequelize: Sequelize, tenantId: string, input: AtmosphereRequest) {
+  const { limits, ignored } = await withTenant(sequelize, tenantId, () => tenantAtmosphereLimits(sequelize, tenantId));
+  return { assessment: assessWith(limits, input), ignored };
 }

@@ -6,16 +6,16 @@ import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { appendAudit } from '../audit/audit.service';
-import { loadTenantSettings } from '../tenants/tenant-settings';
 import { notifyChange } from '../isolations/isolation-queries';
 import { auditActor, type CallerContext } from '../permits/permits.service';
 import { dueFactsFor, resolveOverdue } from './gas-tests.repository';
-import { permitFor, requireRecentTime, requireWorkOpen } from './permit-access';
+import { checkObservedTime, observationBounds } from '../permits/observed-time';
+import { permitFor, requireWorkOpen } from './permit-access';
 import { queueAlert } from './alert-mail';
 
 const checkSelect = `
   SELECT c.id, c.kind, c.checked_at AS "checkedAt", c.ok, c.observation, c.action_taken AS "actionTaken", c.notes,
-         c.isolation_step_id AS "isolationStepId", coalesce(ip.tag_code, s.temp_label) AS "stepLabel", u.name AS "recordedByName"
+         c.isolation_step_id AS "isolationStepId", coalesce(ip.tag_code, s.temp_label) AS "stepLabel", u.name AS "recordedByName", c.entered_late AS "enteredLate"
   FROM permit_checks c
   JOIN users u ON u.id = c.recorded_by
   LEFT JOIN isolation_steps s ON s.tenant_id = c.tenant_id AND s.id = c.isolation_step_id
@@ -52,7 +52,6 @@ function observationOf(input: CheckData): { ok: boolean; observation: Record<str
 /** Records a vent, plug or fire-watch check. A check that finds a problem needs the action taken, and is mailed to the lead and authoriser. */
 export async function recordCheck(deps: AppDeps, caller: CallerContext, permitId: string, input: CheckData): Promise<CheckRow & { permitState: string }> {
   const { tenantId } = caller.actor;
-  requireRecentTime(deps, input.checkedAt, 'checkedAt');
   return withTenant(deps.sequelize, tenantId, async () => {
     const permit = await permitFor(deps, caller, permitId, { action: 'record', type: 'Check', what: 'checks' }, { lock: true });
     if (input.kind === 'fire_watch') {
@@ -60,6 +59,8 @@ export async function recordCheck(deps: AppDeps, caller: CallerContext, permitId
       requireWorkOpen(permit, 'Fire-watch checks', ['live', 'suspended']);
       if (input.isolationStepId) throw AppError.validation('A fire-watch check is not about an isolation step.', [{ path: 'isolationStepId', message: 'Leave this out for a fire watch.' }]);
     } else requireWorkOpen(permit, `${checkKindLabels[input.kind]}s`);
+    const bounds = await observationBounds(deps, permit);
+    const { enteredLate } = checkObservedTime(bounds, new Date(input.checkedAt), 'checkedAt');
     if (input.isolationStepId) {
       const [step] = await deps.sequelize.query<{ kind: string; status: string }>(`SELECT kind, status FROM isolation_steps WHERE tenant_id = :tenantId AND permit_id = :permitId AND id = :id`, {
         replacements: { tenantId, permitId, id: input.isolationStepId },
@@ -71,22 +72,21 @@ export async function recordCheck(deps: AppDeps, caller: CallerContext, permitId
     const { ok, observation, summary } = observationOf(input);
     const now = deps.clock.now();
     const [{ id }] = await deps.sequelize.query<{ id: string }>(
-      `INSERT INTO permit_checks (tenant_id, permit_id, kind, isolation_step_id, checked_at, ok, observation, action_taken, notes, recorded_by, created_at)
-       VALUES (:tenantId, :permitId, :kind, :stepId, :checkedAt, :ok, CAST(:observation AS jsonb), :action, :notes, :userId, :now) RETURNING id`,
+      `INSERT INTO permit_checks (tenant_id, permit_id, kind, isolation_step_id, checked_at, ok, observation, action_taken, notes, recorded_by, entered_late, created_at)
+       VALUES (:tenantId, :permitId, :kind, :stepId, :checkedAt, :ok, CAST(:observation AS jsonb), :action, :notes, :userId, :enteredLate, :now) RETURNING id`,
       {
         replacements: {
           tenantId, permitId, kind: input.kind, stepId: input.isolationStepId ?? null, checkedAt: input.checkedAt, ok, observation: JSON.stringify(observation),
-          action: input.actionTaken?.trim() || null, notes: input.notes ?? null, userId: caller.user.id, now,
+          action: input.actionTaken?.trim() || null, notes: input.notes ?? null, userId: caller.user.id, enteredLate, now,
         },
         type: QueryTypes.SELECT,
       },
     );
     await appendAudit(deps.sequelize, {
       tenantId, entityType: 'check', entityId: id, permitId, action: `${input.kind}_check_recorded`, actor: auditActor(caller, 'record'), ip: caller.ip,
-      reason: ok ? null : `${summary}. Action: ${input.actionTaken}`, data: { ok, ...observation, checkedAt: input.checkedAt }, occurredAt: now,
+      reason: ok ? null : `${summary}. Action: ${input.actionTaken}`, data: { ok, ...observation, checkedAt: input.checkedAt, ...(enteredLate ? { enteredLate } : {}) }, occurredAt: now,
     });
-    const settings = await loadTenantSettings(deps.sequelize, tenantId);
-    const due = dueTimes(await dueFactsFor(deps.sequelize, permit, settings), now).find((t) => t.kind === input.kind);
+    const due = dueTimes(await dueFactsFor(deps.sequelize, permit, bounds.settings), now).find((t) => t.kind === input.kind);
     if (!due?.overdue) await resolveOverdue(deps.sequelize, tenantId, permitId, input.kind, now);
     if (!ok)
       await queueAlert(deps.sequelize, permit, {

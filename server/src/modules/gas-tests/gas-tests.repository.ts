@@ -14,7 +14,7 @@ const one = async <T extends object>(sequelize: Sequelize, sql: string, replacem
 
 export const gasTestSelect = `
   SELECT g.id, g.permit_id AS "permitId", g.tested_at AS "testedAt", g.place, g.place_note AS "placeNote", g.purpose, g.readings, g.verdict,
-         g.assessment, u.name AS "testerName", g.source, g.series_id AS "seriesId", g.notes,
+         g.assessment, u.name AS "testerName", g.source, g.series_id AS "seriesId", g.notes, g.entered_late AS "enteredLate",
          CASE WHEN i.id IS NULL THEN NULL ELSE jsonb_build_object('id', i.id, 'model', i.model, 'serial', i.serial) END AS instrument
   FROM gas_tests g
   JOIN users u ON u.id = g.tester_user_id

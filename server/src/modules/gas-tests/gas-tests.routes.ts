@@ -29,6 +29,8 @@ import { readingColumns } from '@shared/gas-tests/csv-readings';
 import type { AppDeps } from '../../deps';
 import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
+import { idempotentBody } from '../../middleware/idempotency';
+import { clientIp } from '../../lib/client-ip';
 import type { CallerContext } from '../permits/permits.service';
 import { createInstrument, listInstruments, updateInstrument } from './instruments.service';
 import { listGasTestsFor, recordGasTest, setPermitLimits } from './gas-tests.service';
@@ -40,7 +42,7 @@ import { acceptHandover, createHandover, listHandovers } from './handovers.servi
 export function createGasTestsRouter(deps: AppDeps) {
   const router = Router();
   router.use(['/instruments', '/permits'], requireTenant);
-  const caller = (req: Request): CallerContext => ({ ...actorOf(req), ip: req.ip });
+  const caller = (req: Request): CallerContext => ({ ...actorOf(req), ip: clientIp(req) });
   const permitId = (req: Request) => parse(uuidSchema, req.params.id, 'path');
 
   router.get('/instruments', async (req, res) => {
@@ -60,7 +62,7 @@ export function createGasTestsRouter(deps: AppDeps) {
     res.status(201).json(await recordGasTest(deps, caller(req), permitId(req), parse(gasTestInputSchema, req.body, 'gas test')));
   });
   // A CSV body up to 1 MB; a JSON body goes through the app's JSON parser (100 kB).
-  router.post('/permits/:id/gas-tests/import', express.text({ type: ['text/csv', 'text/plain'], limit: '1mb' }), async (req, res) => {
+  router.post('/permits/:id/gas-tests/import', express.text({ type: ['text/csv', 'text/plain'], limit: '1mb' }), idempotentBody(deps), async (req, res) => {
     const c = caller(req);
     const id = permitId(req);
     let body: unknown = req.body;

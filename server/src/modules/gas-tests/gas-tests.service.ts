@@ -3,14 +3,14 @@ import { assessAtmosphere, type AtmosphereAssessment } from '@shared/calc';
 import { assessOptionsFor, checkPermitLimitRequest, permitLimits } from '@shared/gas-tests/permit-limits';
 import { instrumentStatus } from '@shared/gas-tests/instrument-status';
 import { failureSummary } from '@shared/gas-tests/verdict-text';
-import { localDate, localTime } from '@shared/gas-tests/zoned-day';
+import { siteDay, siteTimeOfDay } from '@shared/time/zone';
 import { gasTestPlaceLabels, type GasTestData, type GasTestPlace, type GasTestPurpose, type GasTestResult, type PermitGasLimitsInput } from '@shared/schemas/gas-tests.schema';
 import { finishedStates } from '@shared/permit/states';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { appendAudit } from '../audit/audit.service';
-import { holdsQualification } from '../admin/admin.service';
+import { qualificationOnSiteDay } from '../admin/admin.service';
 import { loadTenantSettings } from '../tenants/tenant-settings';
 import { tenantAtmosphereLimits } from '../calc/calc.service';
 import { notifyChange } from '../isolations/isolation-queries';
@@ -18,7 +18,8 @@ import { applyTransition, auditActor, type CallerContext } from '../permits/perm
 import type { PermitRow } from '../permits/permits.repository';
 import { findGasTest, limitsForPermit, listGasTests, resolveOverdue } from './gas-tests.repository';
 import { findInstrument, type InstrumentRecord } from './instruments.service';
-import { permitFor, requireRecentTime, requireWorkOpen } from './permit-access';
+import { checkObservedTime, observationBounds } from '../permits/observed-time';
+import { permitFor, requireWorkOpen } from './permit-access';
 
 export async function listGasTestsFor(deps: AppDeps, caller: CallerContext, permitId: string, q: { page: number; pageSize: number; dir: 'asc' | 'desc' }) {
   return withTenant(deps.sequelize, caller.actor.tenantId, async () => {
@@ -27,19 +28,26 @@ export async function listGasTestsFor(deps: AppDeps, caller: CallerContext, perm
   });
 }
 
-/** The tester must hold an in-date gas tester qualification on the day of the test. */
+/** The tester must hold an in-date gas tester qualification on the site day of the test. */
 export async function requireGasTester(deps: AppDeps, caller: CallerContext, on: Date) {
-  if (!(await holdsQualification(deps.sequelize, caller.actor.tenantId, caller.user.id, 'gas_tester', on)))
-    throw AppError.unprocessable(`${caller.user.name} holds no in-date gas tester qualification for ${on.toISOString().slice(0, 10)}; only a qualified gas tester may record a gas test.`, [
+  const { held, day } = await qualificationOnSiteDay(deps.sequelize, caller.actor.tenantId, caller.user.id, 'gas_tester', on);
+  if (!held)
+    throw AppError.unprocessable(`${caller.user.name} holds no in-date gas tester qualification for ${day}; only a qualified gas tester may record a gas test.`, [
       { path: 'tester', message: 'An in-date gas tester qualification is needed.' },
     ]);
 }
 
 /** The instrument must be registered in the tenant and fit for use at that time. */
-export async function usableInstrument(deps: AppDeps, tenantId: string, id: string, at: Date): Promise<InstrumentRecord> {
+export async function usableInstrument(
+  deps: AppDeps,
+  tenantId: string,
+  id: string,
+  at: Date,
+  known?: Pick<Awaited<ReturnType<typeof loadTenantSettings>>, 'timeZone' | 'requireDailyBumpTest'>,
+): Promise<InstrumentRecord> {
   const inst = await findInstrument(deps.sequelize, tenantId, id);
   if (!inst) throw AppError.validation('Choose an instrument from the register.', [{ path: 'instrumentId', message: 'No such instrument in this tenant.' }]);
-  const settings = await loadTenantSettings(deps.sequelize, tenantId);
+  const settings = known ?? (await loadTenantSettings(deps.sequelize, tenantId));
   const status = instrumentStatus(inst, at, settings.timeZone, settings.requireDailyBumpTest);
   if (!status.usable) throw AppError.unprocessable(status.reasons.join(' '), status.reasons.map((message) => ({ path: 'instrumentId', message })));
   return inst;
@@ -50,33 +58,34 @@ export async function usableInstrument(deps: AppDeps, tenantId: string, id: stri
  * the reading in the audit reason; resuming needs a new passing test (the guard of 'resume').
  */
 export async function suspendForFailure(deps: AppDeps, permit: PermitRow, assessment: AtmosphereAssessment, where: { place: GasTestPlace; testedAt: Date; tester: string; timeZone: string }) {
-  const when = `${localDate(where.testedAt, where.timeZone)} ${localTime(where.testedAt, where.timeZone)} site time`;
+  const when = `${siteDay(where.testedAt, where.timeZone)} ${siteTimeOfDay(where.testedAt, where.timeZone)} site time`;
   const reason = `Gas test failed: ${failureSummary(assessment)} (${gasTestPlaceLabels[where.place].toLowerCase()}, ${where.tester}, ${when}).`;
   return applyTransition(deps, permit, 'suspend', { reason }, { system: 'failing gas test' });
 }
 
 export async function recordGasTest(deps: AppDeps, caller: CallerContext, permitId: string, input: GasTestData): Promise<GasTestResult> {
   const { tenantId } = caller.actor;
-  requireRecentTime(deps, input.testedAt, 'testedAt');
   const testedAt = new Date(input.testedAt);
   return withTenant(deps.sequelize, tenantId, async () => {
     const permit = await permitFor(deps, caller, permitId, { action: 'create', type: 'GasTest', what: 'gas tests' }, { lock: true });
     requireWorkOpen(permit, 'Gas tests');
+    const bounds = await observationBounds(deps, permit);
+    const { enteredLate } = checkObservedTime(bounds, testedAt, 'testedAt');
     await requireGasTester(deps, caller, testedAt);
-    const instrument = await usableInstrument(deps, tenantId, input.instrumentId, testedAt);
+    const instrument = await usableInstrument(deps, tenantId, input.instrumentId, testedAt, bounds.settings);
     const { limits } = await limitsForPermit(deps.sequelize, permit);
     const { others, ...gases } = input.readings;
     const assessment = assessAtmosphere(gases, limits, assessOptionsFor(permit.kinds));
     const purpose: GasTestPurpose = input.purpose ?? (['live', 'suspended'].includes(permit.state) ? 'repeat' : 'before_work');
     const now = deps.clock.now();
     const [{ id }] = await deps.sequelize.query<{ id: string }>(
-      `INSERT INTO gas_tests (tenant_id, permit_id, tester_user_id, instrument_id, place, place_note, purpose, tested_at, readings, verdict, assessment, source, notes, created_at)
-       VALUES (:tenantId, :permitId, :tester, :instrumentId, :place, :placeNote, :purpose, :testedAt, CAST(:readings AS jsonb), :verdict, CAST(:assessment AS jsonb), 'manual', :notes, :now)
+      `INSERT INTO gas_tests (tenant_id, permit_id, tester_user_id, instrument_id, place, place_note, purpose, tested_at, readings, verdict, assessment, source, notes, entered_late, created_at)
+       VALUES (:tenantId, :permitId, :tester, :instrumentId, :place, :placeNote, :purpose, :testedAt, CAST(:readings AS jsonb), :verdict, CAST(:assessment AS jsonb), 'manual', :notes, :enteredLate, :now)
        RETURNING id`,
       {
         replacements: {
           tenantId, permitId, tester: caller.user.id, instrumentId: instrument.id, place: input.place, placeNote: input.placeNote ?? null, purpose, testedAt,
-          readings: JSON.stringify({ ...gases, ...(others?.length ? { others } : {}) }), verdict: assessment.verdict, assessment: JSON.stringify(assessment), notes: input.notes ?? null, now,
+          readings: JSON.stringify({ ...gases, ...(others?.length ? { others } : {}) }), verdict: assessment.verdict, assessment: JSON.stringify(assessment), notes: input.notes ?? null, enteredLate, now,
         },
         type: QueryTypes.SELECT,
       },
@@ -84,14 +93,16 @@ export async function recordGasTest(deps: AppDeps, caller: CallerContext, permit
     await appendAudit(deps.sequelize, {
       tenantId, entityType: 'gas_test', entityId: id, permitId, action: 'gas_test_recorded', actor: auditActor(caller, 'create'), ip: caller.ip,
       reason: assessment.verdict === 'fail' ? failureSummary(assessment) : null,
-      data: { verdict: assessment.verdict, place: input.place, purpose, testedAt: testedAt.toISOString(), readings: gases, instrument: `${instrument.model} ${instrument.serial}` },
+      data: {
+        verdict: assessment.verdict, place: input.place, purpose, testedAt: testedAt.toISOString(), readings: gases, instrument: `${instrument.model} ${instrument.serial}`,
+        ...(enteredLate ? { enteredLate } : {}),
+      },
       occurredAt: now,
     });
     let state = permit.state;
     if (assessment.verdict === 'pass') await resolveOverdue(deps.sequelize, tenantId, permitId, 'gas_test', now);
     if (assessment.verdict === 'fail' && permit.state === 'live') {
-      const settings = await loadTenantSettings(deps.sequelize, tenantId);
-      state = (await suspendForFailure(deps, permit, assessment, { place: input.place, testedAt, tester: caller.user.name, timeZone: settings.timeZone })).state;
+      state = (await suspendForFailure(deps, permit, assessment, { place: input.place, testedAt, tester: caller.user.name, timeZone: bounds.timeZone })).state;
     } else await notifyChange(deps.sequelize, { tenantId, kind: 'gas_test', id: permitId, verdict: assessment.verdict });
     return { test: await findGasTest(deps.sequelize, tenantId, id), verdict: assessment.verdict, assessment, permitState: state, suspended: state !== permit.state };
   });

@@ -1,6 +1,6 @@
 import { QueryTypes } from 'sequelize';
 import { dueTimes, timedCheckLabels } from '@shared/permit/due-times';
-import { localTime } from '@shared/gas-tests/zoned-day';
+import { siteTimeOfDay } from '@shared/time/zone';
 import { GAS_SHORT } from '@shared/gas-tests/verdict-text';
 import { gasTestPlaceLabels, type GasTestRow } from '@shared/schemas/gas-tests.schema';
 import type { HandoverAcceptInput, HandoverCreateInput, HandoverRow } from '@shared/schemas/timed-checks.schema';
@@ -8,7 +8,7 @@ import type { Page } from '@shared/schemas/common.schema';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
-import { verifyPassword } from '../../lib/passwords';
+import { signerPasswordMatches } from '../auth/signature-password';
 import { appendAudit } from '../audit/audit.service';
 import { loadTenantSettings } from '../tenants/tenant-settings';
 import { notifyChange } from '../isolations/isolation-queries';
@@ -27,8 +27,7 @@ const handoverSelect = `
 async function checkSignature(deps: AppDeps, caller: CallerContext, input: { password: string; signedName: string }) {
   const details = [];
   if (input.signedName.trim().toLowerCase() !== caller.user.name.trim().toLowerCase()) details.push({ path: 'signedName', message: `Type your name exactly as "${caller.user.name}" to sign.` });
-  const [row] = await deps.sequelize.query<{ password_hash: string }>(`SELECT password_hash FROM users WHERE id = :id`, { replacements: { id: caller.user.id }, type: QueryTypes.SELECT });
-  if (!(await verifyPassword(row?.password_hash, input.password))) details.push({ path: 'password', message: 'Re-enter your password to sign.' });
+  if (!(await signerPasswordMatches(deps, caller.user.id, input.password))) details.push({ path: 'password', message: 'Re-enter your password to sign.' });
   if (details.length) throw AppError.validation('The signature is not complete.', details);
 }
 
@@ -57,13 +56,13 @@ async function readingsSummary(deps: AppDeps, permit: PermitRow): Promise<string
   const lines = tests.map((t) => {
     const r = t.readings;
     const values = `${GAS_SHORT.o2} ${r.o2Pct} %vol, ${GAS_SHORT.lel} ${r.lelPct} %LEL, ${GAS_SHORT.h2s} ${r.h2sPpm} ppm, ${GAS_SHORT.co} ${r.coPpm} ppm`;
-    return `Gas test ${localTime(new Date(t.testedAt), settings.timeZone)} at the ${gasTestPlaceLabels[t.place].toLowerCase()}: ${values}: ${t.verdict.toUpperCase()} (${t.testerName}).`;
+    return `Gas test ${siteTimeOfDay(new Date(t.testedAt), settings.timeZone)} at the ${gasTestPlaceLabels[t.place].toLowerCase()}: ${values}: ${t.verdict.toUpperCase()} (${t.testerName}).`;
   });
   if (!lines.length) lines.push('No gas test recorded on this permit yet.');
   const now = deps.clock.now();
   for (const d of dueTimes(await dueFactsFor(deps.sequelize, permit, settings), now)) {
     if (!d.dueAt) continue;
-    lines.push(`${timedCheckLabels[d.kind]} ${d.overdue ? `OVERDUE since ${localTime(d.dueAt, settings.timeZone)}` : `due at ${localTime(d.dueAt, settings.timeZone)}`}.`);
+    lines.push(`${timedCheckLabels[d.kind]} ${d.overdue ? `OVERDUE since ${siteTimeOfDay(d.dueAt, settings.timeZone)}` : `due at ${siteTimeOfDay(d.dueAt, settings.timeZone)}`}.`);
   }
   return lines;
 }

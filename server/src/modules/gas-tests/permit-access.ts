@@ -31,11 +31,3 @@ export function requireWorkOpen(permit: PermitRow, what: string, states: readonl
   if (!states.includes(permit.state))
     throw AppError.unprocessable(`${what} can be recorded only while the permit is ${states.map((s) => permitStateLabels[s].toLowerCase()).join(', ')}; it is ${permitStateLabels[permit.state].toLowerCase()}.`);
 }
-
-/** Times people type for something they did: not in the future, and not more than a day back. */
-export function requireRecentTime(deps: AppDeps, at: string, path: string) {
-  const t = new Date(at).getTime();
-  const now = deps.clock.now().getTime();
-  if (t > now + 2 * 60_000) throw AppError.validation('That time is in the future.', [{ path, message: 'Give the time it was done, not a time to come.' }]);
-  if (t < now - 24 * 3_600_000) throw AppError.validation('That time is more than a day ago.', [{ path, message: 'Record it within a day; older records belong in the notes of a newer one.' }]);
-}

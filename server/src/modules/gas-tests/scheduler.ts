@@ -1,6 +1,6 @@
 import { QueryTypes } from 'sequelize';
 import { dueTimes, timedCheckLabels, type DueTime } from '@shared/permit/due-times';
-import { localDate, localTime } from '@shared/gas-tests/zoned-day';
+import { siteDay, siteTimeOfDay } from '@shared/time/zone';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { appendAudit } from '../audit/audit.service';
@@ -61,7 +61,7 @@ async function expirePermits(deps: AppDeps, tenantId: string): Promise<number> {
   return eachPermit(deps, tenantId, ids.map((r) => r.id), where, async (permit) => {
     const { timeZone } = await loadTenantSettings(deps.sequelize, tenantId);
     const end = new Date(permit.validTo);
-    await applyTransition(deps, permit, 'expire', { reason: `The validity window ended at ${localDate(end, timeZone)} ${localTime(end, timeZone)} site time.` }, { system: 'validity ended' });
+    await applyTransition(deps, permit, 'expire', { reason: `The validity window ended at ${siteDay(end, timeZone)} ${siteTimeOfDay(end, timeZone)} site time.` }, { system: 'validity ended' });
     return 1;
   });
 }
@@ -109,7 +109,7 @@ async function raise(deps: AppDeps, permit: PermitRow, t: DueTime, timeZone: str
     replacements: { now, tenantId, permitId: permit.id, kind: t.kind, id: inserted.id },
   });
   const label = timedCheckLabels[t.kind];
-  const when = `${localTime(dueAt, timeZone)} site time (${localDate(dueAt, timeZone)})`;
+  const when = `${siteTimeOfDay(dueAt, timeZone)} site time (${siteDay(dueAt, timeZone)})`;
   const audit = await appendAudit(deps.sequelize, {
     tenantId, entityType: 'permit', entityId: permit.id, permitId: permit.id, action: 'check_overdue', actor: null,
     reason: `${label} overdue: it was due at ${when}.`, data: { check: t.kind, dueAt: dueAt.toISOString(), by: 'holdpoint' }, occurredAt: now,

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import type { BoardItem } from '@shared/types/board';
 import { uuidSchema } from '@shared/schemas/common.schema';
 
-export const boardQuerySchema = z.object({
+export const boardQuerySchema = z.strictObject({
   pipelineId: uuidSchema.optional(),
   permitState: z.enum(['accepted', 'isolated', 'live', 'suspended', 'work_complete', 'cancelled']).optional(),
 });

@@ -18,6 +18,8 @@ export interface StepRow {
   appliedBy: string | null;
   appliedByName: string | null;
   appliedAt: Date | null;
+  /** The applied time was written down after the event. */
+  appliedEnteredLate: boolean;
   photoAttachmentId: string | null;
   remoteAckAt: Date | null;
   remoteAckByName: string | null;
@@ -43,7 +45,7 @@ export const stepSelect = `
   SELECT s.id, s.permit_id AS "permitId", s.seq, s.point_id AS "pointId", coalesce(ip.tag_code, s.temp_label) AS label,
          coalesce(ip.position, s.temp_position)::float8 AS position, s.kind, s.condition, s.status, s.remotely_operable AS "remotelyOperable",
          s.lock_id AS "lockId", l.number AS "lockNumber", s.tag_id AS "tagId", t.number AS "tagNumber",
-         s.applied_by AS "appliedBy", ua.name AS "appliedByName", s.applied_at AS "appliedAt", s.photo_attachment_id AS "photoAttachmentId",
+         s.applied_by AS "appliedBy", ua.name AS "appliedByName", s.applied_at AS "appliedAt", s.applied_entered_late AS "appliedEnteredLate", s.photo_attachment_id AS "photoAttachmentId",
          s.remote_ack_at AS "remoteAckAt", ur.name AS "remoteAckByName",
          s.verified_by AS "verifiedBy", uv.name AS "verifiedByName", s.verified_at AS "verifiedAt", s.verification_method AS "verificationMethod",
          s.verification_reading::float8 AS "verificationReading", s.verification_unit AS "verificationUnit", s.verification_notes AS "verificationNotes",

@@ -11,6 +11,7 @@ import { appendAudit } from '../audit/audit.service';
 import { findPermit, type PermitRow } from '../permits/permits.repository';
 import { applyTransition, auditActor, type CallerContext } from '../permits/permits.service';
 import { loadPermitFacts } from '../permits/permit-facts';
+import { checkObservedTime, observationBounds } from '../permits/observed-time';
 import { findStep, notifyChange, type StepRow } from './isolation-queries';
 
 type StepAction = Extract<Action, 'apply' | 'verify' | 'remove' | 'acknowledge' | 'approve'>;
@@ -95,10 +96,15 @@ export async function applyStep(deps: AppDeps, caller: CallerContext, permitId: 
       if (needsLock && !input.lockId) details.push({ path: 'lockId', message: 'Choose the lock you put on.' });
       if (needsLock && !input.tagId) details.push({ path: 'tagId', message: 'Choose the danger tag you hung.' });
       if (step.kind === 'plug' && !input.asBuilt) details.push({ path: 'asBuilt', message: 'Record the plug as built: bentonite, water and length.' });
+      if (details.length) throw AppError.validation('Some details of the isolation are missing.', details);
       const now = deps.clock.now();
       const appliedAt = input.appliedAt ? new Date(input.appliedAt) : now;
-      if (appliedAt.getTime() > now.getTime() + 60_000) details.push({ path: 'appliedAt', message: 'The time cannot be in the future.' });
-      if (details.length) throw AppError.validation('Some details of the isolation are missing.', details);
+      let enteredLate = false;
+      if (input.appliedAt || input.asBuilt?.builtAt) {
+        const bounds = await observationBounds(deps, permit);
+        if (input.appliedAt) enteredLate = checkObservedTime(bounds, appliedAt, 'appliedAt').enteredLate;
+        if (input.asBuilt?.builtAt) checkObservedTime(bounds, new Date(input.asBuilt.builtAt), 'asBuilt.builtAt');
+      }
       const lockNumber = input.lockId ? await claimInventory(deps, 'locks', tenantId, input.lockId, caller.user.id) : null;
       const tagNumber = input.tagId ? await claimInventory(deps, 'tags', tenantId, input.tagId, caller.user.id) : null;
       let warnings: { code: string; message: string }[] = [];
@@ -108,17 +114,19 @@ export async function applyStep(deps: AppDeps, caller: CallerContext, permitId: 
         warnings = checkAsBuiltPlug({ diameterIn: step.plugDiameterIn ?? 0, ...input.asBuilt }).map((w) => ({ code: w.code, message: w.message }));
       }
       await deps.sequelize.query(
-        `UPDATE isolation_steps SET status = 'applied', lock_id = :lockId, tag_id = :tagId, applied_by = :userId, applied_at = :appliedAt,
+        `UPDATE isolation_steps SET status = 'applied', lock_id = :lockId, tag_id = :tagId, applied_by = :userId, applied_at = :appliedAt, applied_entered_late = :enteredLate,
            photo_attachment_id = :photo, plug_as_built = CAST(:asBuilt AS jsonb), plug_warnings = CAST(:warnings AS jsonb), updated_at = :now
          WHERE tenant_id = :tenantId AND id = :stepId`,
         {
           replacements: {
-            tenantId, stepId, lockId: input.lockId ?? null, tagId: input.tagId ?? null, userId: caller.user.id, appliedAt, photo: input.photoAttachmentId ?? null,
+            tenantId, stepId, lockId: input.lockId ?? null, tagId: input.tagId ?? null, userId: caller.user.id, appliedAt, enteredLate, photo: input.photoAttachmentId ?? null,
             asBuilt: asBuilt ? JSON.stringify(asBuilt) : null, warnings: JSON.stringify(warnings), now,
           },
         },
       );
-      await audit(deps, caller, permit, step, 'isolation_applied', { lock: lockNumber, tag: tagNumber, asBuilt, warnings: warnings.map((w) => w.code) });
+      await audit(deps, caller, permit, step, 'isolation_applied', {
+        lock: lockNumber, tag: tagNumber, asBuilt, warnings: warnings.map((w) => w.code), ...(enteredLate ? { appliedAt: appliedAt.toISOString(), enteredLate } : {}),
+      });
       return findStep(deps.sequelize, tenantId, permitId, stepId);
     });
   } catch (err) {

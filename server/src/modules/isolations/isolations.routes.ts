@@ -16,6 +16,7 @@ import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
 import { authorizeType } from '../../lib/authorize';
 import { changeFeed } from '../../lib/change-feed';
+import { clientIp } from '../../lib/client-ip';
 import type { CallerContext } from '../permits/permits.service';
 import { getPlan, proposePlan, savePlan } from './isolation-plan.service';
 import { acknowledgeStep, applyStep, removeStep, verifyStep } from './isolation-steps.service';
@@ -25,7 +26,7 @@ import { boardSnapshot, sendBoardSnapshot } from './board-cache';
 export function createIsolationsRouter(deps: AppDeps) {
   const router = Router();
   router.use(['/permits', '/board'], requireTenant);
-  const caller = (req: Request): CallerContext => ({ ...actorOf(req), ip: req.ip });
+  const caller = (req: Request): CallerContext => ({ ...actorOf(req), ip: clientIp(req) });
   const ids = (req: Request) => ({ permitId: parse(uuidSchema, req.params.id, 'path'), stepId: parse(uuidSchema, req.params.stepId ?? '00000000-0000-4000-8000-000000000000', 'path') });
 
   router.get('/permits/:id/isolations', async (req, res) => {

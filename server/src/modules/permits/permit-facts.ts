@@ -1,6 +1,8 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import type { ActorFacts, PermitFacts } from '@shared/permit/state-machine';
 import type { Actor } from '@shared/abilities/define-ability';
+import { siteDay } from '@shared/time/zone';
+import { inDateOn } from '../admin/admin.service';
 import type { PermitRow } from './permits.repository';
 
 /** Gathers from the database everything the lifecycle guards need about one permit. */
@@ -70,14 +72,18 @@ export async function loadPermitFacts(sequelize: Sequelize, permit: PermitRow): 
 }
 
 export async function loadActorFacts(sequelize: Sequelize, actor: Actor, on: Date): Promise<ActorFacts> {
-  const quals = await sequelize.query<{ kind: string }>(
-    `SELECT DISTINCT kind FROM qualifications WHERE tenant_id = :tenantId AND user_id = :userId AND issued_on <= CAST(:on AS date) AND expires_on >= CAST(:on AS date)`,
-    { replacements: { tenantId: actor.tenantId, userId: actor.userId, on: on.toISOString().slice(0, 10) }, type: QueryTypes.SELECT },
+  // "In date" is judged on the site day of `on`, so the tenant's zone comes with the rows.
+  const quals = await sequelize.query<{ timeZone: string; kind: string | null; issuedOn: string | null; expiresOn: string | null }>(
+    `SELECT t.time_zone AS "timeZone", q.kind, to_char(q.issued_on, 'YYYY-MM-DD') AS "issuedOn", to_char(q.expires_on, 'YYYY-MM-DD') AS "expiresOn"
+     FROM tenants t LEFT JOIN qualifications q ON q.tenant_id = t.id AND q.user_id = :userId
+     WHERE t.id = :tenantId`,
+    { replacements: { tenantId: actor.tenantId, userId: actor.userId }, type: QueryTypes.SELECT },
   );
+  const day = siteDay(on, quals[0]?.timeZone ?? 'UTC');
   return {
     userId: actor.userId,
     organisationIds: [...new Set(actor.memberships.map((m) => m.organisationId))],
     roles: actor.memberships.map((m) => m.role),
-    qualifications: quals.map((q) => q.kind),
+    qualifications: [...new Set(quals.filter((q) => q.kind && inDateOn(q, day)).map((q) => q.kind!))],
   };
 }

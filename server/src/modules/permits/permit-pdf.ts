@@ -4,10 +4,12 @@ import { QueryTypes } from 'sequelize';
 import { mudPlug, MUD_PLUG_CAUTION } from '@shared/calc';
 import { permitStateLabels, workKindLabels } from '@shared/permit/states';
 import { permitEventLabels, type PermitEvent } from '@shared/permit/state-machine';
+import { formatInZone } from '@shared/time/zone';
 import type { AppDeps } from '../../deps';
 import type { PermitRow } from './permits.repository';
 import { loadTenantSettings } from '../tenants/tenant-settings';
 import { withTenant } from '../../db/sequelize';
+import { fontRuns, selectFont, type FontWeight } from './pdf-fonts';
 
 interface PdfInput extends PermitRow {
   signatures: unknown[];
@@ -15,17 +17,22 @@ interface PdfInput extends PermitRow {
   nextGasTestDue: string | null;
 }
 
-// The standard PDF fonts cover Latin-1 only; keep text inside it rather than print blanks.
-const latin1 = (s: unknown) =>
-  String(s ?? '')
-    .replace(/[‐-―]/g, '-')
-    .replace(/[‘’]/g, "'")
-    .replace(/[“”]/g, '"')
-    .replace(/≥/g, '>=')
-    .replace(/≤/g, '<=')
-    // eslint-disable-next-line no-control-regex -- keeping tabs and line breaks is the point
-    .replace(/[^\x09\x0A\x0D\x20-\x7E\xA0-\xFF]/g, '?');
+type TextOptions = PDFKit.Mixins.TextOptions & { x?: number; y?: number };
 
+/** Writes text in Noto Sans, switching between the font's parts within one line where the text needs it. */
+function write(doc: PDFKit.PDFDocument, value: unknown, options: TextOptions = {}, weight: FontWeight = 400) {
+  const { x, y, continued, ...rest } = options;
+  // Empty text would leave a continued line open, so the next text would run on after it.
+  const runs = fontRuns(value, weight);
+  if (!runs.length) runs.push(...fontRuns(' ', weight));
+  runs.forEach((run, i) => {
+    const more = i < runs.length - 1 || Boolean(continued);
+    selectFont(doc, run);
+    if (i === 0 && x !== undefined) doc.text(run.text, x, y, { ...rest, continued: more });
+    else doc.text(run.text, i === 0 ? { ...rest, continued: more } : { continued: more });
+  });
+  return doc;
+}
 
 /** The printable permit, posted at the work site; the QR code opens the live record. */
 export async function renderPermitPdf(deps: AppDeps, tenantId: string, p: PdfInput): Promise<Buffer> {
@@ -35,8 +42,7 @@ export async function renderPermitPdf(deps: AppDeps, tenantId: string, p: PdfInp
 async function renderInTenant(deps: AppDeps, tenantId: string, p: PdfInput): Promise<Buffer> {
   // Times on the posted copy are the tenant's local times, with the zone named.
   const { timeZone } = await loadTenantSettings(deps.sequelize, tenantId);
-  const fmt = new Intl.DateTimeFormat('en-GB', { timeZone, day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hour12: false, timeZoneName: 'short' });
-  const when = (d: unknown) => (d ? fmt.format(new Date(d as string)) : '-');
+  const when = (d: unknown) => (d ? formatInZone(d as string | Date, timeZone) : '-');
   const steps = await deps.sequelize.query<{
     seq: number; kind: string; condition: string; status: string; label: string; position: number; lock_number: string | null; tag_number: string | null;
     applied_by: string | null; verified_by: string | null; removed_at: Date | null; plug_diameter_in: number | null;
@@ -58,25 +64,35 @@ async function renderInTenant(deps: AppDeps, tenantId: string, p: PdfInput): Pro
   const url = `${deps.config.PUBLIC_URL}/permits/${p.id}`;
   const qr = await QRCode.toBuffer(url, { errorCorrectionLevel: 'M', margin: 1, width: 180 });
 
-  const doc = new PDFDocument({ size: 'A4', margin: 40, info: { Title: `Permit to work ${p.number}`, Author: 'Holdpoint', Subject: latin1(p.title) } });
+  const doc = new PDFDocument({ size: 'A4', margin: 40, info: { Title: `Permit to work ${p.number}`, Author: 'Holdpoint', Subject: p.title } });
   const chunks: Buffer[] = [];
   doc.on('data', (c: Buffer) => chunks.push(c));
   const done = new Promise<Buffer>((resolve) => doc.on('end', () => resolve(Buffer.concat(chunks))));
 
+  const text = (v: unknown, options: TextOptions = {}) => write(doc, v, options);
   const heading = (t: string) => {
-    doc.moveDown(0.6).font('Helvetica-Bold').fontSize(12).fillColor('#10252f').text(latin1(t)).moveDown(0.2);
-    doc.font('Helvetica').fontSize(9.5).fillColor('#14202b');
+    doc.moveDown(0.6).fontSize(12).fillColor('#10252f');
+    write(doc, t, {}, 700).moveDown(0.2);
+    doc.fontSize(9.5).fillColor('#14202b');
   };
-  const row = (k: string, v: unknown) => doc.font('Helvetica-Bold').text(`${latin1(k)}: `, { continued: true }).font('Helvetica').text(latin1(v));
+  const row = (k: string, v: unknown) => {
+    write(doc, `${k}: `, { continued: true }, 700);
+    write(doc, v);
+  };
 
   doc.image(qr, doc.page.width - 40 - 90, 40, { width: 90 });
-  doc.font('Helvetica-Bold').fontSize(18).fillColor('#10252f').text('PERMIT TO WORK', 40, 40);
-  doc.fontSize(14).text(latin1(`${p.number}  -  ${permitStateLabels[p.state]}`));
-  doc.font('Helvetica').fontSize(10).fillColor('#14202b').text(latin1(p.title), { width: 400 });
-  doc.fontSize(8).fillColor('#3d4b57').text(latin1(`Scan for the live record: ${url}`), { width: 400 });
+  doc.fontSize(18).fillColor('#10252f');
+  write(doc, 'PERMIT TO WORK', { x: 40, y: 40 }, 700);
+  doc.fontSize(14);
+  write(doc, `${p.number}  -  ${permitStateLabels[p.state]}`, {}, 700);
+  doc.fontSize(10).fillColor('#14202b');
+  text(p.title, { width: 400 });
+  doc.fontSize(8).fillColor('#3d4b57');
+  text(`Scan for the live record: ${url}`, { width: 400 });
   doc.moveDown(0.5);
   doc.rect(40, doc.y, doc.page.width - 80, 34).fill('#fff6cc');
-  doc.fillColor('#14202b').fontSize(8.5).text(latin1(`Caution: Holdpoint records and checks the permit and isolation process. It does not replace the operator's procedures, local codes, or a competent person's judgement. This copy was printed ${when(deps.clock.now())}; the live record is the authority.`), 46, doc.y + 5, { width: doc.page.width - 92 });
+  doc.fillColor('#14202b').fontSize(8.5);
+  text(`Caution: Holdpoint records and checks the permit and isolation process. It does not replace the operator's procedures, local codes, or a competent person's judgement. This copy was printed ${when(deps.clock.now())}; the live record is the authority.`, { x: 46, y: doc.y + 5, width: doc.page.width - 92 });
   doc.moveDown(1.2);
   doc.x = 40;
 
@@ -90,45 +106,55 @@ async function renderInTenant(deps: AppDeps, tenantId: string, p: PdfInput): Pro
   if (p.kinds.includes('hot_work')) row('Fire watch', `${p.fireWatchMinutes} minutes after hot work stops${p.fireWatchPerson ? `; ${p.fireWatchPerson}` : ''}`);
   row('Gas tests', `within ${p.gasTestWindowMinutes} min before work starts, then every ${p.gasTestIntervalMinutes} min`);
   heading('Scope and method');
-  doc.text(latin1(p.scope || '-'));
-  if (p.methodStatement) doc.moveDown(0.3).text(latin1(p.methodStatement));
+  text(p.scope || '-');
+  if (p.methodStatement) {
+    doc.moveDown(0.3);
+    text(p.methodStatement);
+  }
   heading('Hazards and precautions');
-  doc.text(latin1(p.hazards || '-'));
-  for (const c of p.checklist) doc.text(latin1(`[${c.confirmed ? 'x' : ' '}] ${c.label}${c.required ? ' (required)' : ''}${c.confirmedByName ? ` - ${c.confirmedByName}` : ''}`));
+  text(p.hazards || '-');
+  for (const c of p.checklist) text(`[${c.confirmed ? 'x' : ' '}] ${c.label}${c.required ? ' (required)' : ''}${c.confirmedByName ? ` - ${c.confirmedByName}` : ''}`);
   row('PPE', p.ppe.join(', ') || '-');
 
   heading('Isolation plan');
-  if (!steps.length) doc.text('No steps yet.');
+  if (!steps.length) text('No steps yet.');
   for (const s of steps) {
     let line = `${s.seq}. ${s.label} at ${s.position} - ${s.kind.replace(/_/g, ' ')}, ${s.condition.replace(/_/g, ' ')}; ${s.status}`;
     if (s.lock_number) line += `; lock ${s.lock_number}`;
     if (s.tag_number) line += `; tag ${s.tag_number}`;
     if (s.applied_by) line += `; applied by ${s.applied_by}`;
     if (s.verified_by) line += `; verified by ${s.verified_by}`;
-    doc.text(latin1(line));
+    text(line);
     if (s.kind === 'plug' && s.plug_diameter_in) {
       const m = mudPlug({ diameterIn: s.plug_diameter_in });
-      doc.fontSize(8.5).text(latin1(`   Plug for ${s.plug_diameter_in} in: about ${m.mudLb.toFixed(1)} lb of paste (${m.mudLbRange[0].toFixed(1)}-${m.mudLbRange[1].toFixed(1)}), ${m.bentoniteLb.toFixed(1)} lb bentonite, ${m.waterGal.toFixed(2)} US gal water, ${m.plugLengthIn.toFixed(1)} in long, about ${m.mudBalls} balls.`)).fontSize(9.5);
+      doc.fontSize(8.5);
+      text(`   Plug for ${s.plug_diameter_in} in: about ${m.mudLb.toFixed(1)} lb of paste (${m.mudLbRange[0].toFixed(1)}-${m.mudLbRange[1].toFixed(1)}), ${m.bentoniteLb.toFixed(1)} lb bentonite, ${m.waterGal.toFixed(2)} US gal water, ${m.plugLengthIn.toFixed(1)} in long, about ${m.mudBalls} balls.`);
+      doc.fontSize(9.5);
     }
   }
-  if (steps.some((s) => s.kind === 'plug')) doc.fontSize(8).fillColor('#b3261e').text(latin1(MUD_PLUG_CAUTION)).fillColor('#14202b').fontSize(9.5);
+  if (steps.some((s) => s.kind === 'plug')) {
+    doc.fontSize(8).fillColor('#b3261e');
+    text(MUD_PLUG_CAUTION);
+    doc.fillColor('#14202b').fontSize(9.5);
+  }
 
   heading('Latest gas tests');
-  if (!gas.length) doc.text('None recorded.');
+  if (!gas.length) text('None recorded.');
   for (const g of gas) {
     const r = g.readings;
-    doc.text(latin1(`${when(g.tested_at)} ${g.place.replace(/_/g, ' ')}: ${g.verdict.toUpperCase()} - O2 ${r.o2Pct ?? '-'} %, LEL ${r.lelPct ?? '-'} %, H2S ${r.h2sPpm ?? '-'} ppm, CO ${r.coPpm ?? '-'} ppm`));
+    text(`${when(g.tested_at)} ${g.place.replace(/_/g, ' ')}: ${g.verdict.toUpperCase()} - O2 ${r.o2Pct ?? '-'} %, LEL ${r.lelPct ?? '-'} %, H2S ${r.h2sPpm ?? '-'} ppm, CO ${r.coPpm ?? '-'} ppm`);
   }
 
   heading('Signatures');
   const signed = p.signatures as { event: PermitEvent; signedName: string; signedAt: string }[];
   for (const ev of ['approve', 'accept', 'hand_back', 'return_to_service'] as PermitEvent[]) {
     const s = [...signed].reverse().find((x) => x.event === ev);
-    doc.text(latin1(`${permitEventLabels[ev]}: ${s ? `${s.signedName}, ${when(s.signedAt)} (password re-entered)` : '________________________'}`));
+    text(`${permitEventLabels[ev]}: ${s ? `${s.signedName}, ${when(s.signedAt)} (password re-entered)` : '________________________'}`);
   }
   heading('Record');
   for (const e of (p.timeline as { occurredAt: string; action: string; actorName: string | null; toState: string | null; reason: string | null }[]).slice(-25)) {
-    doc.fontSize(8.5).text(latin1(`${when(e.occurredAt)}  ${e.action.replace(/_/g, ' ')}${e.toState ? ` -> ${e.toState.replace(/_/g, ' ')}` : ''}  ${e.actorName ?? 'Holdpoint'}${e.reason ? ` - ${e.reason}` : ''}`));
+    doc.fontSize(8.5);
+    text(`${when(e.occurredAt)}  ${e.action.replace(/_/g, ' ')}${e.toState ? ` -> ${e.toState.replace(/_/g, ' ')}` : ''}  ${e.actorName ?? 'Holdpoint'}${e.reason ? ` - ${e.reason}` : ''}`);
   }
   doc.end();
   return done;

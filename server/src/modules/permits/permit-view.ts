@@ -1,5 +1,23 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
-import type { PermitRow } from './permits.repository';
+import type { AppDeps } from '../../deps';
+import { withTenant } from '../../db/sequelize';
+import { authorizeRecord } from '../../lib/authorize';
+import { findPermit, type PermitRow } from './permits.repository';
+import { availableActions, type CallerContext } from './permits.service';
+
+/** A permit as its page shows it, with what this caller may do now; one read transaction. */
+export async function permitDetail(deps: AppDeps, c: CallerContext, id: string) {
+  const { sequelize } = deps;
+  return withTenant(sequelize, c.actor.tenantId, async () => {
+    const permit = authorizeRecord(c.ability, 'read', 'Permit', await findPermit(sequelize, c.actor.tenantId, id), 'permit');
+    // One connection per transaction: these run one after another.
+    const actions = await availableActions(deps, c, permit);
+    const timeline = await permitTimeline(sequelize, c.actor.tenantId, id);
+    const signatures = await permitSignatures(sequelize, c.actor.tenantId, id);
+    const gasDue = await nextGasTestDue(sequelize, permit, deps.clock.now());
+    return { ...permit, actions, timeline, signatures, nextGasTestDue: gasDue };
+  });
+}
 
 export async function permitTimeline(sequelize: Sequelize, tenantId: string, permitId: string) {
   return sequelize.query(

@@ -13,30 +13,18 @@ import { uuidSchema } from '@shared/schemas/common.schema';
 import type { AppDeps } from '../../deps';
 import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
-import { authorizeRecord } from '../../lib/authorize';
-import { withTenant } from '../../db/sequelize';
-import { findPermit } from './permits.repository';
-import { availableActions, createPermit, listPermitsFor, recordHotWorkStopped, transitionPermit, updateChecklist, updatePermit, type CallerContext } from './permits.service';
-import { nextGasTestDue, permitSignatures, permitTimeline } from './permit-view';
+import { clientIp } from '../../lib/client-ip';
+import { createPermit, listPermitsFor, recordHotWorkStopped, transitionPermit, updateChecklist, updatePermit, type CallerContext } from './permits.service';
+import { permitDetail } from './permit-view';
 import { renderPermitPdf } from './permit-pdf';
 import type { Request } from 'express';
 
 export function createPermitsRouter(deps: AppDeps) {
   const router = Router();
-  const { sequelize } = deps;
   router.use('/permits', requireTenant);
-  const caller = (req: Request): CallerContext => ({ ...actorOf(req), ip: req.ip });
+  const caller = (req: Request): CallerContext => ({ ...actorOf(req), ip: clientIp(req) });
 
-  const detail = async (c: CallerContext, id: string) =>
-    withTenant(sequelize, c.actor.tenantId, async () => {
-      const permit = authorizeRecord(c.ability, 'read', 'Permit', await findPermit(sequelize, c.actor.tenantId, id), 'permit');
-      // One connection per transaction: these run one after another.
-      const actions = await availableActions(deps, c, permit);
-      const timeline = await permitTimeline(sequelize, c.actor.tenantId, id);
-      const signatures = await permitSignatures(sequelize, c.actor.tenantId, id);
-      const gasDue = await nextGasTestDue(sequelize, permit, deps.clock.now());
-      return { ...permit, actions, timeline, signatures, nextGasTestDue: gasDue };
-    });
+  const detail = (c: CallerContext, id: string) => permitDetail(deps, c, id);
 
   router.get('/permits', async (req, res) => {
     res.json(await listPermitsFor(deps, caller(req), parse(permitsQuerySchema, req.query, 'query')));

@@ -8,18 +8,19 @@ import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { authorizeRecord, authorizeType } from '../../lib/authorize';
 import { scopeToSql } from '../../lib/casl-sql';
-import { verifyPassword } from '../../lib/passwords';
+import { signerPasswordMatches } from '../auth/signature-password';
 import { appendAudit } from '../audit/audit.service';
 import { loadTenantSettings } from '../tenants/tenant-settings';
 import { checklistTemplate, findPermit, listPermits, nextPermitNumber, type PermitRow } from './permits.repository';
 import { loadActorFacts, loadPermitFacts } from './permit-facts';
 import { queuePermitMail } from './permit-mail';
+import { requireRevalidationWithinMax, requireWindowWithinMax } from './validity-window';
 
 export interface CallerContext {
   actor: Actor;
   ability: AppAbility;
   user: { id: string; email: string; name: string };
-  ip?: string;
+  ip?: string | null;
 }
 
 const permitSubject = (p: Pick<PermitRow, 'tenantId' | 'contractorOrganisationId'> & Record<string, unknown>) =>
@@ -65,10 +66,6 @@ async function checkReferences(deps: AppDeps, tenantId: string, input: Partial<C
     if (!ok.length) details.push({ path: 'contractorLeadUserId', message: 'Choose a contractor lead of that organisation.' });
   }
   const settings = await loadTenantSettings(deps.sequelize, tenantId);
-  if (input.validFrom && input.validTo) {
-    const hours = (new Date(input.validTo).getTime() - new Date(input.validFrom).getTime()) / 3_600_000;
-    if (hours > settings.maxPermitHours) details.push({ path: 'validTo', message: `A permit may be valid for at most ${settings.maxPermitHours} hours in this tenant.` });
-  }
   // A permit may tighten the tenant's gas-test regime, never loosen it.
   if (input.gasTestWindowMinutes && input.gasTestWindowMinutes > settings.gasTestWindowMinutes)
     details.push({ path: 'gasTestWindowMinutes', message: `The tenant allows at most ${settings.gasTestWindowMinutes} minutes between the gas test and the start of work.` });
@@ -77,6 +74,7 @@ async function checkReferences(deps: AppDeps, tenantId: string, input: Partial<C
   if (input.fireWatchMinutes && input.fireWatchMinutes < settings.fireWatchMinutes)
     details.push({ path: 'fireWatchMinutes', message: `The tenant requires a fire watch of at least ${settings.fireWatchMinutes} minutes after hot work.` });
   if (details.length) throw AppError.validation('Some references are not valid.', details);
+  if (input.validFrom && input.validTo) requireWindowWithinMax(settings, new Date(input.validFrom), new Date(input.validTo));
   return settings;
 }
 
@@ -140,6 +138,9 @@ export async function updatePermit(deps: AppDeps, caller: CallerContext, id: str
       contractorOrganisationId: input.contractorOrganisationId ?? permit.contractorOrganisationId,
     };
     if (merged.toPosition < merged.fromPosition) throw AppError.validation('The work range is back to front.', [{ path: 'toPosition', message: 'The end must not be before the start.' }]);
+    // Half a window sent: the other half is the stored one, and together they must still run forwards.
+    if (new Date(merged.validTo) <= new Date(merged.validFrom))
+      throw AppError.validation('The permit must end after it starts.', [{ path: input.validTo ? 'validTo' : 'validFrom', message: 'The permit must end after it starts.' }]);
     await checkReferences(deps, tenantId, merged as Partial<CreatePermitData>);
     if (input.contractorOrganisationId && input.contractorOrganisationId !== permit.contractorOrganisationId)
       authorizeType(caller.ability, 'update', 'Permit', { tenantId, contractorOrganisationId: input.contractorOrganisationId }, 'permits for that contractor');
@@ -207,8 +208,7 @@ export async function transitionPermit(deps: AppDeps, caller: CallerContext, id:
     const details = [];
     if (!input.signedName || input.signedName.trim().toLowerCase() !== caller.user.name.trim().toLowerCase())
       details.push({ path: 'signedName', message: `Type your name exactly as "${caller.user.name}" to sign.` });
-    const [row] = await deps.sequelize.query<{ password_hash: string }>(`SELECT password_hash FROM users WHERE id = :id`, { replacements: { id: caller.user.id }, type: QueryTypes.SELECT });
-    if (!input.password || !(await verifyPassword(row?.password_hash, input.password))) details.push({ path: 'password', message: 'Re-enter your password to sign.' });
+    if (!(await signerPasswordMatches(deps, caller.user.id, input.password))) details.push({ path: 'password', message: 'Re-enter your password to sign.' });
     if (details.length) throw AppError.validation('The signature is not complete.', details);
   }
   return withTenant(deps.sequelize, tenantId, async () => {
@@ -238,6 +238,9 @@ export async function applyTransition(
   const actorFacts = who.caller ? await loadActorFacts(sequelize, who.caller.actor, now) : { userId: '', organisationIds: [], roles: [], qualifications: [], isSystem: true };
   const verdict = decide(event, facts, actorFacts, now, { reason: input.reason });
   if (!verdict.ok) throw AppError.unprocessable(verdict.reasons[0], verdict.reasons.map((m) => ({ path: 'event', message: m })));
+  // The tenant's longest permit may have been shortened since the draft was written: the authoriser cannot approve past it.
+  if (event === 'approve') requireWindowWithinMax(await loadTenantSettings(sequelize, tenantId), facts.validFrom, facts.validTo);
+  if (event === 'revalidate' && input.validTo) requireRevalidationWithinMax(await loadTenantSettings(sequelize, tenantId), now, new Date(input.validTo));
 
   const sets = ['state = :to', 'version = version + 1', 'updated_at = :now'];
   const r: Record<string, unknown> = { tenantId, id: permit.id, to: verdict.to, now, userId: who.caller?.user.id ?? null };
@@ -282,7 +285,13 @@ export async function applyTransition(
   const audit = await appendAudit(sequelize, {
     tenantId, entityType: 'permit', entityId: permit.id, permitId: permit.id, action: event, fromState: permit.state, toState: verdict.to,
     actor: who.caller ? auditActor(who.caller, eventAction[event]) : null, reason: input.reason ?? (who.system ? who.system : null), ip: who.caller?.ip ?? null,
-    data: who.caller && signedEvents.includes(event) ? { signedName: who.caller.user.name, passwordConfirmed: true } : who.system ? { by: 'holdpoint' } : {},
+    data: who.caller && signedEvents.includes(event)
+      ? { signedName: who.caller.user.name, passwordConfirmed: true }
+      : who.system
+        ? { by: 'holdpoint' }
+        : event === 'revalidate'
+          ? { validTo: new Date(input.validTo!).toISOString() }
+          : {},
     occurredAt: now,
   });
   await queuePermitMail(sequelize, permit, event, verdict.to, {

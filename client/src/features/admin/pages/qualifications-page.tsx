@@ -1,20 +1,22 @@
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { differenceInCalendarDays, format, parseISO } from 'date-fns';
+import { format, parseISO } from 'date-fns';
 import { qualificationInputSchema, type QualificationInput } from '@shared/schemas/auth.schema';
 import { qualificationKinds, qualificationLabels, type QualificationKind } from '@shared/abilities/roles';
+import { daysBetween, siteDay } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
 import { Can } from '@client/lib/ability';
+import { useMe } from '@client/features/auth';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { Card, EmptyState, Loading, PageHeader } from '@client/components/ui/page';
 import { useToast } from '@client/components/ui/toast';
 import { useCreateQualification, useQualifications, useUsers } from '../api/admin-queries';
 
-/** Expired → danger, expiring within 30 days → caution (ISO 3864 colour meanings). */
-export function expiryStatus(expiresOn: string, today = new Date()) {
-  const days = differenceInCalendarDays(parseISO(expiresOn), today);
+/** Expired → danger, expiring within 30 days → caution (ISO 3864 colour meanings). `today` is the site day. */
+export function expiryStatus(expiresOn: string, today: string) {
+  const days = daysBetween(today, expiresOn);
   if (days < 0) return { tone: 'bg-danger-soft text-danger', label: `Expired ${-days} day${days === -1 ? '' : 's'} ago` };
   if (days <= 30) return { tone: 'bg-caution-soft text-ink', label: `Expires in ${days} day${days === 1 ? '' : 's'}` };
   return { tone: '', label: `Valid, ${days} days left` };
@@ -70,6 +72,9 @@ function AddQualification() {
 export default function QualificationsPage() {
   const [page, setPage] = useState(1);
   const q = useQualifications(page);
+  const { data: me } = useMe();
+  // In date or not is judged on the site's calendar day, not the browser's.
+  const today = siteDay(new Date(), me?.activeTenant?.timeZone ?? 'UTC');
   return (
     <>
       <PageHeader title="Qualifications" subtitle="Who may sign which step, and until when. Expired and soon-expiring ones are highlighted." />
@@ -97,7 +102,7 @@ export default function QualificationsPage() {
               </thead>
               <tbody>
                 {q.data.items.map((row) => {
-                  const s = expiryStatus(row.expiresOn);
+                  const s = expiryStatus(row.expiresOn, today);
                   return (
                     <tr key={row.id} className={`border-t border-line ${s.tone}`} data-testid="qualification-row">
                       <td className="px-3 py-2">{row.userName}</td>

@@ -1,11 +1,12 @@
 import { useMemo, useState } from 'react';
 import { useSearchParams } from 'react-router-dom';
 import type { ColumnDef } from '@tanstack/react-table';
-import { format, parseISO } from 'date-fns';
 import { inventoryStateLabels, inventoryStates, type InventoryState } from '@shared/schemas/assets.schema';
 import type { InventoryKind } from '@shared/assets/inventory-state';
 import type { InventoryItem } from '@shared/assets/types';
+import { formatInZone } from '@shared/time/zone';
 import { Can, useAbility } from '@client/lib/ability';
+import { useMe } from '@client/features/auth';
 import { DataTable } from '@client/components/ui/data-table';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextField } from '@client/components/ui/field';
@@ -34,6 +35,8 @@ export default function LocksPage() {
   const ability = useAbility();
   const subject = kind === 'lock' ? 'Lock' : 'Tag';
   const canEdit = ability.can('update', subject);
+  const { data: me } = useMe();
+  const timeZone = me?.activeTenant?.timeZone ?? 'UTC';
   const edit = (next: InventoryItem | 'new') => {
     setEditing(next);
     requestAnimationFrame(() => document.getElementById('inventory-panel')?.scrollIntoView({ behavior: 'smooth', block: 'start' }));
@@ -57,7 +60,7 @@ export default function LocksPage() {
       },
       { id: 'holder', header: 'Held by', cell: ({ row }) => row.original.holderName ?? '—' },
       { id: 'notes', header: 'Notes', cell: ({ row }) => row.original.notes ?? '' },
-      { id: 'updated', header: 'Last change', cell: ({ row }) => format(parseISO(row.original.updatedAt), 'd MMM yyyy HH:mm') },
+      { id: 'updated', header: 'Last change', cell: ({ row }) => formatInZone(row.original.updatedAt, timeZone) },
       {
         id: 'actions',
         header: 'Action',
@@ -69,7 +72,7 @@ export default function LocksPage() {
           ) : null,
       },
     ],
-    [canEdit],
+    [canEdit, timeZone],
   );
 
   return (

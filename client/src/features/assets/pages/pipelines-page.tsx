@@ -5,7 +5,7 @@ import { productKinds, productLabels, type ProductKind } from '@shared/schemas/a
 import { formatPosition, unitWord } from '@shared/assets/format';
 import type { PipelineSummary } from '@shared/assets/types';
 import { Can } from '@client/lib/ability';
-import { useMe } from '@client/features/auth/api/get-me';
+import { useMe } from '@client/features/auth';
 import { DataTable } from '@client/components/ui/data-table';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextField } from '@client/components/ui/field';

@@ -9,6 +9,7 @@ import { TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useSignIn } from '../api/auth-mutations';
 import { useMe } from '../api/get-me';
+import { safeNextPath } from '../lib/safe-next-path';
 
 const demoAccounts = [
   ['admin@bramblecote.example', 'Tenant admin'],
@@ -39,7 +40,7 @@ export default function SignInPage() {
   const signIn = useSignIn();
   const meta = useQuery({ queryKey: ['meta'], queryFn: () => api.get<{ demo: boolean }>('/api/meta'), staleTime: Infinity });
   const form = useForm<SignInInput>({ resolver: zodResolver(signInInputSchema), defaultValues: { email: '', password: '' } });
-  const next = params.get('next')?.startsWith('/') ? params.get('next')! : '/';
+  const next = safeNextPath(params.get('next'));
 
   if (me) return <Navigate to={next} replace />;
 

@@ -2,7 +2,7 @@ import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { mudPlugFormSchema, type MudPlugForm } from '@shared/schemas/calc.schema';
 import { PageHeader } from '@client/components/ui/page';
-import { useMe } from '@client/features/auth/api/get-me';
+import { useMe } from '@client/features/auth';
 import { usePipelineChoices } from '../api/get-pipelines';
 import { usePlugFigures } from '../hooks/use-plug-figures';
 import { AtmosphereSection } from '../components/atmosphere-section';

@@ -14,16 +14,15 @@ export const getGasTestsQueryOptions = (permitId: string, page: number) =>
   });
 export const useGasTests = (permitId: string, page: number) => useQuery(getGasTestsQueryOptions(permitId, page));
 
-/** The latest 500 readings, oldest first, for the chart. */
+/** The chart shows at most this many readings: the newest ones. */
+export const GAS_SERIES_LIMIT = 500;
+
+/** The latest readings (at most GAS_SERIES_LIMIT), oldest first, for the chart: one request, newest page reversed. */
+export async function fetchGasSeries(permitId: string): Promise<GasTestRow[]> {
+  const newest = await api.get<Page<GasTestRow>>(`${base(permitId)}${qs({ page: 1, pageSize: GAS_SERIES_LIMIT, dir: 'desc' })}`);
+  return [...newest.items].reverse();
+}
+
 export const getGasSeriesQueryOptions = (permitId: string) =>
-  queryOptions({
-    queryKey: gasKeys.series(permitId),
-    queryFn: async () => {
-      const total = (await api.get<Page<GasTestRow>>(`${base(permitId)}${qs({ page: 1, pageSize: 1 })}`)).total;
-      const pageSize = 500;
-      const page = Math.max(1, Math.ceil(total / pageSize));
-      const last = await api.get<Page<GasTestRow>>(`${base(permitId)}${qs({ page, pageSize, dir: 'asc' })}`);
-      return last.items;
-    },
-  });
+  queryOptions({ queryKey: gasKeys.series(permitId), queryFn: () => fetchGasSeries(permitId) });
 export const useGasSeries = (permitId: string) => useQuery(getGasSeriesQueryOptions(permitId));

@@ -5,12 +5,12 @@ import {
   checkInputSchema, checkKindLabels, fireWatchObservationLabels, fireWatchObservations, plugFaceLabels, plugFaces, pressureUnits,
   type CheckData, type CheckInput, type CheckKind,
 } from '@shared/schemas/timed-checks.schema';
+import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
 import { useToast } from '@client/components/ui/toast';
 import { usePlanSteps, useRecordCheck } from '../api/checks';
-import { fromWall, toWall } from '../lib/site-time';
 
 const yesNo = { setValueAs: (v: string) => (v === 'yes' ? true : v === 'no' ? false : undefined) };
 
@@ -18,11 +18,11 @@ function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckK
   const steps = usePlanSteps(permitId);
   const record = useRecordCheck(permitId);
   const toast = useToast();
-  const [wall, setWall] = useState(() => toWall(new Date(), timeZone));
+  const [wall, setWall] = useState(() => isoToWallTime(new Date(), timeZone));
   const [timeTouched, setTimeTouched] = useState(false);
   const form = useForm<CheckInput, unknown, CheckData>({
     resolver: zodResolver(checkInputSchema),
-    defaultValues: { kind, checkedAt: fromWall(toWall(new Date(), timeZone), timeZone), actionTaken: '', notes: '' } as CheckInput,
+    defaultValues: { kind, checkedAt: wallTimeToIso(isoToWallTime(new Date(), timeZone), timeZone), actionTaken: '', notes: '' } as CheckInput,
   });
   const errors = form.formState.errors as Record<string, { message?: string } | undefined>;
   const values = useWatch({ control: form.control }) as Record<string, unknown>;
@@ -33,10 +33,10 @@ function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckK
     record.mutate({ ...v, checkedAt: timeTouched ? v.checkedAt : new Date().toISOString(), isolationStepId: v.isolationStepId || undefined, actionTaken: v.actionTaken || undefined, notes: v.notes || undefined } as CheckData, {
       onSuccess: (row) => {
         toast(row.ok ? 'success' : 'error', row.ok ? `${checkKindLabels[kind]} recorded.` : `${checkKindLabels[kind]} recorded: problem reported to the lead and authoriser.`);
-        const w = toWall(new Date(), timeZone);
+        const w = isoToWallTime(new Date(), timeZone);
         setWall(w);
         setTimeTouched(false);
-        form.reset({ kind, checkedAt: fromWall(w, timeZone), actionTaken: '', notes: '' } as CheckInput);
+        form.reset({ kind, checkedAt: wallTimeToIso(w, timeZone), actionTaken: '', notes: '' } as CheckInput);
       },
       onError: (err) => {
         if (err instanceof ApiError && err.details.length) err.details.forEach((d) => form.setError(d.path as never, { message: d.message }));
@@ -55,7 +55,7 @@ function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckK
           onChange={(e) => {
             setWall(e.target.value);
             setTimeTouched(true);
-            form.setValue('checkedAt', fromWall(e.target.value, timeZone));
+            form.setValue('checkedAt', wallTimeToIso(e.target.value, timeZone));
           }}
           error={errors.checkedAt?.message}
         />

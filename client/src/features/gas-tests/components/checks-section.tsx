@@ -1,11 +1,13 @@
 import { subject } from '@casl/ability';
 import { checkKindLabels, plugFaceLabels, type CheckKind, type CheckRow } from '@shared/schemas/timed-checks.schema';
+import { formatInZone } from '@shared/time/zone';
 import { useAbility } from '@client/lib/ability';
 import { Card, EmptyState, Loading } from '@client/components/ui/page';
 import { SafetyCaution } from '@client/components/ui/notice';
+import { EnteredLate } from '@client/components/ui/entered-late';
 import { useChecks } from '../api/checks';
 import { useRegime } from '../api/get-regime';
-import { siteTime, useSiteTimeZone } from '../lib/site-time';
+import { useSiteTimeZone } from '../lib/site-time';
 import { scopeOf, workOpen, type PermitLike } from '../lib/permit-like';
 import { DueList } from './due-list';
 import { CheckForm } from './check-form';
@@ -38,7 +40,7 @@ export function ChecksSection({ permit }: { permit: PermitLike }) {
         {regime.data ? <DueList due={regime.data.due} kinds={['vent', 'plug', 'fire_watch']} timeZone={timeZone} testId="checks-due-list" /> : <Loading />}
         {regime.data?.fireWatchEndsAt ? (
           <p className="text-sm">
-            Fire watch ({regime.data.fireWatchMinutes} minutes after hot work stopped) may end at <strong>{siteTime(regime.data.fireWatchEndsAt, timeZone)}</strong>; hand-back waits for it.
+            Fire watch ({regime.data.fireWatchMinutes} minutes after hot work stopped) may end at <strong>{formatInZone(regime.data.fireWatchEndsAt, timeZone, 'dayTime')}</strong>; hand-back waits for it.
           </p>
         ) : null}
       </div>
@@ -55,7 +57,8 @@ export function ChecksSection({ permit }: { permit: PermitLike }) {
               <p className="font-semibold">
                 <span aria-hidden>{c.ok ? '✓ ' : '✕ '}</span>
                 {checkKindLabels[c.kind]}
-                {c.stepLabel ? ` ${c.stepLabel}` : ''} · {siteTime(c.checkedAt, timeZone)} · {c.recordedByName}
+                {c.stepLabel ? ` ${c.stepLabel}` : ''} · {formatInZone(c.checkedAt, timeZone, 'dayTime')}
+                {c.enteredLate ? <EnteredLate /> : null} · {c.recordedByName}
               </p>
               <p>{describe(c)}</p>
               {c.actionTaken ? <p>Action taken: {c.actionTaken}</p> : null}

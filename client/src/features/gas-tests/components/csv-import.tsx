@@ -1,6 +1,7 @@
 import { useId, useState } from 'react';
 import { readingColumnLabels, readingColumns, type ColumnMapping } from '@shared/gas-tests/csv-readings';
 import { gasTestPlaceLabels, gasTestPlaces, type GasImportResult, type GasTestPlace } from '@shared/schemas/gas-tests.schema';
+import { formatInZone } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
 import { SelectField } from '@client/components/ui/field';
@@ -8,7 +9,6 @@ import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import { useInstruments } from '../api/get-instruments';
 import { useImportGasLog } from '../api/import-gas-log';
-import { siteTime } from '../lib/site-time';
 
 type Phase = 'idle' | 'reading' | 'checking' | 'importing';
 const phaseLabel: Record<Phase, string> = { idle: '', reading: 'Reading the file', checking: 'Checking every row', importing: 'Importing the readings' };
@@ -166,7 +166,7 @@ export function CsvImport({ permitId, timeZone }: { permitId: string; timeZone: 
                   {result.preview.map((r) => (
                     <tr key={r.row} className="border-t border-line">
                       <td className="px-2 py-1">{r.row}</td>
-                      <td className="px-2 py-1">{siteTime(r.testedAt, timeZone)}</td>
+                      <td className="px-2 py-1">{formatInZone(r.testedAt, timeZone, 'dayTime')}</td>
                       <td className="px-2 py-1">{r.readings.o2Pct}</td>
                       <td className="px-2 py-1">{r.readings.lelPct}</td>
                       <td className="px-2 py-1">{r.readings.h2sPpm}</td>

@@ -1,5 +1,6 @@
 import type { DueTimeView } from '@shared/schemas/timed-checks.schema';
-import { dueText, siteTime } from '../lib/site-time';
+import { formatInZone } from '@shared/time/zone';
+import { dueText } from '../lib/site-time';
 import { useNow } from '../hooks/use-now';
 
 /** Each timed check with its due time; an overdue one in the danger colour, with the word "overdue" too. */
@@ -21,7 +22,7 @@ export function DueList({ due, timeZone, kinds, testId = 'due-list' }: { due: Du
             <span className="font-semibold">{d.label}</span>
             <span className={overdue ? 'font-bold text-danger' : ''}>
               {overdue ? '⚠ ' : ''}
-              {text} <span className="text-sm font-normal text-ink-soft">({siteTime(d.dueAt, timeZone)})</span>
+              {text} <span className="text-sm font-normal text-ink-soft">({formatInZone(d.dueAt, timeZone, 'dayTime')})</span>
             </span>
             {d.intervalMinutes ? <span className="w-full text-xs text-ink-soft">Every {d.intervalMinutes} minutes.</span> : null}
           </li>

@@ -1,7 +1,7 @@
 import { useId } from 'react';
 import type { AtmosphereLimits } from '@shared/calc';
 import type { GasTestRow } from '@shared/schemas/gas-tests.schema';
-import { siteTime } from '../lib/site-time';
+import { formatInZone } from '@shared/time/zone';
 
 // Hand-drawn SVG (no charting package is installed): one small chart per gas, because oxygen in
 // % vol, flammable gas in % LEL and the toxics in ppm share no scale. The history table below is
@@ -47,7 +47,7 @@ function MiniChart({ s, tests, timeZone }: { s: Series; tests: GasTestRow[]; tim
   const x = (t: number) => PAD.left + (t1 === t0 ? (W - PAD.left - PAD.right) / 2 : ((t - t0) / (t1 - t0)) * (W - PAD.left - PAD.right));
   const y = (v: number) => PAD.top + (1 - (v - lo) / (hi - lo)) * (H - PAD.top - PAD.bottom);
   const outside = tests.filter((t) => t.assessment.gases[s.key === 'o2Pct' ? 'o2' : s.key === 'lelPct' ? 'lel' : s.key === 'h2sPpm' ? 'h2s' : 'co'].verdict === 'fail');
-  const summary = `${tests.length} reading${tests.length === 1 ? '' : 's'} from ${siteTime(new Date(t0), timeZone, true)} to ${siteTime(new Date(t1), timeZone, true)}; lowest ${Math.min(...values)} ${s.unit}, highest ${Math.max(...values)} ${s.unit}; limit ${s.lines.map((l) => l.label).join(' and ')} ${s.unit}; ${outside.length} outside the limit.`;
+  const summary = `${tests.length} reading${tests.length === 1 ? '' : 's'} from ${formatInZone(new Date(t0), timeZone, 'time')} to ${formatInZone(new Date(t1), timeZone, 'time')}; lowest ${Math.min(...values)} ${s.unit}, highest ${Math.max(...values)} ${s.unit}; limit ${s.lines.map((l) => l.label).join(' and ')} ${s.unit}; ${outside.length} outside the limit.`;
   const points = tests.map((t) => `${x(new Date(t.testedAt).getTime()).toFixed(1)},${y(t.readings[s.key]).toFixed(1)}`).join(' ');
   return (
     <figure className="min-w-0 rounded-card border border-line bg-surface p-2" data-testid={`chart-${s.key}`}>
@@ -85,10 +85,10 @@ function MiniChart({ s, tests, timeZone }: { s: Series; tests: GasTestRow[]; tim
           );
         })}
         <text x={PAD.left} y={H - 8} fontSize="10" fill="var(--color-ink-soft)">
-          {siteTime(new Date(t0), timeZone, true)}
+          {formatInZone(new Date(t0), timeZone, 'time')}
         </text>
         <text x={W - PAD.right} y={H - 8} textAnchor="end" fontSize="10" fill="var(--color-ink-soft)">
-          {siteTime(new Date(t1), timeZone, true)}
+          {formatInZone(new Date(t1), timeZone, 'time')}
         </text>
       </svg>
     </figure>

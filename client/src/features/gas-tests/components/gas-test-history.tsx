@@ -1,9 +1,10 @@
 import { useState } from 'react';
 import type { ColumnDef } from '@tanstack/react-table';
 import { gasTestPlaceLabels, type GasTestRow } from '@shared/schemas/gas-tests.schema';
+import { formatInZone } from '@shared/time/zone';
 import { DataTable } from '@client/components/ui/data-table';
+import { EnteredLate } from '@client/components/ui/entered-late';
 import { useGasTests } from '../api/get-gas-tests';
-import { siteTime } from '../lib/site-time';
 
 function VerdictBadge({ verdict }: { verdict: 'pass' | 'fail' }) {
   return (
@@ -21,7 +22,15 @@ export function GasTestHistory({ permitId, timeZone }: { permitId: string; timeZ
   const [page, setPage] = useState(1);
   const tests = useGasTests(permitId, page);
   const columns: ColumnDef<GasTestRow, unknown>[] = [
-    { header: 'Tested at', cell: ({ row }) => siteTime(row.original.testedAt, timeZone) },
+    {
+      header: 'Tested at',
+      cell: ({ row }) => (
+        <>
+          {formatInZone(row.original.testedAt, timeZone, 'dayTime')}
+          {row.original.enteredLate ? <EnteredLate /> : null}
+        </>
+      ),
+    },
     { header: 'Where', cell: ({ row }) => (row.original.place === 'other' ? row.original.placeNote : gasTestPlaceLabels[row.original.place]) },
     { header: 'O₂ % vol', cell: ({ row }) => <span className={cellClass(row.original, 'o2')}>{row.original.readings.o2Pct}</span> },
     { header: 'LEL %', cell: ({ row }) => <span className={cellClass(row.original, 'lel')}>{row.original.readings.lelPct}</span> },

@@ -1,11 +1,11 @@
 import { subject } from '@casl/ability';
 import type { PermitRegime } from '@shared/schemas/timed-checks.schema';
+import { formatInZone } from '@shared/time/zone';
 import { useAbility } from '@client/lib/ability';
 import { Card, Loading } from '@client/components/ui/page';
 import { Notice, SafetyCaution } from '@client/components/ui/notice';
 import { useRegime } from '../api/get-regime';
 import { useGasSeries } from '../api/get-gas-tests';
-import { siteTime } from '../lib/site-time';
 import { scopeOf, workOpen, type PermitLike } from '../lib/permit-like';
 import { DueList } from './due-list';
 import { RecordGasTestForm } from './record-gas-test-form';
@@ -15,7 +15,7 @@ import { CsvImport } from './csv-import';
 import { LimitsTable, TightenLimitsForm } from './permit-limits';
 
 function Regime({ r }: { r: PermitRegime }) {
-  const done = (at: string | null) => (at ? `passed ${siteTime(at, r.timeZone)}` : 'not recorded yet');
+  const done = (at: string | null) => (at ? `passed ${formatInZone(at, r.timeZone, 'dayTime')}` : 'not recorded yet');
   return (
     <dl className="grid grid-cols-1 gap-x-4 gap-y-1 text-sm sm:grid-cols-[auto_1fr]" data-testid="gas-regime">
       <dt className="font-semibold">Before cleaning the pipe interior</dt>
@@ -28,8 +28,8 @@ function Regime({ r }: { r: PermitRegime }) {
       <dd>a repeat test every {r.gasTestIntervalMinutes} minutes</dd>
       <dt className="font-semibold">Latest</dt>
       <dd>
-        {r.tests.lastPass ? `pass ${siteTime(r.tests.lastPass, r.timeZone)}` : 'no pass yet'}
-        {r.tests.lastFail ? <span className="font-semibold text-danger">{` · fail ${siteTime(r.tests.lastFail, r.timeZone)}`}</span> : null}
+        {r.tests.lastPass ? `pass ${formatInZone(r.tests.lastPass, r.timeZone, 'dayTime')}` : 'no pass yet'}
+        {r.tests.lastFail ? <span className="font-semibold text-danger">{` · fail ${formatInZone(r.tests.lastFail, r.timeZone, 'dayTime')}`}</span> : null}
       </dd>
     </dl>
   );

@@ -3,9 +3,10 @@ import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { subject } from '@casl/ability';
 import { handoverAcceptSchema, handoverCreateSchema, type HandoverAcceptInput, type HandoverCreateInput, type HandoverRow } from '@shared/schemas/timed-checks.schema';
+import { formatInZone } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
 import { useAbility } from '@client/lib/ability';
-import { useMe } from '@client/features/auth/api/get-me';
+import { useMe } from '@client/features/auth';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
 import { Card, Loading } from '@client/components/ui/page';
@@ -13,7 +14,7 @@ import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import { useAcceptHandover, useCreateHandover, useHandovers, useLeads } from '../api/handovers';
 import { useRegime } from '../api/get-regime';
-import { siteTime, useSiteTimeZone } from '../lib/site-time';
+import { useSiteTimeZone } from '../lib/site-time';
 import type { PermitLike } from '../lib/permit-like';
 
 function SignOut({ permit, userName }: { permit: PermitLike; userName: string }) {
@@ -99,8 +100,8 @@ function HandoverCard({ h, timeZone }: { h: HandoverRow; timeZone: string }) {
   return (
     <div className="flex flex-col gap-1 text-sm">
       <p className="font-semibold">
-        {h.fromName} → {h.toName} · signed {siteTime(h.fromSignedAt, timeZone)}
-        {h.acceptedAt ? ` · accepted ${siteTime(h.acceptedAt, timeZone)}` : h.status === 'pending' ? ' · waiting for the incoming lead' : ' · replaced by a later handover'}
+        {h.fromName} → {h.toName} · signed {formatInZone(h.fromSignedAt, timeZone, 'dayTime')}
+        {h.acceptedAt ? ` · accepted ${formatInZone(h.acceptedAt, timeZone, 'dayTime')}` : h.status === 'pending' ? ' · waiting for the incoming lead' : ' · replaced by a later handover'}
       </p>
       <p className="break-words whitespace-pre-line">{h.openPoints}</p>
       <ul className="list-disc pl-5 text-ink-soft">

@@ -5,6 +5,7 @@ import { assessAtmosphere, CalcInputError, type AtmosphereLimits } from '@shared
 import { assessOptionsFor } from '@shared/gas-tests/permit-limits';
 import { instrumentStatus } from '@shared/gas-tests/instrument-status';
 import { failureSummary } from '@shared/gas-tests/verdict-text';
+import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import {
   gasReadingsSchema, gasTestInputSchema, gasTestPlaceLabels, gasTestPlaces, gasTestPurposeLabels, gasTestPurposes,
   type GasTestData, type GasTestInput, type GasTestResult,
@@ -17,7 +18,6 @@ import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import { useInstruments } from '../api/get-instruments';
 import { useRecordGasTest } from '../api/record-gas-test';
-import { fromWall, toWall } from '../lib/site-time';
 import type { PermitLike } from '../lib/permit-like';
 
 const READINGS = [
@@ -34,7 +34,7 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
   const instruments = useInstruments();
   const record = useRecordGasTest(permit.id);
   const toast = useToast();
-  const [wall, setWall] = useState(() => toWall(new Date(), timeZone));
+  const [wall, setWall] = useState(() => isoToWallTime(new Date(), timeZone));
   // Untouched, the time field means "now": the moment of recording, not the minute the form opened.
   const [timeTouched, setTimeTouched] = useState(false);
   const [last, setLast] = useState<GasTestResult | null>(null);
@@ -42,7 +42,7 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
   const form = useForm<GasTestInput, unknown, GasTestData>({
     resolver: zodResolver(gasTestInputSchema),
     defaultValues: {
-      instrumentId: '', place: 'work_area', placeNote: '', purpose: live ? 'repeat' : 'before_work', testedAt: fromWall(toWall(new Date(), timeZone), timeZone),
+      instrumentId: '', place: 'work_area', placeNote: '', purpose: live ? 'repeat' : 'before_work', testedAt: wallTimeToIso(isoToWallTime(new Date(), timeZone), timeZone),
       readings: { o2Pct: '', lelPct: '', h2sPpm: '', coPpm: '' }, notes: '',
     },
   });
@@ -79,10 +79,10 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
           setLast(result);
           if (result.suspended) toast('error', `Gas test failed: ${permit.number} is suspended.`);
           else toast(result.verdict === 'pass' ? 'success' : 'error', result.verdict === 'pass' ? 'Gas test recorded: pass.' : 'Gas test recorded: FAIL.');
-          const w = toWall(new Date(), timeZone);
+          const w = isoToWallTime(new Date(), timeZone);
           setWall(w);
           setTimeTouched(false);
-          form.reset({ ...values, testedAt: fromWall(w, timeZone), readings: { o2Pct: '', lelPct: '', h2sPpm: '', coPpm: '' }, notes: '' });
+          form.reset({ ...values, testedAt: wallTimeToIso(w, timeZone), readings: { o2Pct: '', lelPct: '', h2sPpm: '', coPpm: '' }, notes: '' });
         },
         onError: (err) => {
           if (!(err instanceof ApiError)) return toast('error', err.message);
@@ -113,7 +113,7 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
           onChange={(e) => {
             setWall(e.target.value);
             setTimeTouched(true);
-            form.setValue('testedAt', fromWall(e.target.value, timeZone), { shouldValidate: form.formState.isSubmitted });
+            form.setValue('testedAt', wallTimeToIso(e.target.value, timeZone), { shouldValidate: form.formState.isSubmitted });
           }}
           error={errors.testedAt?.message}
         />

@@ -5,9 +5,10 @@ import { subject } from '@casl/ability';
 import { format, parseISO } from 'date-fns';
 import { instrumentStatus, type InstrumentStatus } from '@shared/gas-tests/instrument-status';
 import { instrumentInputSchema, type InstrumentInput, type InstrumentRow } from '@shared/schemas/gas-tests.schema';
+import { formatInZone, isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
 import { Can, useAbility } from '@client/lib/ability';
-import { useMe } from '@client/features/auth/api/get-me';
+import { useMe } from '@client/features/auth';
 import { Button } from '@client/components/ui/button';
 import { TextField } from '@client/components/ui/field';
 import { Card, EmptyState, Loading, PageHeader } from '@client/components/ui/page';
@@ -15,7 +16,7 @@ import { Notice, SafetyCaution } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import { useInstruments } from '../api/get-instruments';
 import { useCreateInstrument, useUpdateInstrument } from '../api/instrument-mutations';
-import { fromWall, siteTime, toWall, useSiteTimeZone } from '../lib/site-time';
+import { useSiteTimeZone } from '../lib/site-time';
 import { useNow } from '../hooks/use-now';
 
 function AddInstrument({ timeZone }: { timeZone: string }) {
@@ -32,7 +33,7 @@ function AddInstrument({ timeZone }: { timeZone: string }) {
         className="grid gap-3 md:grid-cols-3"
         onSubmit={form.handleSubmit((v) =>
           create.mutate(
-            { ...v, lastCalibratedOn: v.lastCalibratedOn || null, lastBumpTestAt: bumpWall ? fromWall(bumpWall, timeZone) : null },
+            { ...v, lastCalibratedOn: v.lastCalibratedOn || null, lastBumpTestAt: bumpWall ? wallTimeToIso(bumpWall, timeZone) : null },
             {
               onSuccess: () => {
                 toast('success', 'Instrument registered.');
@@ -78,7 +79,7 @@ function RowActions({ row, timeZone }: { row: InstrumentRow; timeZone: string })
     update.mutate({ id: row.id, patch }, { onSuccess: () => { toast('success', done); setCalibrating(false); }, onError: (err) => toast('error', err.message) });
   return (
     <div className="flex flex-col gap-2">
-      <Button type="button" variant="secondary" busy={update.isPending} onClick={() => run({ lastBumpTestAt: fromWall(toWall(new Date(), timeZone), timeZone) }, `Bump test recorded for ${row.serial}.`)}>
+      <Button type="button" variant="secondary" busy={update.isPending} onClick={() => run({ lastBumpTestAt: wallTimeToIso(isoToWallTime(new Date(), timeZone), timeZone) }, `Bump test recorded for ${row.serial}.`)}>
         Record bump test now
       </Button>
       <Button type="button" variant="ghost" aria-expanded={calibrating} onClick={() => setCalibrating((c) => !c)}>
@@ -134,7 +135,7 @@ export default function InstrumentsPage() {
                   <StatusText s={s} />
                   <dl className="grid grid-cols-[auto_1fr] gap-x-3 text-sm">
                     <dt className="text-ink-soft">Last bump test</dt>
-                    <dd>{row.lastBumpTestAt ? siteTime(row.lastBumpTestAt, timeZone) : 'none recorded'}</dd>
+                    <dd>{row.lastBumpTestAt ? formatInZone(row.lastBumpTestAt, timeZone, 'dayTime') : 'none recorded'}</dd>
                     <dt className="text-ink-soft">Last calibrated</dt>
                     <dd>{row.lastCalibratedOn ? format(parseISO(row.lastCalibratedOn), 'd MMM yyyy') : '—'}</dd>
                     <dt className="text-ink-soft">Calibration due</dt>

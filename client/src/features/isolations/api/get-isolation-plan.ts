@@ -31,6 +31,7 @@ export interface IsolationStep {
   appliedBy: string | null;
   appliedByName: string | null;
   appliedAt: string | null;
+  appliedEnteredLate: boolean;
   photoAttachmentId: string | null;
   remoteAckAt: string | null;
   remoteAckByName: string | null;

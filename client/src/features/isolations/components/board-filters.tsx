@@ -1,6 +1,6 @@
 import { permitStateLabels } from '@shared/permit/states';
 import { SelectField } from '@client/components/ui/field';
-import { usePermitPipelines } from '@client/features/permits/api/get-pipelines';
+import { usePermitPipelines } from '@client/features/permits';
 import { boardPermitStates, type BoardFilters as Filters } from '../api/get-board';
 
 /** Pipeline and permit-state filters; the values live in the URL so a board view can be shared or reloaded. */

@@ -4,11 +4,10 @@ import { subject } from '@casl/ability';
 import { conditionLabels, stepKindLabels } from '@shared/schemas/isolation.schema';
 import type { LocationUnit } from '@shared/schemas/assets.schema';
 import { formatPosition } from '@shared/assets/format';
+import { formatInZone } from '@shared/time/zone';
 import { Can } from '@client/lib/ability';
 import { Button } from '@client/components/ui/button';
-import { PermitStateBadge } from '@client/features/permits/components/permit-state-badge';
-import { describeGasDue, formatSpan } from '@client/features/permits/lib/time-left';
-import { formatInZone } from '@client/features/permits/lib/zoned-time';
+import { describeGasDue, formatSpan, PermitStateBadge } from '@client/features/permits';
 import type { BoardItem } from '../api/get-board';
 import { slotClass, slotProps, type VirtualSlot } from './virtual-slot';
 

@@ -4,9 +4,10 @@ import { conditionLabels, verificationLabels } from '@shared/schemas/isolation.s
 import type { LocationUnit } from '@shared/schemas/assets.schema';
 import { formatPosition } from '@shared/assets/format';
 import type { PermitState } from '@shared/permit/states';
+import { formatInZone } from '@shared/time/zone';
 import { Can } from '@client/lib/ability';
 import { Button } from '@client/components/ui/button';
-import { formatInZone } from '@client/features/permits/lib/zoned-time';
+import { EnteredLate } from '@client/components/ui/entered-late';
 import type { IsolationStep } from '../api/get-isolation-plan';
 import { stepActionsFit } from '../lib/step-rules';
 import { acknowledgeButtonLabels, type AcknowledgeWhat } from './acknowledge-dialog';
@@ -74,6 +75,7 @@ export function StepItem({ permit, step, unit, timeZone, onAction }: Props) {
         {step.appliedAt ? (
           <Fact label="Applied">
             {step.appliedByName}, {at(step.appliedAt)}
+            {step.appliedEnteredLate ? <EnteredLate /> : null}
           </Fact>
         ) : null}
         {step.remotelyOperable && step.appliedAt ? (

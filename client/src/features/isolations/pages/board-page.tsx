@@ -1,11 +1,11 @@
 import { useMemo, useState } from 'react';
 import { useSearchParams } from 'react-router-dom';
+import { formatInZone } from '@shared/time/zone';
 import { Button } from '@client/components/ui/button';
 import { Notice, SafetyCaution } from '@client/components/ui/notice';
 import { EmptyState, Loading, PageHeader } from '@client/components/ui/page';
-import { useMe } from '@client/features/auth/api/get-me';
-import { useNow } from '@client/features/permits/hooks/use-now';
-import { formatInZone } from '@client/features/permits/lib/zoned-time';
+import { useMe } from '@client/features/auth';
+import { useNow } from '@client/features/permits';
 import { boardPermitStates, useBoard, type BoardFilters as Filters, type BoardItem } from '../api/get-board';
 import { AcknowledgeDialog } from '../components/acknowledge-dialog';
 import { BoardFilters } from '../components/board-filters';

@@ -1,12 +1,12 @@
 import { subject } from '@casl/ability';
 import type { ChecklistItem } from '@shared/schemas/permit.schema';
 import type { PermitState } from '@shared/permit/states';
+import { formatInZone } from '@shared/time/zone';
 import { useAbility } from '@client/lib/ability';
 import { Card } from '@client/components/ui/page';
 import { useToast } from '@client/components/ui/toast';
 import type { PermitDetail } from '../api/get-permit';
 import { useUpdateChecklist } from '../api/update-checklist';
-import { formatInZone } from '../lib/zoned-time';
 
 // The states in which the server lets each list change (permits.service.ts updateChecklist).
 const openFor: Record<'checklist' | 'walkdown', PermitState[]> = {

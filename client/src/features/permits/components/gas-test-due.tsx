@@ -1,5 +1,5 @@
+import { formatInZone } from '@shared/time/zone';
 import { describeGasDue } from '../lib/time-left';
-import { formatInZone } from '../lib/zoned-time';
 import { useNow } from '../hooks/use-now';
 
 /** "Next gas test due in 12 minutes" — in the danger colour once it is overdue. */

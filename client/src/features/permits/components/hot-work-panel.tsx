@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import { subject } from '@casl/ability';
 import { fireWatchEnd } from '@shared/calc';
+import { formatInZone } from '@shared/time/zone';
 import { useAbility } from '@client/lib/ability';
 import { Button } from '@client/components/ui/button';
 import { ModalDialog } from '@client/components/ui/dialog';
@@ -8,7 +9,6 @@ import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import type { PermitDetail } from '../api/get-permit';
 import { useRecordHotWorkStopped } from '../api/record-hot-work-stopped';
-import { formatInZone } from '../lib/zoned-time';
 import { formatSpan } from '../lib/time-left';
 import { useNow } from '../hooks/use-now';
 

@@ -2,9 +2,9 @@ import { Link } from 'react-router-dom';
 import type { PermitSummary } from '@shared/schemas/permit.schema';
 import { workKindLabels } from '@shared/permit/states';
 import type { LocationUnit } from '@shared/schemas/assets.schema';
+import { formatInZone } from '@shared/time/zone';
 import { PermitStateBadge } from './permit-state-badge';
 import { GasTestDue } from './gas-test-due';
-import { formatInZone } from '../lib/zoned-time';
 import { formatRange } from '../lib/positions';
 
 /** The permits list on a phone: one card per permit instead of a wide table. */

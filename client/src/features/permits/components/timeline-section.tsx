@@ -1,9 +1,9 @@
 import { permitEventLabels, type PermitEvent } from '@shared/permit/state-machine';
 import { permitStateLabels, type PermitState } from '@shared/permit/states';
 import { roleLabels, type Role } from '@shared/abilities/roles';
+import { formatInZone } from '@shared/time/zone';
 import { Card } from '@client/components/ui/page';
 import type { PermitDetail } from '../api/get-permit';
-import { formatInZone } from '../lib/zoned-time';
 
 const actionWords: Record<string, string> = {
   created: 'Created',

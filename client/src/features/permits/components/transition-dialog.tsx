@@ -2,6 +2,7 @@ import { useMemo } from 'react';
 import { Controller, useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { transitionInputSchema, type PermitAction } from '@shared/schemas/permit.schema';
+import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
 import { ModalDialog } from '@client/components/ui/dialog';
@@ -10,7 +11,6 @@ import { Notice } from '@client/components/ui/notice';
 import type { PermitDetail } from '../api/get-permit';
 import { useTransitionPermit } from '../api/transition-permit';
 import { eventExplanations, irreversibleNotes } from '../lib/transition-copy';
-import { isoToWallTime, wallTimeToIso } from '../lib/zoned-time';
 
 type DialogValues = { reason?: string; password?: string; signedName?: string; validTo?: string };
 

@@ -1,4 +1,4 @@
-import { useMe } from '@client/features/auth/api/get-me';
+import { useMe } from '@client/features/auth';
 
 /** The contractor organisations in which the user is a contractor lead in the active tenant. */
 export function useOwnContractorOrganisations(): string[] {

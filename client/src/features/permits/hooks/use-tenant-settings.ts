@@ -1,4 +1,4 @@
-import { useMe } from '@client/features/auth/api/get-me';
+import { useMe } from '@client/features/auth';
 
 /** The tenant's time zone and position unit, with safe fallbacks while /me loads. */
 export function useTenantSettings() {

@@ -1,13 +1,12 @@
 import { Link, useParams } from 'react-router-dom';
 import { subject } from '@casl/ability';
 import { workKindLabels } from '@shared/permit/states';
+import { formatInZone } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
 import { useAbility } from '@client/lib/ability';
-import { useMe } from '@client/features/auth/api/get-me';
-import { IsolationPlanSection } from '@client/features/isolations/components/isolation-plan-section';
-import { GasTestsSection } from '@client/features/gas-tests/components/gas-tests-section';
-import { ChecksSection } from '@client/features/gas-tests/components/checks-section';
-import { HandoverSection } from '@client/features/gas-tests/components/handover-section';
+import { useMe } from '@client/features/auth';
+import { IsolationPlanSection } from '@client/features/isolations';
+import { ChecksSection, GasTestsSection, HandoverSection } from '@client/features/gas-tests';
 import { Button } from '@client/components/ui/button';
 import { Card, Loading } from '@client/components/ui/page';
 import { Notice, SafetyCaution } from '@client/components/ui/notice';
@@ -25,10 +24,9 @@ import { ChecklistSection } from '../components/checklist-section';
 import { SignaturesSection } from '../components/signatures-section';
 import { TimelineSection } from '../components/timeline-section';
 import { AttachmentsSlot } from '../components/attachments-slot';
-import { AttachmentsPanel } from '@client/features/attachments/attachments-section';
+import { AttachmentsPanel } from '@client/features/attachments';
 import { PermitNotFound } from '../components/permit-not-found';
 import { linkButtonClass } from '../components/link-button';
-import { formatInZone } from '../lib/zoned-time';
 import { useTenantSettings } from '../hooks/use-tenant-settings';
 
 export default function PermitPage() {

@@ -3,6 +3,7 @@ import { Link, useSearchParams } from 'react-router-dom';
 import type { ColumnDef } from '@tanstack/react-table';
 import type { PermitSummary } from '@shared/schemas/permit.schema';
 import { workKindLabels } from '@shared/permit/states';
+import { formatInZone } from '@shared/time/zone';
 import { Can } from '@client/lib/ability';
 import { DataTable } from '@client/components/ui/data-table';
 import { Button } from '@client/components/ui/button';
@@ -15,7 +16,6 @@ import { PermitCards } from '../components/permit-cards';
 import { PermitsFilters } from '../components/permits-filters';
 import { linkButtonClass } from '../components/link-button';
 import { hasFilters, patchParams, readPermitsParams } from '../lib/list-params';
-import { formatInZone } from '../lib/zoned-time';
 import { formatRange } from '../lib/positions';
 import { useTenantSettings } from '../hooks/use-tenant-settings';
 

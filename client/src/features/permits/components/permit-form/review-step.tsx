@@ -2,12 +2,12 @@ import type { ReactNode } from 'react';
 import { useWatch } from 'react-hook-form';
 import { workKindLabels, type WorkKind } from '@shared/permit/states';
 import type { LocationUnit } from '@shared/schemas/assets.schema';
+import { formatInZone } from '@shared/time/zone';
 import { Button } from '@client/components/ui/button';
 import { usePermitPipelines } from '../../api/get-pipelines';
 import { useContractors } from '../../api/get-contractors';
 import { useContractorLeads } from '../../api/get-contractor-leads';
 import { formatRange, pipelineLabel } from '../../lib/positions';
-import { formatInZone } from '../../lib/zoned-time';
 import type { PermitFormApi } from './types';
 
 function Group({ title, onEdit, children }: { title: string; onEdit: () => void; children: ReactNode }) {

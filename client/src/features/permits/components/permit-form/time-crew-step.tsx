@@ -1,8 +1,8 @@
 import { Controller, useWatch } from 'react-hook-form';
+import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { useContractors } from '../../api/get-contractors';
 import { useContractorLeads } from '../../api/get-contractor-leads';
-import { isoToWallTime, wallTimeToIso } from '../../lib/zoned-time';
 import { fieldError, optionalNumber, type PermitFormApi } from './types';
 
 interface Props {

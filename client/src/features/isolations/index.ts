@@ -1,0 +1,2 @@
+// What other features may use from isolations; everything else in this folder is its own business.
+export { IsolationPlanSection } from './components/isolation-plan-section';
