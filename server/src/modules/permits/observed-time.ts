@@ -46,12 +46,15 @@ export async function observationBounds(deps: AppDeps, permit: PermitRow): Promi
 export function observedTimeProblem(b: ObservationBounds, at: Date): string | null {
   const t = at.getTime();
   if (t > b.now.getTime() + CLOCK_SKEW_MS) return `${formatInZone(at, b.timeZone)} is in the future. Give the time it was done, not a time to come.`;
-  if (b.issuedAt && t < b.issuedAt.getTime())
+  // Forms take times to the minute: a time in the minute the permit was issued counts as after it.
+  if (b.issuedAt && t < startOfMinute(b.issuedAt))
     return `${formatInZone(at, b.timeZone)} is before the permit was issued (${formatInZone(b.issuedAt, b.timeZone)}). Give the time it was done on this permit.`;
   if (t < b.now.getTime() - b.lateEntryWindowMinutes * 60_000)
     return `${formatInZone(at, b.timeZone)} is more than ${b.lateEntryWindowMinutes} minutes ago. This site accepts entries at most ${b.lateEntryWindowMinutes} minutes after the event.`;
   return null;
 }
+
+const startOfMinute = (d: Date) => Math.floor(d.getTime() / 60_000) * 60_000;
 
 export function isEnteredLate(b: ObservationBounds, at: Date): boolean {
   return b.now.getTime() - at.getTime() > ENTERED_LATE_AFTER_MS;
