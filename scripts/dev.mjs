@@ -16,7 +16,7 @@ const cluster = startCluster({ root: join(dataDir, 'pg'), port: Number(process.e
 const ownerUrl = ensureRoleAndDatabase(cluster, { role: 'holdpoint', password: keptSecret(join(dataDir, 'db-password')), database: 'holdpoint' });
 const appUrl = withCredentials(ownerUrl, ensureAppRole(cluster, { role: 'holdpoint_app', password: keptSecret(join(dataDir, 'db-app-password')) }));
 const env = { ...process.env, DATABASE_URL: appUrl, DATABASE_OWNER_URL: ownerUrl, DATA_DIR: dataDir, PORT: String(port), NODE_ENV: 'development', DEV_MAILBOX: process.env.SMTP_URL ? 'off' : 'on', PUBLIC_URL: 'http://127.0.0.1:5173' };
-if (spawnSync(process.execPath, ['--import', 'tsx', 'server/src/db/cli.ts', 'setup'], { cwd: root, env: { ...env, DATABASE_URL: ownerUrl }, stdio: 'inherit' }).status !== 0) process.exit(1);
+if (spawnSync(process.execPath, ['--import', 'tsx', 'server/src/demo/cli.ts', 'setup'], { cwd: root, env: { ...env, DATABASE_URL: ownerUrl }, stdio: 'inherit' }).status !== 0) process.exit(1);
 const children = [
   spawn('npx', ['tsx', 'watch', 'server/src/index.ts'], { cwd: root, env, stdio: 'inherit' }),
   spawn('npx', ['vite'], { cwd: root, env, stdio: 'inherit' }),

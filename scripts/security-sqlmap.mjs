@@ -28,7 +28,7 @@ try {
   // A copy of the template with the demo permits, so list routes answer rows and sqlmap can compare answers.
   db.superuserPsql('CREATE DATABASE holdpoint_sqlmap TEMPLATE holdpoint_template');
   const ownerUrl = db.templateUrl.replace(/\/holdpoint_template$/, '/holdpoint_sqlmap');
-  const seed = spawnSync(process.execPath, ['--import', 'tsx', 'server/src/db/cli.ts', 'setup'], { cwd: root, env: { ...process.env, DATABASE_URL: ownerUrl }, stdio: ['ignore', 'ignore', 'inherit'] });
+  const seed = spawnSync(process.execPath, ['--import', 'tsx', 'server/src/demo/cli.ts', 'setup'], { cwd: root, env: { ...process.env, DATABASE_URL: ownerUrl }, stdio: ['ignore', 'ignore', 'inherit'] });
   if (seed.status !== 0) throw new Error('seeding the scan database failed');
 
   const port = await freePort();

@@ -1,6 +1,6 @@
 // `npm run seed:scale [-- --fresh] [-- --factor 0.1]`: builds the large-operator dataset in its own
 // database (holdpoint_scale) in the cluster of `npm start` (.data/pg, PGPORT, default 54329): the demo
-// people and tenants first (`cli.ts setup`), then 200 pipelines, 20,000 isolation points, 60,000
+// people and tenants first (`demo/cli.ts setup`), then 200 pipelines, 20,000 isolation points, 60,000
 // historic permits with their audit events, 2,000 live permits holding 8,000 isolations and 500,000
 // gas readings in the Bramblecote tenant. `--fresh` drops and rebuilds the database, `--verify`
 // recomputes the whole audit chain afterwards, `--factor 0.1` builds a tenth of everything. A database
@@ -41,7 +41,7 @@ try {
   const env = { ...process.env, DATABASE_URL: databaseUrl, DATA_DIR: dataDir };
   const node = (script, extra = []) => spawnSync(process.execPath, ['--import', 'tsx', script, ...extra], { cwd: root, env, stdio: 'inherit' }).status;
   console.log(`[seed:scale] migrating ${database} and seeding the demo people`);
-  if (node('server/src/db/cli.ts', ['setup']) !== 0) throw new Error('migrating or seeding the demo failed');
+  if (node('server/src/demo/cli.ts', ['setup']) !== 0) throw new Error('migrating or seeding the demo failed');
   console.log(`[seed:scale] building the dataset`);
   const status = node('scripts/scale/seed-data.ts', args.filter((a) => a !== '--fresh'));
   if (status === 3) finish(0);

@@ -36,7 +36,7 @@ const env = { ...process.env, DATABASE_URL: appUrl, DATABASE_OWNER_URL: ownerUrl
 const run = (args) => spawnSync(process.execPath, args, { cwd: root, env: { ...env, DATABASE_URL: ownerUrl }, stdio: 'inherit' });
 
 try {
-  if (run(['--import', 'tsx', 'server/src/db/cli.ts', 'setup']).status !== 0) throw new Error('database set-up failed');
+  if (run(['--import', 'tsx', 'server/src/demo/cli.ts', 'setup']).status !== 0) throw new Error('database set-up failed');
   if (spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: root, env, stdio: 'inherit' }).status !== 0) throw new Error('client build failed');
   if (await portInUse(port)) throw new Error(`Port ${port} is in use; set PORT to another port.`);
 } catch (err) {

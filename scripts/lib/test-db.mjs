@@ -19,7 +19,7 @@ export async function startTestDatabase(projectRoot) {
   const cluster = startCluster({ root: join(root, 'pg'), port, fsync: false });
   const templateUrl = ensureRoleAndDatabase(cluster, { role: TEST_ROLE, password: TEST_PASSWORD, database: TEMPLATE_DB, createdb: true });
   ensureAppRole(cluster, TEST_APP_ROLE);
-  const r = spawnSync(process.execPath, ['--import', 'tsx', 'server/src/db/cli.ts', 'setup'], {
+  const r = spawnSync(process.execPath, ['--import', 'tsx', 'server/src/demo/cli.ts', 'setup'], {
     cwd: projectRoot,
     // Tests start without the demo permits: each test file creates the permits it needs.
     env: { ...process.env, DATABASE_URL: templateUrl, SEED_DEMO_PERMITS: 'off' },

@@ -1,5 +1,5 @@
 // The large-operator dataset, added to the Bramblecote demo tenant of a database that already holds
-// the demo (`cli.ts setup`), so the demo people sign in straight into it. Run through
+// the demo (`demo/cli.ts setup`), so the demo people sign in straight into it. Run through
 // `npm run seed:scale` (scripts/seed-scale.mjs → scripts/scale/seed-data.ts).
 // Everything is invented. Historic permits are written as an import would write them: each event
 // keeps the time it happened and is appended to the tenant's audit chain, in time order, after the
@@ -9,9 +9,9 @@ import { assessAtmosphere, type AtmosphereAssessment, type AtmosphereReadings } 
 import { assessOptionsFor } from '@shared/gas-tests/permit-limits';
 import { resolveInsideDiameter } from '@shared/assets/inside-diameter';
 import { readTenantSettings } from '@shared/schemas/tenant-settings.schema';
-import type { ChecklistItem } from '@shared/schemas/permit.schema';
+import type { ChecklistItem } from '@shared/types/permits';
 import type { WorkKind } from '@shared/permit/states';
-import { limitsFromSettings } from '../../server/src/modules/calc/calc.service';
+import { limitsFromSettings } from '../../server/src/lib/atmosphere-limits';
 import { AuditChainWriter, BulkInsert, Progress, deferIndexes, randomSource, type AuditEventFields } from './bulk';
 import { SCALE_CODE_PREFIX, SCALE_INSTRUMENT_SERIAL, SCALE_TENANT_SLUG } from './dataset';
 
@@ -74,7 +74,7 @@ export async function buildScaleDataset(url: string, options: { factor?: number;
   const one = async <R>(sql: string, params: unknown[] = []) => (await a.query(sql, params)).rows[0] as R;
 
   const tenant = await one<{ id: string; settings: unknown } | undefined>(`SELECT id, settings FROM tenants WHERE slug = $1`, [SCALE_TENANT_SLUG]);
-  if (!tenant) throw new Error('The demo tenant is missing: run `cli.ts setup` on this database first.');
+  if (!tenant) throw new Error('The demo tenant is missing: run `demo/cli.ts setup` on this database first.');
   const tenantId = tenant.id;
   await Promise.all([a.query(`SELECT set_config('app.tenant_id', $1, false)`, [tenantId]), b.query(`SELECT set_config('app.tenant_id', $1, false)`, [tenantId])]);
   const already = await one<{ n: number }>(`SELECT count(*)::int AS n FROM pipelines WHERE tenant_id = $1 AND code LIKE $2`, [tenantId, `${SCALE_CODE_PREFIX}%`]);
@@ -202,7 +202,7 @@ export async function buildScaleDataset(url: string, options: { factor?: number;
     ['remotely_operable', 'boolean[]'], ['lock_id', 'uuid[]'], ['tag_id', 'uuid[]'], ['applied_by', 'uuid[]'], ['applied_at', 'timestamptz[]'], ['remote_ack_by', 'uuid[]'],
     ['remote_ack_at', 'timestamptz[]'], ['verified_by', 'uuid[]'], ['verified_at', 'timestamptz[]'], ['verification_method', 'text[]'], ['removed_by', 'uuid[]'],
     ['removed_at', 'timestamptz[]'], ['control_room_ack_applied_by', 'uuid[]'], ['control_room_ack_applied_at', 'timestamptz[]'], ['control_room_ack_removed_by', 'uuid[]'],
-    ['control_room_ack_removed_at', 'timestamptz[]'], ['created_at', 'timestamptz[]'], ['updated_at', 'timestamptz[]'],
+    ['control_room_ack_removed_at', 'timestamptz[]'], ['created_at', 'timestamptz[]'], ['updated_at', 'timestamptz[]'], ['applied_seq', 'int[]'],
   ]);
   const gas = table(b, 'gas_tests', [
     ['id', 'uuid[]'], ['tenant_id', 'uuid[]'], ['permit_id', 'uuid[]'], ['tester_user_id', 'uuid[]'], ['instrument_id', 'uuid[]'], ['place', 'text[]'], ['purpose', 'text[]'],
@@ -287,7 +287,7 @@ export async function buildScaleDataset(url: string, options: { factor?: number;
           pt.remote ? control.id : null, pt.remote ? iso(appliedAt + 5 * 60_000) : null, verifiedAt ? tech2.id : null, verifiedAt ? iso(verifiedAt) : null,
           verifiedAt ? 'visual and try-to-operate' : null, removedAt ? tech.id : null, removedAt ? iso(removedAt) : null,
           acked ? control.id : null, acked ? iso(appliedAt + 8 * 60_000) : null, removedAt ? control.id : null, removedAt ? iso(removedAt + 5 * 60_000) : null,
-          iso(o.created), iso(removedAt ?? verifiedAt ?? appliedAt),
+          iso(o.created), iso(removedAt ?? verifiedAt ?? appliedAt), k + 1,
         ]);
         const stepData = { label: pt.tag, position: pt.position, kind };
         const stepEvent = (action: string, at: number, actor: Person & { role: string }, data: Record<string, unknown>): Event =>

@@ -6,7 +6,8 @@ import { migrateUp } from './db/migrator';
 import { createTransport } from './lib/mailer';
 import { systemClock } from './lib/clock';
 import { createApp } from './app';
-import { startDevMailbox, type DevMailbox } from './modules/dev-mail/dev-mailbox';
+// Type only: the mailbox and its SMTP catcher (a development package) load on demand below, never in production.
+import type { DevMailbox } from './modules/dev-mail/dev-mailbox';
 import { startWorkers } from './workers';
 import type { AppDeps } from './deps';
 import { closeChangeFeed } from './lib/change-feed';
@@ -28,6 +29,7 @@ async function main() {
   if (config.DEV_MAILBOX === 'on' && config.NODE_ENV === 'production') {
     logger.warn('DEV_MAILBOX=on is ignored in production: mail goes out through SMTP_URL');
   } else if (config.DEV_MAILBOX === 'on') {
+    const { startDevMailbox } = await import('./modules/dev-mail/dev-mailbox');
     devMailbox = await startDevMailbox(0);
     smtpUrl = `smtp://127.0.0.1:${devMailbox.port}`;
     logger.warn({ path: '/dev/mail' }, 'development mailbox is on (DEV_MAILBOX=on): mail is kept in memory, not sent; signed-in people read their own mail at /dev/mail');

@@ -64,6 +64,8 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
     can(['approve', 'reject', 'cancel', 'revalidate', 'suspend', 'resume', 'return_to_service', 'close', 'acknowledge'], 'Permit', t);
     can('create', 'Attachment', t);
     can('verify_chain', 'AuditEvent', t);
+    // Records the exception that lets someone else take off a lock whose owner is not on site.
+    can('approve', 'IsolationStep', t);
   },
   contractor_lead(can, a, m) {
     const scope = permitScope(a, m);

@@ -3,8 +3,8 @@
  * the API responses, the scheduler and the screens, so every place says the same thing.
  *
  * - Gas test: repeat tests during live work, due `intervalMinutes` after the last passing test
- *   (the same rule the permits list and the board compute in SQL). A live permit with no passing
- *   test at all is due now and counts as overdue.
+ *   (`nextGasTestDue`, also behind the permit page, the permits list and the board). A live permit
+ *   with no passing test at all is due since work started (or now) and counts as overdue.
  * - Vent and plug checks: during live work while the permit holds a vent open / a plug in place,
  *   due `intervalMinutes` after the last check of that kind, or after work last started when there
  *   is none yet. Common practice, no published source for the interval (tenant settings).
@@ -14,7 +14,7 @@
  */
 import { addMinutes, differenceInMinutes } from 'date-fns';
 import { FIRE_WATCH_MAX_MINUTES, FIRE_WATCH_MIN_MINUTES, fireWatchEnd } from '../calc/fire-watch';
-import type { PermitState, WorkKind } from './states';
+import { liveStates, workUnderWayStates, type PermitState, type WorkKind } from './states';
 
 export const timedCheckKinds = ['gas_test', 'vent', 'plug', 'fire_watch'] as const;
 export type TimedCheckKind = (typeof timedCheckKinds)[number];
@@ -53,22 +53,27 @@ function due(kind: TimedCheckKind, dueAt: Date, now: Date, forceOverdue = false)
   return { kind, dueAt, overdue, minutesOverdue: overdue ? Math.max(0, differenceInMinutes(now, dueAt)) : 0 };
 }
 
-/** The next repeat gas test of a live permit (null otherwise). */
-export function nextGasTestDue(state: PermitState, lastPassAt: Date | null, intervalMinutes: number, now: Date): Date | null {
-  if (state !== 'live') return null;
-  return lastPassAt ? addMinutes(lastPassAt, intervalMinutes) : now;
+/**
+ * The next repeat gas test of a live permit (null otherwise): `intervalMinutes` after the last
+ * passing test. With no passing test at all it is due since work started when that is known (a
+ * fixed time, so one missed test is one overdue occurrence), else now. The permit page, the permits
+ * list, the board (its SQL takes `liveStates` as a parameter) and the due-time rules all use this.
+ */
+export function nextGasTestDue(state: PermitState, lastPassAt: Date | null, intervalMinutes: number, now: Date, liveSince: Date | null = null): Date | null {
+  if (!liveStates.includes(state)) return null;
+  return lastPassAt ? addMinutes(lastPassAt, intervalMinutes) : (liveSince ?? now);
 }
 
 function periodic(kind: 'vent' | 'plug', f: DueFacts, now: Date): DueTime {
   const facts = kind === 'vent' ? { ...f.vent, count: f.vent.open } : { ...f.plug, count: f.plug.inPlace };
-  if (f.state !== 'live' || facts.count === 0) return none(kind);
+  if (!liveStates.includes(f.state) || facts.count === 0) return none(kind);
   const base = facts.lastAt ?? f.liveSince ?? now;
   return due(kind, addMinutes(base, facts.intervalMinutes), now);
 }
 
 function fireWatch(f: DueFacts, now: Date): DueTime {
   const { hotWorkEndedAt, minutes, lastCheckAt } = f.fireWatch;
-  if (!f.kinds.includes('hot_work') || !hotWorkEndedAt || !['live', 'suspended'].includes(f.state)) return none('fire_watch');
+  if (!f.kinds.includes('hot_work') || !hotWorkEndedAt || !workUnderWayStates.includes(f.state)) return none('fire_watch');
   // The permit's own length, held inside the range fireWatchEnd accepts so a stored oddity never stops the scheduler.
   const end = fireWatchEnd(hotWorkEndedAt, Math.min(FIRE_WATCH_MAX_MINUTES, Math.max(FIRE_WATCH_MIN_MINUTES, Math.round(minutes))));
   if (lastCheckAt && lastCheckAt.getTime() >= end.getTime()) return none('fire_watch');
@@ -77,9 +82,8 @@ function fireWatch(f: DueFacts, now: Date): DueTime {
 
 /** Every timed check of the permit, in a fixed order. */
 export function dueTimes(f: DueFacts, now: Date): DueTime[] {
-  // No passing test at all on a live permit: due since work started (a fixed time, so one missed
-  // test is one overdue occurrence), or now when even that is unknown.
-  const gasDue = f.gas.lastPassAt ? nextGasTestDue(f.state, f.gas.lastPassAt, f.gas.intervalMinutes, now) : f.state === 'live' ? (f.liveSince ?? now) : null;
+  // No passing test at all on a live permit counts as overdue from the start.
+  const gasDue = nextGasTestDue(f.state, f.gas.lastPassAt, f.gas.intervalMinutes, now, f.liveSince);
   const gas = gasDue ? due('gas_test', gasDue, now, f.gas.lastPassAt === null) : none('gas_test');
   return [gas, periodic('vent', f, now), periodic('plug', f, now), fireWatch(f, now)];
 }

@@ -1,5 +1,6 @@
 import type { Action } from '../abilities/define-ability';
-import { qualificationForKind, type PermitState, type WorkKind } from './states';
+import { readinessGaps, type IsolationReadiness } from '../isolations/readiness';
+import { permitStates, qualificationForKind, type PermitState, type WorkKind } from './states';
 
 export const permitEvents = [
   'submit',
@@ -25,7 +26,7 @@ export const permitEventLabels: Record<PermitEvent, string> = {
   reject: 'Send back with reasons',
   approve: 'Approve and issue',
   accept: 'Accept for the crew',
-  confirm_isolated: 'Confirm isolation complete',
+  confirm_isolated: 'Sign isolations in place',
   start_work: 'Start work',
   suspend: 'Suspend work',
   resume: 'Resume work',
@@ -39,7 +40,8 @@ export const permitEventLabels: Record<PermitEvent, string> = {
 };
 
 /** Events that are signatures: the signer re-enters the password and types their name. */
-export const signedEvents: readonly PermitEvent[] = ['approve', 'accept', 'hand_back', 'return_to_service'];
+/** Signing the isolations in place is the authoriser's (HSE HSG250: the issuer signs that the isolations are made before work starts). */
+export const signedEvents: readonly PermitEvent[] = ['approve', 'accept', 'confirm_isolated', 'hand_back', 'return_to_service'];
 /** Events that need a reason in words. */
 export const reasonedEvents: readonly PermitEvent[] = ['reject', 'suspend', 'cancel'];
 /** Events only the server fires (scheduler, failing gas test). */
@@ -51,7 +53,7 @@ export const eventAction: Record<PermitEvent, Action> = {
   reject: 'reject',
   approve: 'approve',
   accept: 'accept',
-  confirm_isolated: 'start_work',
+  confirm_isolated: 'approve',
   start_work: 'start_work',
   suspend: 'suspend',
   resume: 'resume',
@@ -107,6 +109,8 @@ export interface PermitFacts {
     ventsOpen: number;
     plugsInPlace: number;
     plugWarningsUnacknowledged: number;
+    /** Isolating devices per side of the work and the proving of the section (shared/isolations/readiness.ts). */
+    readiness: IsolationReadiness;
   };
   gas: { lastPassAt: Date | null; lastFailAt: Date | null; windowMinutes: number };
   fireWatchEndsAt: Date | null;
@@ -163,7 +167,7 @@ export function decide(event: PermitEvent, facts: PermitFacts, actor: ActorFacts
       break;
     }
     case 'confirm_isolated':
-      reasons.push(...isolationGaps(facts));
+      reasons.push(...isolatedGaps(facts));
       break;
     case 'start_work':
     case 'resume':
@@ -213,7 +217,8 @@ export function decide(event: PermitEvent, facts: PermitFacts, actor: ActorFacts
 }
 
 
-function isolationGaps(facts: PermitFacts): string[] {
+/** Every step of the plan applied and verified by a second person (and a remote valve's remote operation inhibited). */
+function isolationGaps(facts: Pick<PermitFacts, 'isolation'>): string[] {
   const r: string[] = [];
   const i = facts.isolation;
   if (i.steps === 0) r.push('The isolation plan has no steps.');
@@ -223,9 +228,23 @@ function isolationGaps(facts: PermitFacts): string[] {
   return r;
 }
 
+/**
+ * What keeps the authoriser from signing the isolations in place, the same words on the permit page:
+ * every step verified, an isolating device on every open side of the work, and the section proved
+ * dead. Work starts and resumes only from Isolated, which this event alone reaches.
+ */
+export function isolatedGaps(facts: Pick<PermitFacts, 'isolation'>): string[] {
+  return [...isolationGaps(facts), ...readinessGaps(facts.isolation.readiness)];
+}
+
 /** The events that exist from a state (ignoring guards and roles), for listing possible actions. */
 export function eventsFrom(state: PermitState): PermitEvent[] {
   return permitEvents.filter((e) => table[e][state] !== undefined && !systemEvents.includes(e));
+}
+
+/** The states an event can fire from (ignoring guards and roles), e.g. the permits the scheduler may expire. */
+export function statesFrom(event: PermitEvent): PermitState[] {
+  return permitStates.filter((s) => table[event][s] !== undefined);
 }
 
 export function targetOf(event: PermitEvent, state: PermitState): PermitState | undefined {

@@ -67,6 +67,42 @@ export const qualificationForKind: Record<WorkKind, string> = {
   excavation: 'excavation',
 };
 
+/*
+ * Which states share a rule, written once here for the screens, the services and the SQL (passed in
+ * as parameters). Each list is one rule; two lists holding the same states today stay apart when
+ * their reasons differ.
+ */
+
+const holding = ['accepted', 'isolated', 'live', 'suspended', 'work_complete'] as const satisfies readonly PermitState[];
 /** States in which the permit's isolations must stay in place. */
-export const holdsIsolations: readonly PermitState[] = ['accepted', 'isolated', 'live', 'suspended', 'work_complete'];
+export const holdsIsolations: readonly PermitState[] = holding;
+/** The permit states the live board shows and can be filtered by: those in which isolations can be on. */
+export const boardPermitStates = [...holding, 'cancelled'] as const satisfies readonly PermitState[];
+export type BoardPermitState = (typeof boardPermitStates)[number];
+
+/** The permit's work is over, one way or another. */
 export const finishedStates: readonly PermitState[] = ['returned_to_service', 'closed', 'cancelled'];
+/** Closed for good: what was true at close-out stays the record, so it takes no new files. */
+export const closedStates: readonly PermitState[] = ['closed', 'cancelled'];
+/** The limits the permit's gas tests are judged against can no longer change. */
+export const limitsFixedStates: readonly PermitState[] = [...finishedStates, 'expired'];
+
+/** The permit and its isolation plan change only while a draft: they are reviewed together and frozen once sent. */
+export const editableStates: readonly PermitState[] = ['draft'];
+
+/** The crew is on the job: gas tests and checks may be recorded and the before-work checklist confirmed. */
+export const workOpenStates: readonly PermitState[] = ['accepted', 'isolated', 'live', 'suspended'];
+/** Work has started and not been handed back: hot work can stop, the fire watch runs, shifts hand over, a gas test is a repeat test. */
+export const workUnderWayStates: readonly PermitState[] = ['live', 'suspended'];
+/** Work is going on: repeat gas tests and vent and plug checks fall due, and a failing test suspends the permit. */
+export const liveStates: readonly PermitState[] = ['live'];
+/** Before the isolations are signed in place (an expired permit may go back to one of these when re-validated). */
+export const beforeIsolatedStates: readonly PermitState[] = ['draft', 'requested', 'approved', 'accepted', 'expired'];
+/** The isolations are confirmed and the crew may be at work: another permit's plan must not operate those points. */
+export const isolationInUseStates: readonly PermitState[] = ['isolated', 'live', 'suspended'];
+
+/** When each of the permit's lists may be ticked: the before-work checklist by the crew, the walk-down once work is complete. */
+export const checklistOpenStates: Record<'checklist' | 'walkdown', readonly PermitState[]> = {
+  checklist: workOpenStates,
+  walkdown: ['work_complete'],
+};

@@ -38,22 +38,4 @@ export const attachmentsQuerySchema = z.strictObject({
 });
 export type AttachmentsQuery = z.output<typeof attachmentsQuerySchema>;
 
-export interface AttachmentSummary {
-  id: string;
-  permitId: string;
-  entityType: AttachmentEntityType;
-  entityId: string;
-  originalName: string;
-  contentType: AttachmentContentType;
-  sizeBytes: number;
-  sha256: string;
-  uploadedBy: string;
-  uploadedByName: string;
-  createdAt: string;
-  /** The only way to the bytes: an authorised route. */
-  downloadUrl: string;
-  /** Images open in the browser; everything else downloads. */
-  inline: boolean;
-}
-
 export const isInlineContentType = (type: string) => type.startsWith('image/');

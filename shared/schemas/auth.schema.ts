@@ -69,11 +69,3 @@ export const usersQuerySchema = z.strictObject({
   dir: z.enum(['asc', 'desc']).default('asc'),
 });
 export type UsersQuery = z.infer<typeof usersQuerySchema>;
-
-export interface MeResponse {
-  user: { id: string; email: string; name: string };
-  memberships: { id: string; tenantId: string; tenantName: string; organisationId: string; organisationName: string; organisationKind: 'operator' | 'contractor'; role: (typeof roles)[number] }[];
-  activeTenantId: string | null;
-  activeTenant: { id: string; name: string; timeZone: string; locationUnit: 'mi' | 'km' } | null;
-  rules: unknown[];
-}

@@ -9,10 +9,6 @@ import {
   PIPE_SCHEDULES,
   WATER_FRACTION_MAX,
   WATER_FRACTION_MIN,
-  type AtmosphereAssessment,
-  type MudPlug,
-  type PipeSchedule,
-  type PipeSizeOption,
 } from '../calc';
 
 // Query strings and form inputs arrive as text. Only plain decimals count as numbers:
@@ -211,18 +207,3 @@ export const lineFillFormSchema = z
     );
   });
 export type LineFillForm = z.infer<typeof lineFillFormSchema>;
-
-// ---- Answers ----
-
-export interface MudPlugResponse extends MudPlug {
-  /** MUD_PLUG_CAUTION: shown beside every plug figure. */
-  caution: string;
-  basis: { diameterIn: number; waterFraction: number; source: string };
-}
-
-export interface PipeSizesResponse {
-  source: string;
-  schedules: { schedule: PipeSchedule; label: string; sizes: PipeSizeOption[] }[];
-}
-
-export type AtmosphereResponse = AtmosphereAssessment;

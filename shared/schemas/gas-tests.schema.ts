@@ -1,6 +1,4 @@
 import { z } from 'zod';
-import type { AtmosphereAssessment, AtmosphereLimits } from '../calc/atmosphere';
-import type { PermitState } from '../permit/states';
 import { readingColumns } from '../gas-tests/csv-readings';
 import { isoDateField, isoDateTimeField, requiredText, textField, uuidSchema } from './common.schema';
 
@@ -134,63 +132,3 @@ export const instrumentsQuerySchema = z.strictObject({
   pageSize: z.coerce.number().int().min(1).max(200).default(50),
   includeRetired: z.enum(['true', 'false']).optional(),
 });
-
-export interface InstrumentRow {
-  id: string;
-  model: string;
-  serial: string;
-  lastBumpTestAt: string | null;
-  lastCalibratedOn: string | null;
-  calibrationDueOn: string;
-  retiredAt: string | null;
-}
-
-export interface GasTestRow {
-  id: string;
-  permitId: string;
-  testedAt: string;
-  place: GasTestPlace;
-  placeNote: string | null;
-  purpose: GasTestPurpose | null;
-  readings: { o2Pct: number; lelPct: number; h2sPpm: number; coPpm: number; others?: { name: string; value: number; unit: string }[] };
-  verdict: 'pass' | 'fail';
-  assessment: AtmosphereAssessment;
-  testerName: string;
-  instrument: { id: string; model: string; serial: string } | null;
-  source: 'manual' | 'import';
-  seriesId: string | null;
-  notes: string | null;
-  /** Written down more than a few minutes after the test was taken. */
-  enteredLate: boolean;
-}
-
-export interface GasTestResult {
-  test: GasTestRow;
-  verdict: 'pass' | 'fail';
-  assessment: AtmosphereAssessment;
-  permitState: PermitState;
-  suspended: boolean;
-}
-
-export interface GasImportResult {
-  dryRun: boolean;
-  headers: string[];
-  mapping: Partial<Record<(typeof readingColumns)[number], string>>;
-  rows: number;
-  validRows: number;
-  invalidRows: { row: number; reasons: string[] }[];
-  preview: { row: number; testedAt: string; readings: GasTestRow['readings']; verdict: 'pass' | 'fail' }[];
-  failing: number;
-  imported: number;
-  seriesId: string | null;
-  permitState: PermitState;
-  suspended: boolean;
-  /** Dry run only: columns still to choose before the rows can be read. */
-  mappingProblems?: { path: string; message: string }[];
-}
-
-export interface PermitLimitsView {
-  limits: AtmosphereLimits;
-  hotWork: boolean;
-  permitRequest: PermitGasLimitsInput | null;
-}

@@ -1,9 +1,11 @@
 import { z } from 'zod';
-import { isoDateTimeField, textField, uuidSchema } from './common.schema';
+import { gaugeUnits } from '../calc/pressure';
+import { boardPermitStates } from '../permit/states';
+import { isoDateTimeField, requiredText, textField, uuidSchema } from './common.schema';
 
-export const stepKinds = ['block_valve', 'vent', 'drain', 'plug', 'blind', 'isolator'] as const;
+export const stepKinds = ['block_valve', 'vent', 'drain', 'plug', 'blind', 'isolator', 'line_stop'] as const;
 export type StepKind = (typeof stepKinds)[number];
-export const stepConditions = ['closed_locked_tagged', 'drained', 'vent_open', 'plug_built', 'blind_fitted', 'energy_isolated'] as const;
+export const stepConditions = ['closed_locked_tagged', 'drained', 'vent_open', 'plug_built', 'blind_fitted', 'energy_isolated', 'line_stop_set'] as const;
 export type StepCondition = (typeof stepConditions)[number];
 
 export const conditionLabels: Record<StepCondition, string> = {
@@ -13,14 +15,16 @@ export const conditionLabels: Record<StepCondition, string> = {
   plug_built: 'Plug built',
   blind_fitted: 'Blind fitted',
   energy_isolated: 'Energy isolated',
+  line_stop_set: 'Line stop set and holding',
 };
 export const stepKindLabels: Record<StepKind, string> = {
   block_valve: 'Block valve',
   vent: 'Vent',
   drain: 'Drain',
-  plug: 'Plug',
+  plug: 'Mud plug',
   blind: 'Blind',
   isolator: 'Isolator',
+  line_stop: 'Line stop / mechanical plug',
 };
 
 /** The condition each kind of step must reach. */
@@ -31,6 +35,7 @@ export const conditionForKind: Record<StepKind, StepCondition> = {
   plug: 'plug_built',
   blind: 'blind_fitted',
   isolator: 'energy_isolated',
+  line_stop: 'line_stop_set',
 };
 
 const position = z.number({ message: 'Enter a position as a number.' }).min(0).max(100_000);
@@ -46,9 +51,20 @@ export const planStepSchema = z
   .refine((s) => s.pointId || (s.tempLabel && s.tempPosition !== undefined), { message: 'Pick a point from the register, or give a label and position for a temporary one.', path: ['pointId'] });
 export type PlanStepInput = z.infer<typeof planStepSchema>;
 
+const deadEndReason = (side: string) =>
+  textField(300, 'Reason').pipe(z.string().min(3, `Say why no product can reach the work from ${side} (at least 3 characters).`));
+
+/** A side of the work with no product source (the end of a line, a branch cut and capped), declared with the reason. */
+export const deadEndsSchema = z.strictObject({
+  upstream: deadEndReason('upstream').optional(),
+  downstream: deadEndReason('downstream').optional(),
+});
+export type DeadEndsInput = z.infer<typeof deadEndsSchema>;
+
 export const savePlanInputSchema = z.strictObject({
   version: z.number().int().min(1),
   steps: z.array(planStepSchema).min(1, 'A plan needs at least one step.').max(60, 'A plan can have at most 60 steps.'),
+  deadEnds: deadEndsSchema.optional(),
 });
 export type SavePlanInput = z.infer<typeof savePlanInputSchema>;
 
@@ -66,12 +82,32 @@ export const asBuiltPlugSchema = z.strictObject({
 });
 export type AsBuiltPlug = z.infer<typeof asBuiltPlugSchema>;
 
+/** A line stop (stopple) or mechanical plug as set: its own record, not a mud plug's weights. */
+export const asBuiltLineStopSchema = z
+  .strictObject({
+    device: requiredText(120, 'Device'),
+    sizeIn: z.number({ message: 'Enter the nominal size of the fitting or plug, in inches.' }).positive('The size must be more than 0 in.').max(60, 'The size must be at most 60 in.'),
+    setPressure: z.number({ message: 'Enter the set (seal) pressure as a number.' }).min(0, 'The set pressure cannot be below zero.').max(100_000).optional(),
+    setPressureUnit: z.enum(gaugeUnits, { message: 'Choose psig, kPa or bar.' }).optional(),
+    setPosition: textField(120, 'Set position').optional(),
+    setAt: isoDateTime.optional(),
+  })
+  .superRefine((v, ctx) => {
+    if (v.setPressure === undefined && !v.setPosition)
+      ctx.addIssue({ code: 'custom', path: ['setPressure'], message: 'Give the set pressure, or where the plugging head or plug is set.' });
+    if (v.setPressure !== undefined && !v.setPressureUnit) ctx.addIssue({ code: 'custom', path: ['setPressureUnit'], message: 'Give the unit of the set pressure.' });
+  });
+export type AsBuiltLineStop = z.infer<typeof asBuiltLineStopSchema>;
+
 export const applyStepInputSchema = z.strictObject({
   lockId: uuidSchema.optional(),
   tagId: uuidSchema.optional(),
   appliedAt: isoDateTime.optional(),
   photoAttachmentId: uuidSchema.optional(),
   asBuilt: asBuiltPlugSchema.optional(),
+  lineStop: asBuiltLineStopSchema.optional(),
+  /** Needed when an earlier step of the plan is not on yet. */
+  outOfOrderReason: textField(1000, 'Reason').optional(),
 });
 export type ApplyStepInput = z.infer<typeof applyStepInputSchema>;
 
@@ -101,10 +137,39 @@ export const removeStepInputSchema = z.strictObject({
   note: textField(1000, 'Note').optional(),
   plugOutcome: z.enum(['removed', 'displaced_by_product']).optional(),
   outOfOrderReason: textField(1000, 'Reason').optional(),
+  /** The remover's signature, needed when they take off someone else's lock under a recorded exception. */
+  password: z.string().max(256).optional(),
+  signedName: textField(120, 'Typed name').optional(),
 });
 export type RemoveStepInput = z.infer<typeof removeStepInputSchema>;
+
+export const contactAttemptSchema = z.strictObject({
+  how: requiredText(300, 'How you tried to reach them'),
+  at: isoDateTimeField('Give the date and time you tried.'),
+});
+export type ContactAttempt = z.infer<typeof contactAttemptSchema>;
+
+/**
+ * What an authoriser records before someone else may take off a lock or tag whose owner is not at the
+ * site (OSHA 29 CFR 1910.147(e)(3)(i)–(iii)), signed with their password and typed name.
+ */
+export const removalExceptionInputSchema = z.strictObject({
+  absenceCheck: requiredText(1000, 'How you checked they are not on site'),
+  contactAttempts: z.array(contactAttemptSchema).min(1, 'Record at least one attempt to reach them.').max(10, 'Record at most 10 attempts.'),
+  informPlan: requiredText(1000, 'How they will be told before they return'),
+  password: z.string({ message: 'Re-enter your password to sign.' }).min(1, 'Re-enter your password to sign.').max(256),
+  signedName: requiredText(120, 'Typed name'),
+});
+export type RemovalExceptionInput = z.infer<typeof removalExceptionInputSchema>;
 
 export const acknowledgeStepInputSchema = z.strictObject({
   what: z.enum(['remote_inhibited', 'applied', 'removed', 'plug_warnings']),
 });
 export type AcknowledgeStepInput = z.infer<typeof acknowledgeStepInputSchema>;
+
+/** GET /api/board, and the board page's address. */
+export const boardQuerySchema = z.strictObject({
+  pipelineId: uuidSchema.optional(),
+  permitState: z.enum(boardPermitStates).optional(),
+});
+export type BoardQuery = z.infer<typeof boardQuerySchema>;

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { gaugeUnits } from '../calc/pressure';
 
 /** Per-tenant settings (tenants.settings jsonb). Missing keys take these defaults. */
 export const tenantSettingsSchema = z.object({
@@ -15,6 +16,12 @@ export const tenantSettingsSchema = z.object({
   requireDailyBumpTest: z.boolean().default(true),
   // How long after the event a gas test, check or isolation may still be written down (it is then marked "entered late").
   lateEntryWindowMinutes: z.number().int().min(5).max(24 * 60).default(60),
+  // Proving an isolated section dead (HSE HSG253): the gauge at a bleed or vent must read at most this
+  // and hold that long without build-up. Dead means no pressure, so the limit starts at zero; a site
+  // whose gauges cannot show zero sets its own. The hold time is common practice, no published source.
+  provingMaxPressure: z.number().min(0).max(100).default(0),
+  provingPressureUnit: z.enum(gaugeUnits).default('psig'),
+  provingHoldMinutes: z.number().int().min(5).max(240).default(15),
 });
 export type TenantSettings = z.infer<typeof tenantSettingsSchema>;
 

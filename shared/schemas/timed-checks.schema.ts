@@ -1,7 +1,4 @@
 import { z } from 'zod';
-import type { PermitState } from '../permit/states';
-import type { TimedCheckKind } from '../permit/due-times';
-import type { PermitLimitsView } from './gas-tests.schema';
 import { isoDateTimeField, requiredText, textField, uuidSchema } from './common.schema';
 
 const isoDateTime = isoDateTimeField();
@@ -58,21 +55,6 @@ export const checksQuerySchema = z.strictObject({
   kind: z.enum(checkKinds).optional(),
 });
 
-export interface CheckRow {
-  id: string;
-  kind: CheckKind;
-  checkedAt: string;
-  ok: boolean;
-  observation: Record<string, unknown>;
-  actionTaken: string | null;
-  notes: string | null;
-  isolationStepId: string | null;
-  stepLabel: string | null;
-  recordedByName: string;
-  /** Written down more than a few minutes after the check was made. */
-  enteredLate: boolean;
-}
-
 const signature = {
   password: z.string({ message: 'Re-enter your password to sign.' }).min(1, 'Re-enter your password to sign.').max(256),
   signedName: requiredText(120, 'Typed name'),
@@ -87,41 +69,3 @@ export type HandoverCreateInput = z.infer<typeof handoverCreateSchema>;
 
 export const handoverAcceptSchema = z.strictObject(signature);
 export type HandoverAcceptInput = z.infer<typeof handoverAcceptSchema>;
-
-export interface HandoverRow {
-  id: string;
-  status: 'pending' | 'accepted' | 'superseded';
-  fromUserId: string;
-  fromName: string;
-  toUserId: string;
-  toName: string;
-  openPoints: string;
-  readingsSummary: string[];
-  fromSignedAt: string;
-  acceptedAt: string | null;
-}
-
-export interface DueTimeView {
-  kind: TimedCheckKind;
-  label: string;
-  dueAt: string | null;
-  overdue: boolean;
-  minutesOverdue: number;
-  intervalMinutes: number | null;
-}
-
-/** GET /api/permits/:id/regime: what is due on the permit and what it is judged against. */
-export interface PermitRegime extends PermitLimitsView {
-  permitId: string;
-  state: PermitState;
-  holder: { userId: string; name: string } | null;
-  gasTestWindowMinutes: number;
-  gasTestIntervalMinutes: number;
-  fireWatchMinutes: number;
-  fireWatchEndsAt: string | null;
-  tests: { beforeCleaning: string | null; beforeWork: string | null; lastPass: string | null; lastFail: string | null };
-  due: DueTimeView[];
-  nextDue: DueTimeView | null;
-  requireDailyBumpTest: boolean;
-  timeZone: string;
-}

@@ -34,3 +34,10 @@ export interface BoardItem {
   permits: BoardPermitRef[];
   nextGasTestDue: string | null;
 }
+
+/** GET /api/board. */
+export interface Board {
+  items: BoardItem[];
+  total: number;
+  generatedAt: string;
+}

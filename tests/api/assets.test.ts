@@ -2,8 +2,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import type { IsolationPoint, PipelineDetail, PipelineSummary } from '@shared/assets/types';
 import { startTestServer, type ApiClient, type TestServer } from '../fixtures/test-server';
-import { seedPeople } from '../../server/src/db/seed/demo-people';
-import { seedAssets } from '../../server/src/db/seed/demo-assets';
+import { seedPeople } from '../../server/src/demo/demo-people';
+import { seedAssets } from '../../server/src/demo/demo-assets';
 
 let srv: TestServer;
 const as: Record<string, ApiClient> = {};

@@ -8,7 +8,7 @@ import { QueryTypes } from 'sequelize';
 import { inject } from 'vitest';
 import { createTestDatabase } from '../fixtures/test-server';
 import { createSequelize } from '../../server/src/db/sequelize';
-import { seedDemo } from '../../server/src/db/seed';
+import { seedDemo } from '../../server/src/demo';
 import { verifyChain } from '../../server/src/modules/audit/audit.service';
 // @ts-expect-error plain ESM helper shared with the npm scripts
 import { dumpDatabase, restoreDatabase } from '../../scripts/lib/backup.mjs';

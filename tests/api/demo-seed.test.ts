@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { createTestDatabase } from '../fixtures/test-server';
 import { createSequelize } from '../../server/src/db/sequelize';
-import { seedDemo } from '../../server/src/db/seed';
+import { seedDemo } from '../../server/src/demo';
 import { verifyChain } from '../../server/src/modules/audit/audit.service';
 
 describe('the demo scenario that npm start seeds', () => {
@@ -47,6 +47,20 @@ describe('the demo scenario that npm start seeds', () => {
       { type: QueryTypes.SELECT },
     );
     expect(shared.n).toBe(2);
+  });
+
+  // HSE HSG253 and HSG250: no demo permit is isolated or beyond without its section proved dead and the authoriser's signature.
+  it('finding J7: when seeded, then every demo permit that reached Isolated has its section proved dead and the isolations-in-place signature', async () => {
+    const rows = await sequelize.query<{ job_reference: string; proved: boolean; signed: boolean }>(
+      `SELECT p.job_reference,
+              EXISTS (SELECT 1 FROM isolation_provings x WHERE x.tenant_id = p.tenant_id AND x.permit_id = p.id AND x.result = 'proved') AS proved,
+              EXISTS (SELECT 1 FROM permit_signatures s WHERE s.tenant_id = p.tenant_id AND s.permit_id = p.id AND s.event = 'confirm_isolated' AND s.password_confirmed) AS signed
+       FROM permits p WHERE p.job_reference LIKE 'BM-DEMO-%'
+         AND EXISTS (SELECT 1 FROM audit_events a WHERE a.tenant_id = p.tenant_id AND a.permit_id = p.id AND a.to_state = 'isolated')
+       ORDER BY p.job_reference`,
+      { type: QueryTypes.SELECT },
+    );
+    expect(rows).toEqual(['BM-DEMO-0411', 'BM-DEMO-0820', 'BM-DEMO-1260', 'BM-DEMO-1730'].map((job_reference) => ({ job_reference, proved: true, signed: true })));
   });
 
   it('when seeded, then the live permit has a gas test overdue and the suspended one a failing reading', async () => {

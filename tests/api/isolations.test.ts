@@ -100,10 +100,10 @@ describe('isolations through the API, as the demo users', () => {
   const inStore = async (table: 'locks' | 'tags', skip = 0) =>
     (await select<{ id: string; number: string }>(`SELECT id, number FROM ${table} WHERE tenant_id = :tenantId AND state = 'in_store' ORDER BY number LIMIT 1 OFFSET :skip`, { skip }))[0];
 
-  async function newPermit(title: string, steps: PlanStep[], overrides: Record<string, unknown> = {}): Promise<Permit> {
+  async function newPermit(title: string, steps: PlanStep[], overrides: Record<string, unknown> = {}, deadEnds?: { upstream?: string; downstream?: string }): Promise<Permit> {
     const created = await lead.post('/api/permits', permitBody(ids, srv.clock.now(), { title, ...overrides }));
     expect(created.status, JSON.stringify(created.body)).toBe(201);
-    const saved = await lead.put(`/api/permits/${created.body.id}/isolations`, { version: created.body.version, steps });
+    const saved = await lead.put(`/api/permits/${created.body.id}/isolations`, { version: created.body.version, steps, ...(deadEnds ? { deadEnds } : {}) });
     expect(saved.status, JSON.stringify(saved.body)).toBe(200);
     return { id: created.body.id, number: created.body.number };
   }
@@ -120,11 +120,31 @@ describe('isolations through the API, as the demo users', () => {
   const stateOf = async (p: Permit) => (await lead.get(`/api/permits/${p.id}`)).body.state as string;
   const apply = (p: Permit, step: Step, body: Record<string, unknown>, who = tech) => who.post(`/api/permits/${p.id}/isolations/${step.id}/apply`, body);
   const verify = (p: Permit, step: Step, body: Record<string, unknown> = { method: 'position_checked' }, who = tech2) => who.post(`/api/permits/${p.id}/isolations/${step.id}/verify`, body);
-  const remove = (p: Permit, step: Step, body: Record<string, unknown> = {}) => tech.post(`/api/permits/${p.id}/isolations/${step.id}/remove`, body);
+  /** Taken off by whoever put it on (a lock comes off by its owner's hand). */
+  const remove = (p: Permit, step: Step, body: Record<string, unknown> = {}) => (step.appliedBy === techUserId ? tech : tech2).post(`/api/permits/${p.id}/isolations/${step.id}/remove`, body);
 
   /**
-   * Applies every planned step (a minute apart, so the order of application is clear) and has the
-   * other technician verify every step not yet verified.
+   * HSE HSG253: a technician who applied none of the isolating devices holds the section dead at the
+   * plan's first vent or drain for the site's time (15 minutes by default); then the authoriser signs
+   * the isolations in place (HSE HSG250).
+   */
+  async function proveAndSign(p: Permit) {
+    const items = await plan(p);
+    const bleed = items.find((s) => s.kind === 'vent' || s.kind === 'drain')!;
+    const tech2Applied = items.some((s) => ['block_valve', 'blind', 'line_stop'].includes(s.kind) && s.appliedBy && s.appliedBy !== techUserId);
+    const reader = tech2Applied ? tech : tech2;
+    const started = await reader.post(`/api/permits/${p.id}/isolations/provings`, { stepId: bleed.id, reading: 0, unit: 'psig' });
+    expect(started.status, JSON.stringify(started.body)).toBe(201);
+    srv.clock.advanceMinutes(15);
+    const ended = await reader.post(`/api/permits/${p.id}/isolations/provings/${started.body.id}/end`, { reading: 0 });
+    expect(ended.body.result, JSON.stringify(ended.body)).toBe('proved');
+    const signed = await transition(authoriser, p.id, 'confirm_isolated', sign(users.authoriser));
+    expect(signed.status, JSON.stringify(signed.body)).toBe(200);
+  }
+
+  /**
+   * Applies every planned step (a minute apart, so the order of application is clear), has the
+   * other technician verify every step not yet verified, proves the section and signs it isolated.
    */
   async function isolate(p: Permit) {
     for (const step of await plan(p)) {
@@ -143,6 +163,9 @@ describe('isolations through the API, as the demo users', () => {
       const verified = await verify(p, step, { method: 'position_checked' }, appliedBy === techUserId ? tech2 : tech);
       expect(verified.status, JSON.stringify(verified.body)).toBe(200);
     }
+    // Every step verified is not yet Isolated: the section is proved dead and the authoriser signs.
+    expect(await stateOf(p)).toBe('accepted');
+    await proveAndSign(p);
     expect(await stateOf(p)).toBe('isolated');
   }
 
@@ -197,6 +220,12 @@ describe('isolations through the API, as the demo users', () => {
     return res.body.items as BoardRow[];
   };
 
+  /** CR-BV-149 and a temporary bleed on its body, for work on the valve itself. */
+  const valveAndBleed = (name: string): PlanStep[] => [
+    { pointId: point['CR-BV-149'], kind: 'block_valve' },
+    { tempLabel: `Body bleed ${name}`, tempPosition: 14.9, kind: 'vent' },
+  ];
+
   // F: the hot-work cut-out, isolated by valve, drain and a plug. A, B: two permits locking CR-BV-149 (group lockout).
   // C: a third permit that plans CR-BV-149 but has not put its lock on. D: drains and vents the section; E would vent it too.
   let F: Permit, A: Permit, B: Permit, C: Permit, D: Permit;
@@ -223,11 +252,16 @@ describe('isolations through the API, as the demo users', () => {
   });
 
   it('when the technician verifies their own isolation, then the two-person rule refuses it, and the second technician can verify it', async () => {
-    F = await newPermit('Cut out a dented joint at MP 22', [
-      { pointId: point['CR-BV-252'], kind: 'block_valve' },
-      { pointId: point['CR-DR-251'], kind: 'drain' },
-      { tempLabel: 'Plug west of the cut', tempPosition: 22.05, kind: 'plug', plugDiameterIn: 10.02 },
-    ], { fromPosition: 22.05, toPosition: 22.06 });
+    F = await newPermit(
+      'Cut out a dented joint at MP 22',
+      [
+        { pointId: point['CR-BV-252'], kind: 'block_valve' },
+        { pointId: point['CR-DR-251'], kind: 'drain' },
+        { tempLabel: 'Plug west of the cut', tempPosition: 22.05, kind: 'plug', plugDiameterIn: 10.02 },
+      ],
+      { fromPosition: 22.05, toPosition: 22.06 },
+      { upstream: 'The old line west of the cut was cut out and capped at MP 22.0; no product can come from it.' },
+    );
     await toAccepted(F);
     const [valve] = await plan(F);
     const notYet = await verify(F, valve);
@@ -259,7 +293,7 @@ describe('isolations through the API, as the demo users', () => {
     expect((await verify(F, drain)).status).toBe(200);
   });
 
-  it('when the plug is built short and light, then the record carries the warnings and the permit still becomes isolated', async () => {
+  it('when the plug is built short and light, then the record carries the warnings and the permit can still be proved and signed isolated', async () => {
     const plug = (await plan(F))[2];
     srv.clock.advanceMinutes(1);
     const res = await apply(F, plug, { asBuilt: { bentoniteLb: 20, waterLb: 20, lengthIn: 10 } });
@@ -267,12 +301,15 @@ describe('isolations through the API, as the demo users', () => {
     // 10.02³/16 = 62.9 lb ± 10 % and 1.5 × 10.02 = 15.0 in: common practice, no published source (shared/calc/mud-plug.ts).
     expect(res.body.plugWarnings.map((w: { code: string }) => w.code).sort()).toEqual(['mud_below_range', 'plug_too_short']);
     expect((await verify(F, plug, { method: 'plug_length', reading: 10, unit: 'in' })).status).toBe(200);
+    expect(await stateOf(F)).toBe('accepted');
+    await proveAndSign(F);
     expect(await stateOf(F)).toBe('isolated');
   });
 
   it('when two technicians put the same lock on two steps at the same moment, then exactly one succeeds and the other hears where it went', async () => {
-    A = await newPermit('Replace a valve actuator upstream of MP 15', [{ pointId: point['CR-BV-149'], kind: 'block_valve' }], { kinds: ['cold_work'], fromPosition: 14.9, toPosition: 14.9 });
-    B = await newPermit('Recoat the valve body at Gorse Lane', [{ pointId: point['CR-BV-149'], kind: 'block_valve' }], { kinds: ['cold_work'], fromPosition: 14.9, toPosition: 14.9 });
+    // Work on the valve itself: it closes both sides; its body bleed is where the section is proved dead.
+    A = await newPermit('Replace a valve actuator upstream of MP 15', valveAndBleed('A'), { kinds: ['cold_work'], fromPosition: 14.9, toPosition: 14.9 });
+    B = await newPermit('Recoat the valve body at Gorse Lane', valveAndBleed('B'), { kinds: ['cold_work'], fromPosition: 14.9, toPosition: 14.9 });
     await toAccepted(A);
     await toAccepted(B);
     const [stepA] = await plan(A);
@@ -319,9 +356,12 @@ describe('isolations through the API, as the demo users', () => {
   });
 
   it("when a technician applies an isolation, then the control room's stream carries a change within 2 s", async () => {
+    // A blind upstream and a block valve downstream isolate the section; a drain and a vent alone would not.
     D = await newPermit('Drain and vent the Gorse Lane section for a survey', [
+      { tempLabel: 'Blind west of the survey section', tempPosition: 14.95, kind: 'blind' },
       { pointId: point['CR-DR-151'], kind: 'drain' },
       { pointId: point['CR-VT-150'], kind: 'vent' },
+      { pointId: point['CR-BV-197'], kind: 'block_valve' },
     ], { kinds: ['cold_work'], fromPosition: 15, toPosition: 15.1 });
     await toAccepted(D);
     const stream = openStream(`${srv.baseUrl}/api/board/stream`, await signInCookie(users.control));
@@ -329,13 +369,13 @@ describe('isolations through the API, as the demo users', () => {
       await stream.waitFor('ready', 0, 5_000);
       expect(stream.status()).toBe(200);
       const from = stream.count();
-      const [drain] = await plan(D);
+      const [blind] = await plan(D);
       const sent = Date.now();
-      const applied = await apply(D, drain, {});
+      const applied = await apply(D, blind, {});
       expect(applied.status).toBe(200);
       const change = await stream.waitFor('change', from, 2_000);
       expect(change.at - sent).toBeLessThan(2_000);
-      expect(JSON.parse(change.data)).toMatchObject({ kind: 'isolation', permitId: D.id, stepId: drain.id, action: 'isolation_applied' });
+      expect(JSON.parse(change.data)).toMatchObject({ kind: 'isolation', permitId: D.id, stepId: blind.id, action: 'isolation_applied' });
     } finally {
       stream.close();
     }
@@ -357,7 +397,9 @@ describe('isolations through the API, as the demo users', () => {
     const filtered = (await board('?permitState=isolated')).find((r) => r.label === 'CR-BV-149')!;
     expect(filtered.permit.id).toBe(B.id);
     expect(filtered.permits.map((p) => p.state).sort()).toEqual(['isolated', 'work_complete']);
-    const [stepA] = await plan(A);
+    const [stepA, bleedA] = await plan(A);
+    // Reverse order of application: the body bleed went on after the valve, so it comes off first.
+    expect((await remove(A, bleedA)).status).toBe(200);
     const removed = await remove(A, stepA);
     expect(removed.status, JSON.stringify(removed.body)).toBe(200);
     expect(removed.body.status).toBe('removed');
@@ -369,10 +411,11 @@ describe('isolations through the API, as the demo users', () => {
   });
 
   it('when the last lock on CR-BV-149 would come off while another permit still needs the valve, then it is refused naming that permit', async () => {
-    C = await newPermit('Replace the valve position indicator', [{ pointId: point['CR-BV-149'], kind: 'block_valve' }], { kinds: ['cold_work'], fromPosition: 14.9, toPosition: 14.9 });
+    C = await newPermit('Replace the valve position indicator', valveAndBleed('C'), { kinds: ['cold_work'], fromPosition: 14.9, toPosition: 14.9 });
     await toAccepted(C);
     await toWorkCompleteColdWork(B);
-    const [stepB] = await plan(B);
+    const [stepB, bleedB] = await plan(B);
+    expect((await remove(B, bleedB)).status).toBe(200);
     const refused = await remove(B, stepB);
     expect(refused.status).toBe(422);
     expect(refused.body.error.message).toContain('CR-BV-149');

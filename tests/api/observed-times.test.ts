@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { startTestServer, type TestServer } from '../fixtures/test-server';
 import { demoIds } from '../fixtures/permit-fixtures';
-import { draftWithPlan, expectOk, signInCrew, steps, toAccepted, type Crew, type Ids } from '../fixtures/permit-journey';
+import { draftWithPlan, expectOk, signInCrew, steps, tempPlan, toAccepted, type Crew, type Ids } from '../fixtures/permit-journey';
 
 type ErrorBody = { error: { code: string; message: string; details: { path: string; message: string }[] } };
 
@@ -47,7 +47,9 @@ describe('finding 10: times given for observations are bounded by the permit, th
     monitor = inDate.id;
     await expectOk(await crew.authoriser.patch(`/api/instruments/${monitor}`, { lastBumpTestAt: srv.clock.now().toISOString() }));
     srv.clock.advanceMinutes(5);
-    permitId = await draftWithPlan(srv, crew, ids);
+    // The vent and the plug first in the plan, so applying them is in the plan's order and only their times are judged.
+    const [valve, vent, plug] = tempPlan;
+    permitId = await draftWithPlan(srv, crew, ids, {}, crew.lead, [vent, plug, valve]);
     await toAccepted(crew, permitId);
     issuedAt = srv.clock.now();
     // An hour and a half into the permit: the default late-entry window (60 minutes) now reaches back past half of it.

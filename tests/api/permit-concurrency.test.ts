@@ -138,7 +138,10 @@ describe('fifty conflicting actions at once', () => {
     const [lock] = await q<{ id: string; number: string }>(`SELECT id, number FROM locks WHERE tenant_id = :tenantId AND state = 'in_store' ORDER BY number LIMIT 1`, { tenantId: ids.tenantId });
 
     const results = await Promise.all(
-      targets.map((t, i) => (i % 2 === 0 ? crew.tech : crew.tech2).post(`/api/permits/${t.permitId}/isolations/${t.stepId}/apply`, { lockId: lock.id, tagId: tagIds[i].id })),
+      // Each gives a reason for the order: most of these steps are not next in their plan, and the race is about the lock.
+      targets.map((t, i) =>
+        (i % 2 === 0 ? crew.tech : crew.tech2).post(`/api/permits/${t.permitId}/isolations/${t.stepId}/apply`, { lockId: lock.id, tagId: tagIds[i].id, outOfOrderReason: 'Lock race.' }),
+      ),
     );
 
     expect(results.filter((r) => r.status !== 200 && r.status !== 409).map((r) => [r.status, r.body]), 'only 200 and 409').toEqual([]);

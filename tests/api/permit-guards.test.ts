@@ -5,7 +5,7 @@ import { QueryTypes } from 'sequelize';
 import { startTestServer, type TestServer } from '../fixtures/test-server';
 import { demoIds, sign, transition, users } from '../fixtures/permit-fixtures';
 import {
-  applyAndVerifyAll, confirmChecklist, draftWithPlan, expectOk, insertGasTest, reasonsOf, signInCrew, steps, type Crew, type Ids,
+  applyAndVerifySteps, confirmChecklist, draftWithPlan, expectOk, insertGasTest, proveAndSign, reasonsOf, signInCrew, steps, type Crew, type Ids,
 } from '../fixtures/permit-journey';
 
 describe('permit guards through the API', () => {
@@ -65,7 +65,13 @@ describe('permit guards through the API', () => {
   });
 
   it('when isolation is confirmed before any step is applied and verified, then 422 says how many are missing', async () => {
-    expect(reasonsOf(await transition(crew.lead, id, 'confirm_isolated'))).toEqual(['3 of 3 isolation step(s) are not yet applied and verified by a second person.']);
+    // The authoriser signs the isolations in place (HSE HSG250); the lead may not.
+    expect((await transition(crew.lead, id, 'confirm_isolated')).status).toBe(403);
+    expect(reasonsOf(await transition(crew.authoriser, id, 'confirm_isolated', sign(users.authoriser)))).toEqual([
+      '3 of 3 isolation step(s) are not yet applied and verified by a second person.',
+      'The isolating device upstream of the work is not yet applied and verified by a second person.',
+      expect.stringMatching(/^Section not proved dead: /),
+    ]);
     // Going live is not even a move from accepted.
     expect(reasonsOf(await transition(crew.lead, id, 'start_work'))).toEqual(['A permit that is accepted cannot be sent "Start work".']);
   });
@@ -83,15 +89,20 @@ describe('permit guards through the API', () => {
     srv.clock.advanceMinutes(1);
     await expectOk(await crew.tech2.post(`/api/permits/${id}/isolations/${valve.id}/verify`, { method: 'try_out' }));
     // The rest of the plan; the plug is built short of paste, so its record carries warnings.
-    await applyAndVerifyAll(srv, crew, ids, id, { bentoniteLb: 10, waterLb: 10, lengthIn: 15.5 });
+    await applyAndVerifySteps(srv, crew, ids, id, { bentoniteLb: 10, waterLb: 10, lengthIn: 15.5 });
     for (const step of await steps(crew.tech, id)) expect(step.status, step.label).toBe('verified');
     expect(await state()).toBe('accepted');
-    // A remote valve counts as verified only with the control room's word, so both reasons name it.
-    expect(reasonsOf(await transition(crew.lead, id, 'confirm_isolated'))).toEqual([
+    // A remote valve counts as verified only with the control room's word, so the reasons name it.
+    expect(reasonsOf(await transition(crew.authoriser, id, 'confirm_isolated', sign(users.authoriser)))).toEqual([
       '1 of 3 isolation step(s) are not yet applied and verified by a second person.',
       "1 remotely operable valve(s) lack the control room's acknowledgement that remote operation is inhibited.",
+      'The isolating device upstream of the work is not yet applied and verified by a second person.',
+      expect.stringMatching(/^Section not proved dead: /),
     ]);
     await expectOk(await crew.control.post(`/api/permits/${id}/isolations/${valve.id}/acknowledge`, { what: 'remote_inhibited' }));
+    // Verified and acknowledged is not yet Isolated: the section is proved dead and the authoriser signs.
+    expect(await state()).toBe('accepted');
+    await proveAndSign(srv, crew, id);
     expect(await state()).toBe('isolated');
   });
 
@@ -196,11 +207,11 @@ describe('permit guards through the API', () => {
     expect((await expectOk(await transition(crew.authoriser, id, 'close'))).state).toBe('closed');
   });
 
-  it('when the permit is closed, then its timeline holds every move in order, four signatures, and the audit chain verifies', async () => {
+  it('when the permit is closed, then its timeline holds every move in order, five signatures, and the audit chain verifies', async () => {
     const permit = await expectOk(await crew.auditor.get(`/api/permits/${id}`));
     const moves = (permit.timeline as { action: string; toState: string | null }[]).filter((e) => e.toState).map((e) => e.action);
     expect(moves).toEqual(['created', 'submit', 'approve', 'accept', 'confirm_isolated', 'start_work', 'suspend', 'resume', 'suspend', 'resume', 'hand_back', 'return_to_service', 'acknowledge_return', 'close']);
-    expect((permit.signatures as { event: string }[]).map((s) => s.event)).toEqual(['approve', 'accept', 'hand_back', 'return_to_service']);
+    expect((permit.signatures as { event: string }[]).map((s) => s.event)).toEqual(['approve', 'accept', 'confirm_isolated', 'hand_back', 'return_to_service']);
     const verify = await crew.auditor.get('/api/audit/verify');
     expect(verify.body).toMatchObject({ ok: true });
   });

@@ -64,7 +64,7 @@ describe('permit lifecycle through the API, as the demo users', () => {
     expect(res.status).toBe(422);
   });
 
-  it('when the technician applies and the second technician verifies every step, then the permit becomes isolated by itself', async () => {
+  it('when the technician applies and the second technician verifies every step, the second technician proves the section dead and the authoriser signs, then the permit is isolated', async () => {
     const plan = (await tech.get(`/api/permits/${permitId}/isolations`)).body.items as { id: string; kind: string; remotelyOperable: boolean }[];
     let lockIndex = 0;
     for (const step of plan) {
@@ -79,6 +79,16 @@ describe('permit lifecycle through the API, as the demo users', () => {
       const verified = await tech2.post(`/api/permits/${permitId}/isolations/${step.id}/verify`, { method: 'position_checked' });
       expect(verified.status, JSON.stringify(verified.body)).toBe(200);
     }
+    // Verified is not yet Isolated (HSE HSG253): the section is held dead at a vent for the hold time.
+    expect((await lead.get(`/api/permits/${permitId}`)).body.state).toBe('accepted');
+    const vent = plan.find((s) => s.kind === 'vent')!;
+    const test = await tech2.post(`/api/permits/${permitId}/isolations/provings`, { stepId: vent.id, reading: 0, unit: 'psig' });
+    expect(test.status, JSON.stringify(test.body)).toBe(201);
+    srv.clock.advanceMinutes(15);
+    expect((await tech2.post(`/api/permits/${permitId}/isolations/provings/${test.body.id}/end`, { reading: 0 })).body.result).toBe('proved');
+    // HSE HSG250: the authoriser signs that the isolations are in place.
+    const signed = await transition(authoriser, permitId, 'confirm_isolated', sign(users.authoriser));
+    expect(signed.status, JSON.stringify(signed.body)).toBe(200);
     const permit = await lead.get(`/api/permits/${permitId}`);
     expect(permit.body.state).toBe('isolated');
     const board = await control.get('/api/board');

@@ -18,7 +18,8 @@ const budgets = {
   'permits list': 9,
   'permits list, closed, page 3': 9,
   'permit page': 15,
-  'isolation plan': 9,
+  // +1: the plan answers with where it stands against Isolated (hold tests, signature, the site's proving limits), one statement whatever the rows.
+  'isolation plan': 10,
   'gas tests of a permit': 10,
   'send for approval': 37,
   'gas test entry': 22,

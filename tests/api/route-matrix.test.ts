@@ -7,12 +7,12 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import { subject as caslSubject } from '@casl/ability';
 import { packRules, unpackRules, type PackRule } from '@casl/ability/extra';
 import { abilityFromRules, defineAbilityFor, defineRulesFor, type Action, type Actor, type AppAbility, type AppRule, type SubjectName } from '@shared/abilities/define-ability';
-import type { MeResponse } from '@shared/schemas/auth.schema';
+import type { MeResponse } from '@shared/types/auth';
 import { DEMO_PASSWORD, startTestServer, type ApiClient, type TestServer } from '../fixtures/test-server';
 import { readAnswer, registeredApiRoutes } from '../fixtures/registered-routes';
 import {
   instrumentBody, inventoryBody, monitorOf, onePixelPng, permitBody, pipelineBody, pointBody, sampleAttachment, sampleHandover, sampleHeldPermit, sampleInstrument,
-  sampleInventory, sampleMembership, samplePermit, samplePipeline, samplePoint, sampleStep, tokenFor,
+  sampleInventory, sampleLockedStep, sampleMembership, samplePermit, samplePipeline, samplePoint, sampleProving, sampleStep, tokenFor,
   type Keepers, type MatrixContext, type SampleFactory, type SampleRecord, type TenantIds,
 } from '../fixtures/matrix-samples';
 
@@ -192,6 +192,24 @@ const routes: RouteCase[] = [
   { method: 'POST', path: '/api/permits/:id/isolations/:stepId/verify', access: onRecord('verify', 'IsolationStep', sampleStep('accepted', 'applied')), body: () => ({ method: 'position_checked' }) },
   { method: 'POST', path: '/api/permits/:id/isolations/:stepId/acknowledge', access: onRecord('acknowledge', 'IsolationStep', sampleStep('accepted', 'applied')), body: () => ({ what: 'applied' }) },
   { method: 'POST', path: '/api/permits/:id/isolations/:stepId/remove', access: onRecord('remove', 'IsolationStep', sampleStep('work_complete', 'applied')), body: () => ({}) },
+  {
+    method: 'POST',
+    path: '/api/permits/:id/isolations/:stepId/removal-exception',
+    access: onRecord('approve', 'IsolationStep', sampleLockedStep),
+    body: (c) => ({
+      absenceCheck: 'Matrix check: not on the gate log, site radio unanswered.',
+      contactAttempts: [{ how: 'Phoned their mobile', at: new Date(c.srv.clock.now().getTime() - 60_000).toISOString() }],
+      informPlan: 'Told at the gate before their next shift.',
+      ...signature(c),
+    }),
+  },
+  {
+    method: 'POST',
+    path: '/api/permits/:id/isolations/provings',
+    access: onRecord('verify', 'IsolationStep', sampleStep('accepted', 'applied'), 'Permit'),
+    body: (_c, s) => ({ stepId: s?.params.stepId, reading: 0, unit: 'psig' }),
+  },
+  { method: 'POST', path: '/api/permits/:id/isolations/provings/:provingId/end', access: onRecord('verify', 'IsolationStep', sampleProving, 'Permit'), body: () => ({ reading: 0 }) },
   { method: 'GET', path: '/api/board', access: can('read', 'Board') },
   { method: 'GET', path: '/api/board/stream', access: can('read', 'Board'), stream: true },
 

@@ -72,7 +72,7 @@ test.beforeAll(async ({ browser }) => {
   const lead = await pageFor(browser, 'lead');
   // The browser tests' database holds the demo lines but no demo permits: a live one is made through the API, as the crew would.
   const permits = await ok<{ items: { id: string; state: string }[] }>(lead.request.get('/api/permits?state=live&pageSize=50'));
-  permitId = permits.items.find((p) => p.state === 'live')?.id ?? (await livePermit('Repack the stem of CR-BV-252 (keyboard and screen-reader check)', ['CR-BV-252'])).id;
+  permitId = permits.items.find((p) => p.state === 'live')?.id ?? (await livePermit('Repack the stem of CR-BV-252 (keyboard and screen-reader check)', ['CR-BV-252', 'CR-VT-253'])).id;
   const pipes = await ok<{ items: { id: string; code: string }[] }>(lead.request.get('/api/pipelines?q=BM-10&pageSize=50'));
   pipelineId = pipes.items.find((p) => p.code === 'BM-10')!.id;
 });

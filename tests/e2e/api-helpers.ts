@@ -1,4 +1,5 @@
 import { expect, request, type APIRequestContext, type APIResponse } from '@playwright/test';
+import pg from 'pg';
 import { DEMO_PASSWORD } from './helpers';
 
 export const names: Record<string, string> = {
@@ -43,7 +44,7 @@ export async function ok<T = Record<string, unknown>>(res: Promise<APIResponse> 
 /** Fires a permit event with the version just read; signed events carry the demo password and the user's name. */
 export async function transition(user: ApiUser, permitId: string, event: string, extra: Record<string, unknown> = {}) {
   const { version } = await ok<{ version: number }>(user.get(`/api/permits/${permitId}`));
-  const signed = ['approve', 'accept', 'hand_back', 'return_to_service'].includes(event) ? { password: DEMO_PASSWORD, signedName: names[user.email] } : {};
+  const signed = ['approve', 'accept', 'confirm_isolated', 'hand_back', 'return_to_service'].includes(event) ? { password: DEMO_PASSWORD, signedName: names[user.email] } : {};
   return ok<{ state: string }>(user.post(`/api/permits/${permitId}/transitions`, { event, version, ...signed, ...extra }));
 }
 
@@ -92,6 +93,38 @@ export async function acceptedPermit(title: string, tagCodes: string[]): Promise
 }
 
 /**
+ * This server runs on the real clock, so a hold test is not waited out: its first reading is moved
+ * back by the hold time in the database (the owner's connection), as if it had been taken then.
+ */
+export async function holdTestAsIfWaited(permitId: string) {
+  const db = new pg.Client({ connectionString: process.env.E2E_DATABASE_URL });
+  await db.connect();
+  try {
+    await db.query(`UPDATE isolation_provings SET started_at = started_at - make_interval(mins => hold_minutes + 1) WHERE permit_id = $1 AND result = 'running'`, [permitId]);
+  } finally {
+    await db.end();
+  }
+}
+
+/**
+ * HSE HSG253 and HSG250: the second technician, who applied none of the isolating devices, holds the
+ * section dead at the plan's first vent or drain; then the authoriser signs the isolations in place.
+ */
+export async function proveAndSign(permitId: string) {
+  const [tech2, authoriser] = await Promise.all(['tech2@oxbow-repair.example', 'authoriser@bramblecote.example'].map(apiAs));
+  try {
+    const plan = await ok<{ items: { id: string; kind: string }[] }>(tech2.get(`/api/permits/${permitId}/isolations`));
+    const bleed = plan.items.find((s) => s.kind === 'vent' || s.kind === 'drain')!;
+    const test = await ok<{ id: string }>(tech2.post(`/api/permits/${permitId}/isolations/provings`, { stepId: bleed.id, reading: 0, unit: 'psig' }), 201);
+    await holdTestAsIfWaited(permitId);
+    expect((await ok<{ result: string }>(tech2.post(`/api/permits/${permitId}/isolations/provings/${test.id}/end`, { reading: 0 }))).result).toBe('proved');
+    expect((await transition(authoriser, permitId, 'confirm_isolated')).state).toBe('isolated');
+  } finally {
+    await Promise.all([tech2, authoriser].map((u) => u.close()));
+  }
+}
+
+/**
  * The demo's in-date four-gas monitor (FG4-20731), bump-tested today as the authoriser records it on
  * the Instruments page, so a gas test may be recorded with it. Opens its own session unless given one.
  */
@@ -111,7 +144,8 @@ export async function bumpTestedMonitor(authoriser?: ApiUser): Promise<{ id: str
 /**
  * An accepted permit (see acceptedPermit) taken live through the API as the crew would: each step
  * applied by the technician and verified by the second technician (the control room confirming
- * remote operation is inhibited), the before-work checklist confirmed by the lead, the demo monitor
+ * remote operation is inhibited), the section proved dead and the isolations signed in place (proveAndSign),
+ * the before-work checklist confirmed by the lead, the demo monitor
  * bump-tested by the authoriser, a passing gas test by the gas tester, and work started by the lead.
  */
 export async function livePermit(title: string, tagCodes: string[]): Promise<{ id: string; number: string }> {
@@ -133,6 +167,7 @@ export async function livePermit(title: string, tagCodes: string[]): Promise<{ i
       if (step.remotelyOperable) await ok(control.post(`/api/permits/${permit.id}/isolations/${step.id}/acknowledge`, { what: 'remote_inhibited' }));
       await ok(tech2.post(`/api/permits/${permit.id}/isolations/${step.id}/verify`, { method: 'position_checked' }));
     }
+    await proveAndSign(permit.id);
     const current = await ok<{ state: string; checklist: { key: string }[] }>(lead.get(`/api/permits/${permit.id}`));
     expect(current.state).toBe('isolated');
     for (const item of current.checklist) await ok(lead.post(`/api/permits/${permit.id}/checklist`, { list: 'checklist', key: item.key, confirmed: true }));

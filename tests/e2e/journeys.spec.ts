@@ -1,6 +1,6 @@
 import { readFile } from 'node:fs/promises';
 import { expect, test, type Locator, type Page } from '@playwright/test';
-import { apiAs, bumpTestedMonitor, livePermit, ok } from './api-helpers';
+import { apiAs, bumpTestedMonitor, holdTestAsIfWaited, livePermit, ok } from './api-helpers';
 import { guideShot, mailTo, signAs, signedInPage, takeAction, wallTime } from './helpers';
 
 // The whole job in a real browser, each person in a browser of their own. Journeys 1–4 follow one
@@ -99,6 +99,10 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
       await expect(row.getByLabel(/^Pipe diameter the plug fills \(in\)/)).toHaveValue('10.02');
     }
     await expect(editor.getByTestId('mud-plug-caution')).toBeVisible();
+    // OSHA 29 CFR 1910.147(b): the valves isolate each side of the cut; the drain and the mud plugs isolate nothing.
+    await expect(editor.getByTestId('coverage-upstream')).toContainText('CR-BV-197');
+    await expect(editor.getByTestId('coverage-downstream')).toContainText('CR-BV-252');
+    await expect(editor.getByTestId('plan-coverage')).toContainText('Every side of the work has an isolating device');
     await guideShot(lead, 'request-plan', editor.getByTestId('mud-plug-caution'));
     await editor.getByRole('button', { name: 'Save plan' }).click();
     await expect(editor.getByRole('status').filter({ hasText: 'Saved.' })).toBeVisible();
@@ -159,7 +163,7 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     await Promise.all([authoriser.context().close(), lead.context().close()]);
   });
 
-  test('journey 3: when the lead accepts and the technicians apply and verify each isolation, then the control room sees them on the live board without a reload and acknowledges them', async ({ browser }) => {
+  test('journey 3: when the lead accepts and the technicians apply and verify each isolation, then the control room sees them on the live board without a reload and acknowledges them; the second technician proves the section dead and the authoriser signs the isolations in place', async ({ browser }) => {
     const lead = await signedInPage(browser, LEAD);
     await lead.goto(permitUrl);
     await takeAction(lead, 'Accept for the crew', signAs('Rory Kilbride'));
@@ -233,10 +237,34 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
       await expect(step(tech2, label)).toHaveAttribute('data-status', 'verified');
     }
     await expect(step(tech2, 'CR-BV-197')).toContainText('Ana Lisgar');
-    // Every step verified by a second person and the remote valve inhibited: Holdpoint moves the permit on by itself.
-    await expect(state(tech2)).toHaveText('Isolated');
+    // Every step verified and the remote valve inhibited is not yet Isolated: the page says what still blocks it.
+    await expect(state(tech2)).toHaveText('Accepted');
     await expect(tech2.getByTestId('isolation-summary')).toHaveText('5 steps · 5 in place · 5 verified');
+    const blockers = tech2.getByTestId('isolation-blockers');
+    await expect(blockers).toContainText('Section not proved dead');
+    await expect(blockers).toContainText('Isolations-in-place signature missing');
     await guideShot(tech2, 'isolate-verified', step(tech2, 'CR-BV-197'));
+
+    // HSE HSG253: the second technician, who applied none of the valves, holds the section dead at the drain.
+    const proving = tech2.getByTestId('proving-form');
+    await proving.getByLabel('Vent or drain where the gauge is read').selectOption({ label: 'CR-DR-251' });
+    await proving.getByLabel('Gauge reading').fill('0');
+    await proving.getByRole('button', { name: 'Record first reading' }).click();
+    await expect(tech2.getByTestId('proving-row').first()).toHaveAttribute('data-result', 'running');
+    // This server runs on the real clock: the first reading is moved back by the hold time rather than waited out.
+    await holdTestAsIfWaited(permitUrl.split('/').pop()!);
+    await tech2.reload();
+    await proving.getByLabel('Gauge reading').fill('0');
+    await proving.getByRole('button', { name: 'Record end reading' }).click();
+    await expect(tech2.getByTestId('proving-row').first()).toHaveAttribute('data-result', 'proved');
+    await expect(blockers).toHaveText(/Isolations-in-place signature missing/);
+
+    // HSE HSG250: the authoriser signs that the isolations are in place.
+    const authoriser = await signedInPage(browser, AUTHORISER);
+    await authoriser.goto(permitUrl);
+    await takeAction(authoriser, 'Sign isolations in place', signAs('Priya Castellan'));
+    await expect(state(authoriser)).toHaveText('Isolated');
+    await expect(authoriser.getByTestId('isolation-signature')).toContainText('Priya Castellan');
 
     // On the board (still not reloaded) the permit has left "Accepted"; under "Isolated" every step is verified and acknowledged.
     await expect(ours).toHaveCount(0);
@@ -245,7 +273,7 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     await expect(ours.filter({ hasText: 'Verified by Ana Lisgar' })).toHaveCount(plan.length);
     await expect(ours.filter({ hasText: 'Acknowledged' })).toHaveCount(plan.length);
     await guideShot(control, 'isolate-board-acknowledged', ours.first());
-    await Promise.all([lead, control, tech, tech2].map((p) => p.context().close()));
+    await Promise.all([lead, control, tech, tech2, authoriser].map((p) => p.context().close()));
   });
 
   test('journey 4: when the gas tester records a pass, work goes live; a failing reading suspends it at once; after a new pass the lead resumes', async ({ browser }) => {
@@ -313,7 +341,8 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
 
 test('journey 5: when the lead hands back, the isolations come off in reverse order, the line returns to service and the permit is closed, then the printable permit and the timeline show every step', async ({ browser }) => {
   test.setTimeout(120_000);
-  const permit = await livePermit('Replace the actuator seals on CR-BV-304', ['CR-BV-304', 'CR-VT-253']);
+  // Its own valve and vent: the accessibility checks may hold CR-VT-253 open on a live permit of theirs.
+  const permit = await livePermit('Replace the actuator seals on CR-BV-149', ['CR-BV-149', 'CR-VT-150']);
   const url = `/permits/${permit.id}`;
 
   const lead = await signedInPage(browser, LEAD);
@@ -325,21 +354,21 @@ test('journey 5: when the lead hands back, the isolations come off in reverse or
   // The valve went on first, so it comes off last: Holdpoint says so before anything is taken off.
   const tech = await signedInPage(browser, TECH);
   await tech.goto(url);
-  await step(tech, 'CR-BV-304').getByRole('button', { name: 'Remove', exact: true }).click();
+  await step(tech, 'CR-BV-149').getByRole('button', { name: 'Remove', exact: true }).click();
   const early = tech.getByRole('dialog');
-  await expect(early.getByRole('status').filter({ hasText: 'Out of order' })).toContainText('first CR-VT-253');
+  await expect(early.getByRole('status').filter({ hasText: 'Out of order' })).toContainText('first CR-VT-150');
   await guideShot(tech, 'handback-reverse-order');
   await early.getByRole('button', { name: 'Cancel' }).click();
-  for (const label of ['CR-VT-253', 'CR-BV-304']) {
+  for (const label of ['CR-VT-150', 'CR-BV-149']) {
     await step(tech, label).getByRole('button', { name: 'Remove', exact: true }).click();
     await confirmDialog(tech, 'Remove isolation');
     await expect(step(tech, label)).toHaveAttribute('data-status', 'removed');
   }
-  await expect(step(tech, 'CR-BV-304')).toContainText('Sam Ferrand');
+  await expect(step(tech, 'CR-BV-149')).toContainText('Sam Ferrand');
 
   const control = await signedInPage(browser, CONTROL);
   await control.goto(url);
-  for (const label of ['CR-VT-253', 'CR-BV-304']) {
+  for (const label of ['CR-VT-150', 'CR-BV-149']) {
     await step(control, label).getByRole('button', { name: 'Acknowledge removed' }).click();
     await confirmDialog(control, 'Acknowledge');
     await expect(step(control, label)).toContainText('removal acknowledged');

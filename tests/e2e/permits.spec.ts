@@ -191,8 +191,8 @@ test('when the contractor lead requests hot work and the authoriser sends it bac
   await expect(signatures.filter({ hasText: 'Rory Kilbride' })).toBeVisible();
   await expect(lead.getByTestId('timeline')).toContainText('Send back with reasons');
   await expect(lead.getByTestId('timeline')).toContainText('Name the fire watch person');
-  // Blocked steps stay visible with what is missing.
-  await expect(lead.getByTestId('action-start_work').or(lead.getByTestId('action-confirm_isolated')).first()).toBeVisible();
+  // What still blocks Isolated stays visible on the page, down to the authoriser's signature.
+  await expect(lead.getByTestId('isolation-blockers')).toContainText('Isolations-in-place signature missing');
   await expect(lead.getByRole('status').filter({ hasText: 'Accept for the crew: done' })).toHaveCount(0, { timeout: 10_000 });
   await shot(lead, 'permit-page');
 

@@ -19,7 +19,7 @@ function facts(over: Partial<DueFacts> = {}): DueFacts {
 }
 const of = (f: DueFacts, kind: string, at = now) => dueTimes(f, at).find((t) => t.kind === kind)!;
 
-describe('nextGasTestDue (the rule the permits list and board compute in SQL)', () => {
+describe('nextGasTestDue (the one rule behind the permit page, the permits list and the board)', () => {
   it('when the permit is live, then the next test is due the interval after the last pass', () => {
     expect(nextGasTestDue('live', subMinutes(now, 10), 30, now)).toEqual(addMinutes(now, 20));
   });

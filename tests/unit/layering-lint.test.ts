@@ -101,3 +101,59 @@ export const parts = [useMe, usePermitPipelines, Button];
     expect(await ruleIds(code, 'client/src/app/sample-routes.tsx')).toEqual([]);
   });
 });
+
+describe('finding 5: the audit routes are layered like every other route', () => {
+  it('when the audit routes are linted, then the route rules apply to them and find nothing', async () => {
+    const file = 'server/src/modules/audit/audit.routes.ts';
+    const config = await eslint.calculateConfigForFile(file);
+    expect(config.rules['no-restricted-syntax']?.[0], 'the route rules are not switched off for the audit routes').toBe(2);
+    const [result] = await eslint.lintFiles([file]);
+    expect(result.messages).toEqual([]);
+  }, 30_000);
+});
+
+describe('finding 6: imports run one way, from features to the shared parts', () => {
+  it('when a file of the database layer imports a feature module or the demo, then it is refused', async () => {
+    const feature = `import { createPermit } from '../modules/permits/permits.service';\nexport const x = createPermit;\n`;
+    const demo = `import { seedDemo } from '../demo';\nexport const x = seedDemo;\n`;
+    const deep = `import { loadActor } from '../../modules/auth/auth.repository';\nexport const x = loadActor;\n`;
+    expect(await ruleIds(feature, 'server/src/db/cli.ts')).toEqual(['no-restricted-imports']);
+    expect(await ruleIds(demo, 'server/src/db/cli.ts')).toEqual(['no-restricted-imports']);
+    expect(await ruleIds(deep, 'server/src/db/migrations/0999-sample.ts')).toEqual(['no-restricted-imports']);
+  });
+
+  it('when the server lib or a middleware imports a feature module, then it is refused', async () => {
+    const code = `import { loadActor } from '../modules/auth/auth.repository';\nexport const x = loadActor;\n`;
+    expect(await ruleIds(code, 'server/src/middleware/authenticate.ts')).toEqual(['no-restricted-imports']);
+    expect(await ruleIds(code, 'server/src/lib/sample.ts')).toEqual(['no-restricted-imports']);
+  });
+
+  it('when the demo or a feature imports the database layer and the lib, or the demo drives a feature, then nothing is reported', async () => {
+    const demo = `import { migrateUp } from '../db/migrator';
+import { loadActor } from '../lib/actor';
+import { createPermit } from '../modules/permits/permits.service';
+export const parts = [migrateUp, loadActor, createPermit];
+`;
+    expect(await ruleIds(demo, 'server/src/demo/cli.ts')).toEqual([]);
+    const db = `import { createSequelize } from './sequelize';\nimport { migrateUp } from './migrator';\nexport const parts = [createSequelize, migrateUp];\n`;
+    expect(await ruleIds(db, 'server/src/db/cli.ts')).toEqual([]);
+  });
+
+  it("when the client's shared code imports a feature, by alias or by relative path, then it is refused", async () => {
+    const alias = `import { useMe } from '@client/features/auth/api/get-me';\nexport const x = useMe;\n`;
+    const index = `import { useMe } from '@client/features/auth';\nexport const x = useMe;\n`;
+    const relative = `import { useMe } from '../features/auth/api/get-me';\nexport const x = useMe;\n`;
+    expect(await ruleIds(alias, 'client/src/lib/ability.tsx')).toEqual(['no-restricted-imports']);
+    expect(await ruleIds(index, 'client/src/lib/ability.tsx')).toEqual(['no-restricted-imports']);
+    expect(await ruleIds(relative, 'client/src/lib/ability.tsx')).toEqual(['no-restricted-imports']);
+    expect(await ruleIds(index, 'client/src/components/ui/sample.tsx')).toEqual(['no-restricted-imports']);
+  });
+
+  it('when the real shared files are linted, then none of them imports a feature', async () => {
+    const importsOnly = new ESLint({ cwd: root, overrideConfigFile: 'eslint.config.js', ruleFilter: ({ ruleId }) => ruleId === 'no-restricted-imports' });
+    const results = await importsOnly.lintFiles(['server/src/db', 'server/src/lib', 'server/src/middleware', 'client/src/lib', 'client/src/components']);
+    const refused = results.flatMap((r) => r.messages.map((m) => `${r.filePath}: ${m.message}`));
+    expect(results.length).toBeGreaterThan(20);
+    expect(refused).toEqual([]);
+  }, 60_000);
+});

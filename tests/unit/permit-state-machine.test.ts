@@ -3,8 +3,9 @@
 // has to be made twice, deliberately. Rules named beside the checks are common practice for permit
 // to work and isolation (no single published source), except where a source is named.
 import { describe, expect, it } from 'vitest';
-import { decide, eventsFrom, permitEventLabels, permitEvents, systemEvents, targetOf, type ActorFacts, type PermitEvent, type PermitFacts } from '@shared/permit/state-machine';
+import { decide, eventAction, eventsFrom, permitEventLabels, permitEvents, signedEvents, systemEvents, targetOf, type ActorFacts, type PermitEvent, type PermitFacts } from '@shared/permit/state-machine';
 import { holdsIsolations, permitStates, type PermitState } from '@shared/permit/states';
+import type { IsolationReadiness } from '@shared/isolations/readiness';
 
 const NOW = new Date('2026-03-02T14:00:00Z');
 const at = (minutes: number) => new Date(NOW.getTime() + minutes * 60_000);
@@ -13,6 +14,17 @@ const ORG = 'org-oxbow';
 const people = { requester: 'u-requester', authoriser: 'u-authoriser', lead: 'u-lead', otherLead: 'u-lead-2' };
 
 type FactsOverrides = Partial<Omit<PermitFacts, 'isolation' | 'gas'>> & { isolation?: Partial<PermitFacts['isolation']>; gas?: Partial<PermitFacts['gas']> };
+
+/** A block valve each side of the work, both verified, and the section held dead at a vent (HSE HSG253). */
+const proved: IsolationReadiness = {
+  devices: 2,
+  sides: [
+    { side: 'upstream', deadEnd: null, planned: 1, verified: 1 },
+    { side: 'downstream', deadEnd: null, planned: 1, verified: 1 },
+  ],
+  proving: { state: 'proved', at: 'CR-VT-150', failure: null },
+};
+const planned: IsolationReadiness = { ...proved, sides: proved.sides.map((s) => ({ ...s, verified: 0 })), proving: { state: 'none', at: null, failure: null } };
 
 /**
  * Facts that satisfy every guard of every event from `state`: isolations in place while the state holds
@@ -36,8 +48,8 @@ function facts(state: PermitState, o: FactsOverrides = {}): PermitFacts {
       { key: 'site_photo', label: 'Photo of the site before work', required: false, confirmed: false },
     ],
     isolation: inPlace
-      ? { steps: 8, applied: 8, verified: 8, selfVerified: 0, remoteValvesWithoutAck: 0, stillApplied: 8, ventsOpen: 2, plugsInPlace: 2, plugWarningsUnacknowledged: 0 }
-      : { steps: 8, applied: 0, verified: 0, selfVerified: 0, remoteValvesWithoutAck: 0, stillApplied: 0, ventsOpen: 0, plugsInPlace: 0, plugWarningsUnacknowledged: 0 },
+      ? { steps: 8, applied: 8, verified: 8, selfVerified: 0, remoteValvesWithoutAck: 0, stillApplied: 8, ventsOpen: 2, plugsInPlace: 2, plugWarningsUnacknowledged: 0, readiness: proved }
+      : { steps: 8, applied: 0, verified: 0, selfVerified: 0, remoteValvesWithoutAck: 0, stillApplied: 0, ventsOpen: 0, plugsInPlace: 0, plugWarningsUnacknowledged: 0, readiness: planned },
     gas: { lastPassAt: at(-10), lastFailAt: null, windowMinutes: 30 },
     fireWatchEndsAt: at(-5),
     walkdownComplete: true,
@@ -203,6 +215,33 @@ describe('confirm_isolated', () => {
     expect(refused(decide('confirm_isolated', facts('accepted', { isolation: { remoteValvesWithoutAck: 1 } }), system, NOW))).toEqual([
       "1 remotely operable valve(s) lack the control room's acknowledgement that remote operation is inhibited.",
     ]);
+  });
+
+  // OSHA 29 CFR 1910.147(b): vents, drains and mud plugs are no energy-isolating devices.
+  it('finding J1: when the plan is vents and mud plugs only, then it can never be isolated, even with both sides declared dead ends', () => {
+    const noDevice: IsolationReadiness = { ...proved, devices: 0, sides: proved.sides.map((s) => ({ ...s, planned: 0, verified: 0, deadEnd: 'Capped' })) };
+    expect(refused(decide('confirm_isolated', facts('accepted', { isolation: { readiness: noDevice } }), authoriser, NOW))[0]).toMatch(/^The plan has no isolating device\. Vents, drains and mud plugs are not isolations/);
+  });
+
+  it('finding J1: when no isolating device stands upstream of the work and no dead end is declared there, then it says so; a declared dead end needs none', () => {
+    const open: IsolationReadiness = { ...proved, sides: [{ side: 'upstream', deadEnd: null, planned: 0, verified: 0 }, proved.sides[1]] };
+    expect(refused(decide('confirm_isolated', facts('accepted', { isolation: { readiness: open } }), authoriser, NOW))[0]).toMatch(/^No isolating device upstream of the work/);
+    const capped: IsolationReadiness = { ...open, sides: [{ ...open.sides[0], deadEnd: 'The line ends at a welded cap at MP 0.' }, proved.sides[1]] };
+    expect(decide('confirm_isolated', facts('accepted', { isolation: { readiness: capped } }), authoriser, NOW)).toEqual({ ok: true, to: 'isolated' });
+  });
+
+  // HSE HSG253: the isolated section is proved dead before work; a position check does not prove a valve.
+  it('finding J4: when the section has not been proved dead, or its hold test is running or failed, then it is refused with what to do', () => {
+    const refusedWith = (proving: IsolationReadiness['proving']) => refused(decide('confirm_isolated', facts('accepted', { isolation: { readiness: { ...proved, proving } } }), authoriser, NOW));
+    expect(refusedWith({ state: 'none', at: null, failure: null })[0]).toMatch(/^Section not proved dead: /);
+    expect(refusedWith({ state: 'running', at: 'CR-VT-150', failure: null })[0]).toMatch(/^Section not proved dead yet: the hold test at CR-VT-150 is running/);
+    expect(refusedWith({ state: 'failed', at: 'CR-VT-150', failure: 'the pressure built up from 0 psig to 3 psig' })[0]).toContain('failed (the pressure built up from 0 psig to 3 psig)');
+  });
+
+  // HSE HSG250: the permit issuer signs that the isolations are in place before work starts.
+  it('finding J5: when the isolations are signed in place, then it is the authoriser’s signature, not Holdpoint counting steps', () => {
+    expect(signedEvents).toContain('confirm_isolated');
+    expect(eventAction.confirm_isolated).toBe('approve');
   });
 });
 

@@ -21,10 +21,11 @@ function Logo() {
 }
 
 // The CASL rules matter only inside the signed-in shell: providing them here keeps CASL out of the entry
-// chunk, so the sign-in page loads without it.
+// chunk, so the sign-in page loads without it. They come with the signed-in user.
 export function AppLayout() {
+  const { data: me } = useMe();
   return (
-    <AbilityProvider>
+    <AbilityProvider rules={me?.rules}>
       <Shell />
     </AbilityProvider>
   );

@@ -2,7 +2,6 @@ import { Umzug, SequelizeStorage } from 'umzug';
 import type { QueryInterface, Sequelize } from 'sequelize';
 import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
-import { notTenantScoped } from './migrations/0090-row-level-security';
 
 const here = dirname(fileURLToPath(import.meta.url));
 
@@ -21,13 +20,14 @@ export function createMigrator(sequelize: Sequelize) {
 export async function migrateUp(sequelize: Sequelize) {
   const done = await createMigrator(sequelize).up();
   // A table with tenant data added by a migration that ran after the row-level-security one still
-  // gets its policy: every tenant_id table without row security is switched on here.
+  // gets its policy: every tenant_id table without row security is switched on here (since 0100 the
+  // mail outbox and tokens too: no table with tenant_id is exempt).
   await sequelize.query(`
     DO $$ DECLARE r record; BEGIN
       IF to_regproc('hp_enable_tenant_rls') IS NULL THEN RETURN; END IF;
       FOR r IN SELECT c.oid::regclass AS tbl FROM pg_class c JOIN pg_namespace n ON n.oid = c.relnamespace
                JOIN pg_attribute a ON a.attrelid = c.oid AND a.attname = 'tenant_id' AND NOT a.attisdropped
-               WHERE n.nspname = 'public' AND c.relkind = 'r' AND NOT c.relrowsecurity AND c.relname NOT IN (${notTenantScoped.map((t) => `'${t}'`).join(', ')})
+               WHERE n.nspname = 'public' AND c.relkind = 'r' AND NOT c.relrowsecurity
       LOOP PERFORM hp_enable_tenant_rls(r.tbl); END LOOP;
     END $$;`);
   // The server's login role belongs to hp_app: plain data rights, no ownership, and the audit trail

@@ -31,7 +31,8 @@ export function createSequelize(databaseUrl: string, logger?: Logger): Sequelize
 
 /**
  * Runs `fn` in one transaction with `app.tenant_id` set (the key row-level security reads). Inside an
- * open transaction of the same tenant it just joins it, so services can call each other.
+ * open transaction it joins it, so services can call each other; asked for another tenant there, it
+ * switches `app.tenant_id` for the rest of that transaction.
  * Every query on tenant-owned tables goes through here.
  */
 export async function withTenant<T>(sequelize: Sequelize, tenantId: string, fn: (t: Transaction) => Promise<T>): Promise<T> {

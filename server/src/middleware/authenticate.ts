@@ -2,7 +2,7 @@ import type { RequestHandler, Request } from 'express';
 import { defineAbilityFor } from '@shared/abilities/define-ability';
 import type { AppDeps } from '../deps';
 import { AppError } from '../errors/app-error';
-import { loadActor } from '../modules/auth/auth.repository';
+import { loadActor } from '../lib/actor';
 
 /**
  * Loads the signed-in user and their memberships in the active tenant, enforces the idle and absolute

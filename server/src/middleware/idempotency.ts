@@ -4,7 +4,7 @@ import { QueryTypes } from 'sequelize';
 import type { AppDeps } from '../deps';
 import { AppError } from '../errors/app-error';
 import { withTenant } from '../db/sequelize';
-import { canonicalJson } from '../modules/audit/canonical-json';
+import { canonicalJson } from '../lib/canonical-json';
 
 const STATE_CHANGING = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
 

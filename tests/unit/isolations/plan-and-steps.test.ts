@@ -1,8 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import { errorsByRow, moveRow, toPlanStep, type DraftRow } from '@client/features/isolations/lib/plan-draft';
-import { appliedLater, planRange, stepActionsFit } from '@client/features/isolations/lib/step-rules';
+import { planRange } from '@client/features/isolations/lib/step-rules';
+import { stepActions } from '@shared/isolations/step-rules';
+import { appliedAfter } from '@shared/isolations/lockout-rules';
 import { applyFormSchema, toApplyInput } from '@client/features/isolations/lib/step-forms';
-import type { IsolationStep } from '@client/features/isolations/api/get-isolation-plan';
+import type { IsolationStep } from '@shared/types/isolations';
 
 const row = (key: string, extra: Partial<DraftRow> = {}): DraftRow => ({ key, pointId: `p-${key}`, kind: 'block_valve', label: key.toUpperCase(), position: 1, ...extra });
 
@@ -12,7 +14,8 @@ function step(id: string, extra: Partial<IsolationStep> = {}): IsolationStep {
     lockId: null, lockNumber: null, tagId: null, tagNumber: null, appliedBy: null, appliedByName: null, appliedAt: null, appliedEnteredLate: false, photoAttachmentId: null, remoteAckAt: null,
     remoteAckByName: null, verifiedBy: null, verifiedByName: null, verifiedAt: null, verificationMethod: null, verificationReading: null, verificationUnit: null,
     verificationNotes: null, removedByName: null, removedAt: null, removalNote: null, controlRoomAckAppliedAt: null, controlRoomAckRemovedAt: null, plugDiameterIn: null,
-    plugAsBuilt: null, plugWarnings: [], plugWarningsAckAt: null, ...extra,
+    plugAsBuilt: null, plugWarnings: [], plugWarningsAckAt: null, appliedSeq: null, appliedOutOfOrderReason: null, exceptionRecordedAt: null, exceptionAuthoriserId: null,
+    exceptionAuthoriserName: null, removedUnderException: false, lineStopAsBuilt: null, ...extra,
   };
 }
 
@@ -45,32 +48,32 @@ describe('the plan editor', () => {
 
 describe('which step actions fit', () => {
   it('when a permit is accepted, then a planned step may be applied; once applied it may be verified but not removed until hand-back', () => {
-    expect(stepActionsFit(step('a'), 'accepted')).toMatchObject({ apply: true, verify: false, remove: false });
-    expect(stepActionsFit(step('a'), 'approved').apply).toBe(false);
+    expect(stepActions(step('a'), 'accepted')).toMatchObject({ apply: true, verify: false, remove: false });
+    expect(stepActions(step('a'), 'approved').apply).toBe(false);
     const applied = step('a', { status: 'applied', appliedAt: '2026-12-02T07:00:00Z' });
-    expect(stepActionsFit(applied, 'isolated')).toMatchObject({ apply: false, verify: true, acknowledgeApplied: true, remove: false });
-    expect(stepActionsFit(applied, 'work_complete').remove).toBe(true);
+    expect(stepActions(applied, 'isolated')).toMatchObject({ apply: false, verify: true, acknowledgeApplied: true, remove: false });
+    expect(stepActions(applied, 'work_complete').remove).toBe(true);
   });
 
   it('when a remote valve is on without the control room inhibiting it, then that acknowledgement is offered, and plug warnings only while unacknowledged', () => {
-    expect(stepActionsFit(step('a', { status: 'verified', remotelyOperable: true }), 'isolated').acknowledgeRemote).toBe(true);
-    expect(stepActionsFit(step('a', { status: 'verified', remotelyOperable: true, remoteAckAt: 'x' }), 'isolated').acknowledgeRemote).toBe(false);
+    expect(stepActions(step('a', { status: 'verified', remotelyOperable: true }), 'isolated').acknowledgeRemote).toBe(true);
+    expect(stepActions(step('a', { status: 'verified', remotelyOperable: true, remoteAckAt: 'x' }), 'isolated').acknowledgeRemote).toBe(false);
     const warned = step('p', { kind: 'plug', status: 'verified', plugWarnings: [{ code: 'plug_too_short', message: 'short' }] });
-    expect(stepActionsFit(warned, 'isolated').acknowledgePlugWarnings).toBe(true);
-    expect(stepActionsFit({ ...warned, plugWarningsAckAt: 'x' }, 'isolated').acknowledgePlugWarnings).toBe(false);
-    expect(stepActionsFit(step('r', { status: 'removed' }), 'work_complete')).toMatchObject({ acknowledgeRemoved: true, remove: false });
+    expect(stepActions(warned, 'isolated').acknowledgePlugWarnings).toBe(true);
+    expect(stepActions({ ...warned, plugWarningsAckAt: 'x' }, 'isolated').acknowledgePlugWarnings).toBe(false);
+    expect(stepActions(step('r', { status: 'removed' }), 'work_complete')).toMatchObject({ acknowledgeRemoved: true, remove: false });
   });
 
   it('when later isolations are still on, then they are listed newest first (reverse order of application)', () => {
-    const first = step('valve', { status: 'verified', appliedAt: '2026-12-02T07:00:00Z' });
+    const first = step('valve', { status: 'verified', appliedAt: '2026-12-02T07:00:00Z', appliedSeq: 1 });
     const steps = [
       first,
-      step('drain', { status: 'verified', appliedAt: '2026-12-02T07:05:00Z' }),
-      step('plug', { status: 'applied', appliedAt: '2026-12-02T07:10:00Z' }),
-      step('vent', { status: 'removed', appliedAt: '2026-12-02T07:15:00Z' }),
+      step('drain', { status: 'verified', appliedAt: '2026-12-02T07:05:00Z', appliedSeq: 2 }),
+      step('plug', { status: 'applied', appliedAt: '2026-12-02T07:10:00Z', appliedSeq: 3 }),
+      step('vent', { status: 'removed', appliedAt: '2026-12-02T07:15:00Z', appliedSeq: 4 }),
     ];
-    expect(appliedLater(first, steps).map((s) => s.id)).toEqual(['plug', 'drain']);
-    expect(appliedLater(steps[2], steps)).toEqual([]);
+    expect(appliedAfter(first, steps).map((s) => s.id)).toEqual(['plug', 'drain']);
+    expect(appliedAfter(steps[2], steps)).toEqual([]);
   });
 
   it('when the plan spans 14.9 to 19.7 around a cut at 17.3, then the strip opens on that stretch with a margin', () => {

@@ -1,21 +1,22 @@
 import { describe, expect, it } from 'vitest';
-import { hasFilters, patchParams, readPermitsParams } from '@client/features/permits/lib/list-params';
+import { hasFilters } from '@client/features/permits/lib/list-params';
+import { patchParams, readListQuery } from '@client/lib/list-query';
 import { fieldOfPath, firstStepWith, formSteps } from '@client/features/permits/lib/form-steps';
 import { schematicOverlays } from '@client/features/permits/lib/schematic-overlays';
-import { createPermitInputSchema } from '@shared/schemas/permit.schema';
+import { createPermitInputSchema, permitsQuerySchema } from '@shared/schemas/permit.schema';
 
 const PIPE = '3f1c2a34-5b6d-4e7f-8a9b-0c1d2e3f4a5b';
 
 describe('permits list address', () => {
   it('when the URL carries states, a pipeline and a page, then they become the API query', () => {
-    const q = readPermitsParams(new URLSearchParams(`state=live,suspended&pipelineId=${PIPE}&page=3&sort=number&dir=asc`));
+    const q = readListQuery(permitsQuerySchema, new URLSearchParams(`state=live,suspended&pipelineId=${PIPE}&page=3&sort=number&dir=asc`));
     expect(q).toMatchObject({ page: 3, state: ['live', 'suspended'], pipelineId: PIPE, sort: 'number', dir: 'asc' });
     expect(hasFilters(q)).toBe(true);
   });
 
   it('when a hand-edited URL has unknown states, a bad id and page 0, then those are dropped and page 1 is shown', () => {
-    const q = readPermitsParams(new URLSearchParams('state=live,flying&pipelineId=nope&page=0&kind=juggling&from=tomorrow&sort=colour'));
-    expect(q).toMatchObject({ page: 1, state: ['live'], pipelineId: undefined, kind: undefined, from: undefined, sort: 'updatedAt', dir: 'desc' });
+    const q = readListQuery(permitsQuerySchema, new URLSearchParams('state=live,flying&pipelineId=nope&page=0&kind=juggling&from=tomorrow&sort=colour'));
+    expect(q).toEqual({ page: 1, pageSize: 25, state: ['live'], sort: 'updatedAt', dir: 'desc' });
   });
 
   it('when a filter is cleared, then its key leaves the URL and the others stay', () => {

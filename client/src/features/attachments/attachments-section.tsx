@@ -1,7 +1,9 @@
 import { useId, useRef, useState, type FormEvent } from 'react';
 import { subject } from '@casl/ability';
 import { format } from 'date-fns';
-import { attachmentAccept, attachmentAcceptHint, attachmentEntityLabels, type AttachmentSummary } from '@shared/schemas/attachment.schema';
+import { attachmentAccept, attachmentAcceptHint, attachmentEntityLabels } from '@shared/schemas/attachment.schema';
+import type { AttachmentSummary } from '@shared/types/attachments';
+import { closedStates, type PermitState } from '@shared/permit/states';
 import { Button } from '@client/components/ui/button';
 import { Notice } from '@client/components/ui/notice';
 import { Card, EmptyState, Loading } from '@client/components/ui/page';
@@ -16,7 +18,7 @@ export interface AttachmentsPermit {
   id: string;
   tenantId: string;
   contractorOrganisationId: string;
-  state?: string;
+  state?: PermitState;
 }
 
 const typeLabels: Record<string, string> = {
@@ -36,8 +38,6 @@ export function formatBytes(bytes: number) {
   if (bytes < 1024 * 1024) return `${Math.round(bytes / 102.4) / 10} KB`;
   return `${Math.round(bytes / (1024 * 102.4)) / 10} MB`;
 }
-
-const closedStates = ['closed', 'cancelled'];
 
 /** Photos and documents on a permit in a card of their own: heading, upload with progress, the list. */
 export function AttachmentsSection({ permit }: { permit: AttachmentsPermit }) {
@@ -60,7 +60,7 @@ export function AttachmentsPanel({ permit }: { permit: AttachmentsPermit }) {
   const [page, setPage] = useState(1);
   const list = useAttachments(permit.id, page);
   const mayAdd =
-    ability.can('create', subject('Attachment', { tenantId: permit.tenantId, contractorOrganisationId: permit.contractorOrganisationId })) && !closedStates.includes(permit.state ?? '');
+    ability.can('create', subject('Attachment', { tenantId: permit.tenantId, contractorOrganisationId: permit.contractorOrganisationId })) && !(permit.state && closedStates.includes(permit.state));
   const data = list.data;
   const pages = data ? Math.max(1, Math.ceil(data.total / data.pageSize)) : 1;
 

@@ -15,7 +15,7 @@ import type { AppDeps } from '../../deps';
 import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
 import { clientIp } from '../../lib/client-ip';
-import type { CallerContext } from '../permits/permits.service';
+import type { CallerContext } from '../../lib/caller';
 import * as admin from './admin.service';
 
 const idParams = z.strictObject({ id: uuidSchema });

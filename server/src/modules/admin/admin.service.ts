@@ -5,22 +5,14 @@ import { subject } from '@casl/ability';
 import type { InviteInput, OrganisationInput, QualificationInput, UsersQuery } from '@shared/schemas/auth.schema';
 import { roleLabels, type Role } from '@shared/abilities/roles';
 import type { Page, PageQuery } from '@shared/schemas/common.schema';
-import { siteDay } from '@shared/time/zone';
+import type { MembershipRow, OrganisationRow, QualificationRow, UserRow } from '@shared/types/admin';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { authorizeRecord, authorizeType } from '../../lib/authorize';
 import { appendAudit } from '../audit/audit.service';
 import { invite } from '../auth/auth.service';
-import type { CallerContext } from '../permits/permits.service';
-
-export interface OrganisationRow {
-  id: string;
-  tenantId: string;
-  name: string;
-  kind: 'operator' | 'contractor';
-  members: number;
-}
+import type { CallerContext } from '../../lib/caller';
 
 async function organisationsPage(sequelize: Sequelize, tenantId: string, page: number, pageSize: number): Promise<Page<OrganisationRow>> {
   const items = await sequelize.query<OrganisationRow & { total: number }>(
@@ -59,21 +51,10 @@ export async function createOrganisation(deps: AppDeps, caller: CallerContext, i
   });
 }
 
-export interface UserListRow {
-  membershipId: string;
-  userId: string;
-  name: string;
-  email: string;
-  role: Role;
-  organisationId: string;
-  organisationName: string;
-  organisationKind: 'operator' | 'contractor';
-}
-
 const userSort: Record<UsersQuery['sort'], string> = { name: 'u.name', email: 'lower(u.email)', role: 'm.role', organisation: 'o.name' };
 
 /** One row per membership so the admin sees every role a person holds. */
-async function usersPage(sequelize: Sequelize, tenantId: string, q: UsersQuery, onlyOrganisationId?: string): Promise<Page<UserListRow>> {
+async function usersPage(sequelize: Sequelize, tenantId: string, q: UsersQuery, onlyOrganisationId?: string): Promise<Page<UserRow>> {
   const where = ['m.tenant_id = :tenantId'];
   const replacements: Record<string, unknown> = { tenantId, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
   if (q.q) {
@@ -91,7 +72,7 @@ async function usersPage(sequelize: Sequelize, tenantId: string, q: UsersQuery, 
   }
   const sql = `FROM memberships m JOIN users u ON u.id = m.user_id JOIN organisations o ON o.id = m.organisation_id WHERE ${where.join(' AND ')}`;
   const [{ n }] = await sequelize.query<{ n: number }>(`SELECT count(*)::int AS n ${sql}`, { replacements, type: QueryTypes.SELECT });
-  const items = await sequelize.query<UserListRow>(
+  const items = await sequelize.query<UserRow>(
     `SELECT m.id AS "membershipId", u.id AS "userId", u.name, u.email, m.role, o.id AS "organisationId", o.name AS "organisationName", o.kind AS "organisationKind"
      ${sql} ORDER BY ${userSort[q.sort]} ${q.dir === 'desc' ? 'DESC' : 'ASC'}, m.id LIMIT :limit OFFSET :offset`,
     { replacements, type: QueryTypes.SELECT },
@@ -107,14 +88,6 @@ export async function listUsers(deps: AppDeps, caller: CallerContext, q: UsersQu
   const own = actor.memberships.find((m) => ability.can('read', subject('Membership', { tenantId, organisationId: m.organisationId })));
   if (!own) throw AppError.forbidden('Your role does not allow you to list people.');
   return withTenant(deps.sequelize, tenantId, () => usersPage(deps.sequelize, tenantId, q, own.organisationId));
-}
-
-export interface MembershipRow {
-  id: string;
-  tenantId: string;
-  userId: string;
-  organisationId: string;
-  role: Role;
 }
 
 /**
@@ -199,17 +172,6 @@ export async function removeMembership(deps: AppDeps, caller: CallerContext, id:
   });
 }
 
-export interface QualificationRow {
-  id: string;
-  tenantId: string;
-  userId: string;
-  userName: string;
-  kind: string;
-  reference: string | null;
-  issuedOn: string;
-  expiresOn: string;
-}
-
 async function qualificationsPage(sequelize: Sequelize, tenantId: string, page: number, pageSize: number, userId?: string): Promise<Page<QualificationRow>> {
   const replacements = { tenantId, userId: userId ?? null, limit: pageSize, offset: (page - 1) * pageSize };
   const where = `q.tenant_id = :tenantId AND (CAST(:userId AS uuid) IS NULL OR q.user_id = CAST(:userId AS uuid))`;
@@ -247,27 +209,4 @@ export async function createQualification(deps: AppDeps, caller: CallerContext, 
 export async function inviteMember(deps: AppDeps, caller: CallerContext, input: InviteInput) {
   authorizeType(caller.ability, 'create', 'Invitation', { tenantId: caller.actor.tenantId }, 'invitations');
   await invite(deps, caller.actor.tenantId, caller.actor.userId, input);
-}
-
-/** A qualification is in date from its issue day to its expiry day inclusive, both read as site days. */
-export const inDateOn = (q: { issuedOn: string | null; expiresOn: string | null }, day: string) => q.issuedOn !== null && q.expiresOn !== null && q.issuedOn <= day && day <= q.expiresOn;
-
-/**
- * Whether the person holds an in-date qualification of the kind on the site day of `at` (the
- * tenant's time zone, not the UTC date), and which day that is. One query: the tenant's zone comes along.
- */
-export async function qualificationOnSiteDay(sequelize: Sequelize, tenantId: string, userId: string, kind: string, at: Date, transaction?: import('sequelize').Transaction) {
-  const rows = await sequelize.query<{ timeZone: string; issuedOn: string | null; expiresOn: string | null }>(
-    `SELECT t.time_zone AS "timeZone", to_char(q.issued_on, 'YYYY-MM-DD') AS "issuedOn", to_char(q.expires_on, 'YYYY-MM-DD') AS "expiresOn"
-     FROM tenants t LEFT JOIN qualifications q ON q.tenant_id = t.id AND q.user_id = :userId AND q.kind = :kind
-     WHERE t.id = :tenantId`,
-    { replacements: { tenantId, userId, kind }, type: QueryTypes.SELECT, transaction },
-  );
-  const day = siteDay(at, rows[0]?.timeZone ?? 'UTC');
-  return { held: rows.some((q) => inDateOn(q, day)), day };
-}
-
-/** True when the person holds an in-date qualification of the kind on the site day of `at`, in this tenant. */
-export async function holdsQualification(sequelize: Sequelize, tenantId: string, userId: string, kind: string, at: Date, transaction?: import('sequelize').Transaction) {
-  return (await qualificationOnSiteDay(sequelize, tenantId, userId, kind, at, transaction)).held;
 }

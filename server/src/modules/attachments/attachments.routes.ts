@@ -15,7 +15,7 @@ import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
 import { idempotentBody } from '../../middleware/idempotency';
 import { clientIp } from '../../lib/client-ip';
-import type { CallerContext } from '../permits/permits.service';
+import type { CallerContext } from '../../lib/caller';
 import { addAttachment, checkMayUpload, listAttachments, openAttachment } from './attachments.service';
 import { contentDisposition } from './file-checks';
 

@@ -2,14 +2,16 @@ import { createHash, randomUUID } from 'node:crypto';
 import { mkdir, open, rm, writeFile, type FileHandle } from 'node:fs/promises';
 import { join } from 'node:path';
 import { QueryTypes, type Sequelize } from 'sequelize';
-import { isInlineContentType, type AttachmentSummary, type AttachmentsQuery, type UploadAttachmentFields } from '@shared/schemas/attachment.schema';
+import { isInlineContentType, type AttachmentsQuery, type UploadAttachmentFields } from '@shared/schemas/attachment.schema';
+import type { AttachmentSummary } from '@shared/types/attachments';
 import type { Page } from '@shared/schemas/common.schema';
+import { closedStates } from '@shared/permit/states';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { authorizeRecord } from '../../lib/authorize';
 import { appendAudit } from '../audit/audit.service';
-import { auditActor, type CallerContext } from '../permits/permits.service';
+import { auditActor, type CallerContext } from '../../lib/caller';
 import { findPermit, type PermitRow } from '../permits/permits.repository';
 import { sanitiseFileName, sniffContentType } from './file-checks';
 
@@ -18,9 +20,6 @@ export interface IncomingFile {
   buffer: Buffer;
   size: number;
 }
-
-/** Finished records take no new files: what was true at close-out stays the record. */
-const closedStates = ['closed', 'cancelled'];
 
 /** Fields the CASL conditions on an attachment read: the permit's tenant and contractor. */
 const attachmentSubject = (p: Pick<PermitRow, 'tenantId' | 'contractorOrganisationId'>) => ({ tenantId: p.tenantId, contractorOrganisationId: p.contractorOrganisationId });
@@ -55,7 +54,7 @@ const summaryColumns = `
   a.id, a.permit_id AS "permitId", a.entity_type AS "entityType", a.entity_id AS "entityId", a.original_name AS "originalName",
   a.content_type AS "contentType", a.size_bytes AS "sizeBytes", a.sha256, a.uploaded_by AS "uploadedBy", u.name AS "uploadedByName", a.created_at AS "createdAt"`;
 
-const withLinks = (row: Omit<AttachmentSummary, 'downloadUrl' | 'inline'>): AttachmentSummary => ({
+const withLinks = (row: Omit<AttachmentSummary<Date>, 'downloadUrl' | 'inline'>): AttachmentSummary<Date> => ({
   ...row,
   downloadUrl: `/api/attachments/${row.id}`,
   inline: isInlineContentType(row.contentType),
@@ -66,7 +65,7 @@ const withLinks = (row: Omit<AttachmentSummary, 'downloadUrl' | 'inline'>): Atta
  * bytes under a random name. Nothing reaches the disk unless every check passed; if the transaction
  * fails after the write (at commit, say), the file is removed again.
  */
-export async function addAttachment(deps: AppDeps, caller: CallerContext, permitId: string, file: IncomingFile | undefined, fields: UploadAttachmentFields): Promise<AttachmentSummary> {
+export async function addAttachment(deps: AppDeps, caller: CallerContext, permitId: string, file: IncomingFile | undefined, fields: UploadAttachmentFields): Promise<AttachmentSummary<Date>> {
   if (!file) throw AppError.validation('Choose a file to upload.', [{ path: 'file', message: 'Send the file in the form field "file".' }]);
   if (file.size === 0 || file.buffer.length === 0) throw AppError.validation('The file is empty (0 bytes).', [{ path: 'file', message: 'Choose a file that has content.' }]);
   const originalName = sanitiseFileName(file.originalname);
@@ -106,7 +105,7 @@ export async function addAttachment(deps: AppDeps, caller: CallerContext, permit
         throw err;
       }
       written = true;
-      const [summary] = await deps.sequelize.query<Omit<AttachmentSummary, 'downloadUrl' | 'inline'>>(
+      const [summary] = await deps.sequelize.query<Omit<AttachmentSummary<Date>, 'downloadUrl' | 'inline'>>(
         `SELECT ${summaryColumns} FROM attachments a JOIN users u ON u.id = a.uploaded_by WHERE a.tenant_id = :tenantId AND a.id = :id`,
         { replacements: { tenantId, id: row.id }, type: QueryTypes.SELECT },
       );
@@ -118,7 +117,7 @@ export async function addAttachment(deps: AppDeps, caller: CallerContext, permit
   }
 }
 
-export async function listAttachments(deps: AppDeps, caller: CallerContext, permitId: string, q: AttachmentsQuery): Promise<Page<AttachmentSummary>> {
+export async function listAttachments(deps: AppDeps, caller: CallerContext, permitId: string, q: AttachmentsQuery): Promise<Page<AttachmentSummary<Date>>> {
   const { tenantId } = caller.actor;
   return withTenant(deps.sequelize, tenantId, async () => {
     await loadPermitFor(deps, caller, permitId, 'read');
@@ -134,7 +133,7 @@ export async function listAttachments(deps: AppDeps, caller: CallerContext, perm
     }
     const whereSql = where.join(' AND ');
     const [{ n }] = await deps.sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM attachments a WHERE ${whereSql}`, { replacements: r, type: QueryTypes.SELECT });
-    const rows = await deps.sequelize.query<Omit<AttachmentSummary, 'downloadUrl' | 'inline'>>(
+    const rows = await deps.sequelize.query<Omit<AttachmentSummary<Date>, 'downloadUrl' | 'inline'>>(
       `SELECT ${summaryColumns} FROM attachments a JOIN users u ON u.id = a.uploaded_by WHERE ${whereSql} ORDER BY a.created_at DESC, a.id LIMIT :limit OFFSET :offset`,
       { replacements: r, type: QueryTypes.SELECT },
     );
@@ -143,7 +142,7 @@ export async function listAttachments(deps: AppDeps, caller: CallerContext, perm
 }
 
 export interface OpenedAttachment {
-  summary: AttachmentSummary;
+  summary: AttachmentSummary<Date>;
   handle: FileHandle;
 }
 
@@ -151,7 +150,7 @@ export interface OpenedAttachment {
 export async function openAttachment(deps: AppDeps, caller: CallerContext, id: string): Promise<OpenedAttachment> {
   const { tenantId } = caller.actor;
   const found = await withTenant(deps.sequelize, tenantId, async () => {
-    const [row] = await deps.sequelize.query<Omit<AttachmentSummary, 'downloadUrl' | 'inline'> & { storedName: string; contractorOrganisationId: string | null }>(
+    const [row] = await deps.sequelize.query<Omit<AttachmentSummary<Date>, 'downloadUrl' | 'inline'> & { storedName: string; contractorOrganisationId: string | null }>(
       `SELECT ${summaryColumns}, a.stored_name AS "storedName", p.contractor_organisation_id AS "contractorOrganisationId"
        FROM attachments a JOIN users u ON u.id = a.uploaded_by
        LEFT JOIN permits p ON p.tenant_id = a.tenant_id AND p.id = a.permit_id

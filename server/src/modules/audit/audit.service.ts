@@ -1,7 +1,12 @@
 import { createHash } from 'node:crypto';
 import { QueryTypes, type Sequelize } from 'sequelize';
+import type { Page, PageQuery } from '@shared/schemas/common.schema';
+import type { AppDeps } from '../../deps';
+import { withTenant } from '../../db/sequelize';
+import { authorizeType } from '../../lib/authorize';
+import type { CallerContext } from '../../lib/caller';
 import { validIp } from '../../lib/client-ip';
-import { canonicalJson } from './canonical-json';
+import { canonicalJson } from '../../lib/canonical-json';
 
 export interface AuditInput {
   tenantId: string;
@@ -185,4 +190,42 @@ export async function verifyChain(sequelize: Sequelize, tenantId: string, pageSi
   else if (headSeq > 0 && headEventHash !== start.last_hash) breaks.push({ seq: headSeq, problem: 'the chain head does not match the last event' });
   if (!breaks.length) return { ok: true, events: count, breaks };
   return { ok: false, events: count, breaks, brokenAtSeq: breaks[0].seq, problem: breaks[0].problem };
+}
+
+/** The caller's tenant's chain, recomputed for those who may check it. */
+export async function verifyTenantChain(deps: AppDeps, caller: CallerContext): Promise<ChainReport> {
+  const { tenantId } = caller.actor;
+  authorizeType(caller.ability, 'verify_chain', 'AuditEvent', { tenantId }, 'the audit trail');
+  return withTenant(deps.sequelize, tenantId, () => verifyChain(deps.sequelize, tenantId));
+}
+
+export interface AuditEventRow {
+  seq: number;
+  entityType: string;
+  entityId: string;
+  permitId: string | null;
+  action: string;
+  fromState: string | null;
+  toState: string | null;
+  actorName: string | null;
+  actorRole: string | null;
+  reason: string | null;
+  occurredAt: Date;
+  hash: string;
+}
+
+/** The caller's tenant's events, newest first, one page. */
+export async function listAuditEvents(deps: AppDeps, caller: CallerContext, q: PageQuery): Promise<Page<AuditEventRow>> {
+  const { tenantId } = caller.actor;
+  authorizeType(caller.ability, 'read', 'AuditEvent', { tenantId }, 'the audit trail');
+  return withTenant(deps.sequelize, tenantId, async () => {
+    const [{ n }] = await deps.sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM audit_events WHERE tenant_id = :t`, { replacements: { t: tenantId }, type: QueryTypes.SELECT });
+    const items = await deps.sequelize.query<AuditEventRow>(
+      `SELECT seq, entity_type AS "entityType", entity_id AS "entityId", permit_id AS "permitId", action, from_state AS "fromState", to_state AS "toState",
+              actor_name AS "actorName", actor_role AS "actorRole", reason, occurred_at AS "occurredAt", hash
+       FROM audit_events WHERE tenant_id = :t ORDER BY seq DESC LIMIT :limit OFFSET :offset`,
+      { replacements: { t: tenantId, limit: q.pageSize, offset: (q.page - 1) * q.pageSize }, type: QueryTypes.SELECT },
+    );
+    return { items, total: n, page: q.page, pageSize: q.pageSize };
+  });
 }

@@ -1,5 +1,6 @@
 import { QueryTypes } from 'sequelize';
 import type { AppDeps } from '../../deps';
+import { AppError } from '../../errors/app-error';
 import { verifyPassword } from '../../lib/passwords';
 import { attemptLimits } from './attempt-limits';
 
@@ -17,4 +18,16 @@ export async function signerPasswordMatches(deps: AppDeps, userId: string, passw
   if (ok) limits.signatureSucceeded(userId);
   else limits.signatureFailed(userId);
   return ok;
+}
+
+/**
+ * A signature as on a permit: the name typed as on the account and the password again. Refuses with
+ * 400 naming each field that is wrong.
+ */
+export async function requireSignature(deps: AppDeps, signer: { id: string; name: string }, input: { password?: string; signedName?: string }) {
+  const details: { path: string; message: string }[] = [];
+  if (!input.signedName || input.signedName.trim().toLowerCase() !== signer.name.trim().toLowerCase())
+    details.push({ path: 'signedName', message: `Type your name exactly as "${signer.name}" to sign.` });
+  if (!(await signerPasswordMatches(deps, signer.id, input.password))) details.push({ path: 'password', message: 'Re-enter your password to sign.' });
+  if (details.length) throw AppError.validation('The signature is not complete.', details);
 }

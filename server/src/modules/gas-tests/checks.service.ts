@@ -1,13 +1,16 @@
 import { QueryTypes } from 'sequelize';
 import { dueTimes } from '@shared/permit/due-times';
-import { checkKindLabels, type CheckData, type CheckKind, type CheckRow } from '@shared/schemas/timed-checks.schema';
+import { workUnderWayStates } from '@shared/permit/states';
+import { isInPlace } from '@shared/isolations/step-rules';
+import { checkKindLabels, type CheckData, type CheckKind } from '@shared/schemas/timed-checks.schema';
+import type { CheckRow, RecordedCheck } from '@shared/types/timed-checks';
 import type { Page } from '@shared/schemas/common.schema';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { appendAudit } from '../audit/audit.service';
 import { notifyChange } from '../isolations/isolation-queries';
-import { auditActor, type CallerContext } from '../permits/permits.service';
+import { auditActor, type CallerContext } from '../../lib/caller';
 import { dueFactsFor, resolveOverdue } from './gas-tests.repository';
 import { checkObservedTime, observationBounds } from '../permits/observed-time';
 import { permitFor, requireWorkOpen } from './permit-access';
@@ -21,13 +24,13 @@ const checkSelect = `
   LEFT JOIN isolation_steps s ON s.tenant_id = c.tenant_id AND s.id = c.isolation_step_id
   LEFT JOIN isolation_points ip ON ip.tenant_id = s.tenant_id AND ip.id = s.point_id`;
 
-export async function listChecks(deps: AppDeps, caller: CallerContext, permitId: string, q: { page: number; pageSize: number; kind?: CheckKind }): Promise<Page<CheckRow>> {
+export async function listChecks(deps: AppDeps, caller: CallerContext, permitId: string, q: { page: number; pageSize: number; kind?: CheckKind }): Promise<Page<CheckRow<Date>>> {
   return withTenant(deps.sequelize, caller.actor.tenantId, async () => {
     await permitFor(deps, caller, permitId, { action: 'read', type: 'Check', what: 'checks of this permit' });
     const r = { tenantId: caller.actor.tenantId, permitId, kind: q.kind ?? null, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
     const where = `c.tenant_id = :tenantId AND c.permit_id = :permitId AND (CAST(:kind AS text) IS NULL OR c.kind = CAST(:kind AS text))`;
     const [{ n }] = await deps.sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM permit_checks c WHERE ${where}`, { replacements: r, type: QueryTypes.SELECT });
-    const items = await deps.sequelize.query<CheckRow>(`${checkSelect} WHERE ${where} ORDER BY c.checked_at DESC, c.id LIMIT :limit OFFSET :offset`, { replacements: r, type: QueryTypes.SELECT });
+    const items = await deps.sequelize.query<CheckRow<Date>>(`${checkSelect} WHERE ${where} ORDER BY c.checked_at DESC, c.id LIMIT :limit OFFSET :offset`, { replacements: r, type: QueryTypes.SELECT });
     return { items, total: n, page: q.page, pageSize: q.pageSize };
   });
 }
@@ -50,13 +53,13 @@ function observationOf(input: CheckData): { ok: boolean; observation: Record<str
 }
 
 /** Records a vent, plug or fire-watch check. A check that finds a problem needs the action taken, and is mailed to the lead and authoriser. */
-export async function recordCheck(deps: AppDeps, caller: CallerContext, permitId: string, input: CheckData): Promise<CheckRow & { permitState: string }> {
+export async function recordCheck(deps: AppDeps, caller: CallerContext, permitId: string, input: CheckData): Promise<RecordedCheck<Date>> {
   const { tenantId } = caller.actor;
   return withTenant(deps.sequelize, tenantId, async () => {
     const permit = await permitFor(deps, caller, permitId, { action: 'record', type: 'Check', what: 'checks' }, { lock: true });
     if (input.kind === 'fire_watch') {
       if (!permit.kinds.includes('hot_work')) throw AppError.unprocessable('This permit has no hot work, so there is no fire watch to record.');
-      requireWorkOpen(permit, 'Fire-watch checks', ['live', 'suspended']);
+      requireWorkOpen(permit, 'Fire-watch checks', workUnderWayStates);
       if (input.isolationStepId) throw AppError.validation('A fire-watch check is not about an isolation step.', [{ path: 'isolationStepId', message: 'Leave this out for a fire watch.' }]);
     } else requireWorkOpen(permit, `${checkKindLabels[input.kind]}s`);
     const bounds = await observationBounds(deps, permit);
@@ -66,7 +69,7 @@ export async function recordCheck(deps: AppDeps, caller: CallerContext, permitId
         replacements: { tenantId, permitId, id: input.isolationStepId },
         type: QueryTypes.SELECT,
       });
-      if (!step || step.kind !== input.kind || !['applied', 'verified'].includes(step.status))
+      if (!step || step.kind !== input.kind || !isInPlace(step.status))
         throw AppError.validation(`Choose a ${input.kind} of this permit's isolation plan that is in place.`, [{ path: 'isolationStepId', message: `Not a ${input.kind} in place on this permit.` }]);
     }
     const { ok, observation, summary } = observationOf(input);
@@ -96,7 +99,7 @@ export async function recordCheck(deps: AppDeps, caller: CallerContext, permitId
         publicUrl: deps.config.PUBLIC_URL,
       });
     await notifyChange(deps.sequelize, { tenantId, kind: 'check', id: permitId, check: input.kind, ok });
-    const [row] = await deps.sequelize.query<CheckRow>(`${checkSelect} WHERE c.tenant_id = :tenantId AND c.id = :id`, { replacements: { tenantId, id }, type: QueryTypes.SELECT });
+    const [row] = await deps.sequelize.query<CheckRow<Date>>(`${checkSelect} WHERE c.tenant_id = :tenantId AND c.id = :id`, { replacements: { tenantId, id }, type: QueryTypes.SELECT });
     return { ...row, permitState: permit.state };
   });
 }

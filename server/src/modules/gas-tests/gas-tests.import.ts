@@ -5,14 +5,16 @@ import { guessMapping, mappingProblems, MAX_IMPORT_ROWS, readRows, type ColumnMa
 import { instrumentStatus } from '@shared/gas-tests/instrument-status';
 import { assessOptionsFor } from '@shared/gas-tests/permit-limits';
 import { siteDay } from '@shared/time/zone';
-import type { GasImportResult, GasTestPlace } from '@shared/schemas/gas-tests.schema';
+import { liveStates } from '@shared/permit/states';
+import type { GasTestPlace } from '@shared/schemas/gas-tests.schema';
+import type { GasImportResult } from '@shared/types/gas-tests';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { appendAudit } from '../audit/audit.service';
-import { holdsQualification } from '../admin/admin.service';
+import { holdsQualification } from '../../lib/qualifications';
 import { notifyChange } from '../isolations/isolation-queries';
-import { auditActor, type CallerContext } from '../permits/permits.service';
+import { auditActor, type CallerContext } from '../../lib/caller';
 import { limitsForPermit, liveSince, resolveOverdue } from './gas-tests.repository';
 import { findInstrument } from './instruments.service';
 import { isEnteredLate, observationBounds, observedTimeProblem } from '../permits/observed-time';
@@ -126,7 +128,7 @@ export async function importGasLog(deps: AppDeps, caller: CallerContext, permitI
 
     // Only readings taken during the present spell of live work stop it; an old log is history.
     let state = permit.state;
-    const since = permit.state === 'live' ? await liveSince(deps.sequelize, tenantId, permitId) : null;
+    const since = liveStates.includes(permit.state) ? await liveSince(deps.sequelize, tenantId, permitId) : null;
     const firstLiveFail = since ? failing.filter((r) => r.testedAt.getTime() >= since.getTime()).sort((a, b) => a.testedAt.getTime() - b.testedAt.getTime())[0] : undefined;
     if (firstLiveFail) {
       state = (await suspendForFailure(deps, permit, firstLiveFail.assessment, { place: input.place, testedAt: firstLiveFail.testedAt, tester: caller.user.name, timeZone: settings.timeZone })).state;

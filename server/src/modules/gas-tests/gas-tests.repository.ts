@@ -1,10 +1,13 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import type { DueFacts } from '@shared/permit/due-times';
-import type { GasTestRow, PermitGasLimitsInput, PermitLimitsView } from '@shared/schemas/gas-tests.schema';
+import { liveStates } from '@shared/permit/states';
+import { inPlaceStatuses } from '@shared/isolations/step-rules';
+import type { PermitGasLimitsInput } from '@shared/schemas/gas-tests.schema';
+import type { GasTestRow, PermitLimitsView } from '@shared/types/gas-tests';
 import type { Page } from '@shared/schemas/common.schema';
 import { assessOptionsFor, permitLimits } from '@shared/gas-tests/permit-limits';
 import type { TenantSettings } from '@shared/schemas/tenant-settings.schema';
-import { tenantAtmosphereLimits } from '../calc/calc.service';
+import { tenantAtmosphereLimits } from '../../lib/atmosphere-limits';
 import type { PermitRow } from '../permits/permits.repository';
 
 // Queries of the gas-test feature. Call them inside withTenant.
@@ -20,27 +23,27 @@ export const gasTestSelect = `
   JOIN users u ON u.id = g.tester_user_id
   LEFT JOIN instruments i ON i.tenant_id = g.tenant_id AND i.id = g.instrument_id`;
 
-export async function listGasTests(sequelize: Sequelize, tenantId: string, permitId: string, q: { page: number; pageSize: number; dir: 'asc' | 'desc' }): Promise<Page<GasTestRow>> {
+export async function listGasTests(sequelize: Sequelize, tenantId: string, permitId: string, q: { page: number; pageSize: number; dir: 'asc' | 'desc' }): Promise<Page<GasTestRow<Date>>> {
   const r = { tenantId, permitId, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
   const { n } = (await one<{ n: number }>(sequelize, `SELECT count(*)::int AS n FROM gas_tests WHERE tenant_id = :tenantId AND permit_id = :permitId`, r))!;
   const dir = q.dir === 'asc' ? 'ASC' : 'DESC';
-  const items = await sequelize.query<GasTestRow>(`${gasTestSelect} WHERE g.tenant_id = :tenantId AND g.permit_id = :permitId ORDER BY g.tested_at ${dir}, g.created_at ${dir}, g.id LIMIT :limit OFFSET :offset`, {
+  const items = await sequelize.query<GasTestRow<Date>>(`${gasTestSelect} WHERE g.tenant_id = :tenantId AND g.permit_id = :permitId ORDER BY g.tested_at ${dir}, g.created_at ${dir}, g.id LIMIT :limit OFFSET :offset`, {
     replacements: r,
     type: QueryTypes.SELECT,
   });
   return { items, total: n, page: q.page, pageSize: q.pageSize };
 }
 
-export async function findGasTest(sequelize: Sequelize, tenantId: string, id: string): Promise<GasTestRow> {
-  return (await one<GasTestRow>(sequelize, `${gasTestSelect} WHERE g.tenant_id = :tenantId AND g.id = :id`, { tenantId, id }))!;
+export async function findGasTest(sequelize: Sequelize, tenantId: string, id: string): Promise<GasTestRow<Date>> {
+  return (await one<GasTestRow<Date>>(sequelize, `${gasTestSelect} WHERE g.tenant_id = :tenantId AND g.id = :id`, { tenantId, id }))!;
 }
 
 /** When work last started or resumed, from the audit trail (the permit row keeps no such column). */
 export async function liveSince(sequelize: Sequelize, tenantId: string, permitId: string): Promise<Date | null> {
   const row = await one<{ at: Date | null }>(
     sequelize,
-    `SELECT max(occurred_at) AS at FROM audit_events WHERE tenant_id = :tenantId AND permit_id = :permitId AND action IN ('start_work', 'resume') AND to_state = 'live'`,
-    { tenantId, permitId },
+    `SELECT max(occurred_at) AS at FROM audit_events WHERE tenant_id = :tenantId AND permit_id = :permitId AND action IN ('start_work', 'resume') AND to_state IN (:live)`,
+    { tenantId, permitId, live: liveStates },
   );
   return row?.at ? new Date(row.at) : null;
 }
@@ -82,10 +85,10 @@ export async function dueFactsFor(sequelize: Sequelize, permit: PermitRow, setti
   const gas = await gasHistory(sequelize, permit.tenantId, permit.id);
   const iso = (await one<{ vents: number; plugs: number }>(
     sequelize,
-    `SELECT count(*) FILTER (WHERE kind = 'vent' AND status IN ('applied','verified'))::int AS vents,
-            count(*) FILTER (WHERE kind = 'plug' AND status IN ('applied','verified'))::int AS plugs
+    `SELECT count(*) FILTER (WHERE kind = 'vent' AND status IN (:inPlace))::int AS vents,
+            count(*) FILTER (WHERE kind = 'plug' AND status IN (:inPlace))::int AS plugs
      FROM isolation_steps WHERE tenant_id = :tenantId AND permit_id = :permitId`,
-    r,
+    { ...r, inPlace: inPlaceStatuses },
   ))!;
   const checks = (await one<{ vent: Date | null; plug: Date | null; fire: Date | null }>(
     sequelize,

@@ -31,7 +31,7 @@ import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
 import { idempotentBody } from '../../middleware/idempotency';
 import { clientIp } from '../../lib/client-ip';
-import type { CallerContext } from '../permits/permits.service';
+import type { CallerContext } from '../../lib/caller';
 import { createInstrument, listInstruments, updateInstrument } from './instruments.service';
 import { listGasTestsFor, recordGasTest, setPermitLimits } from './gas-tests.service';
 import { importGasLog } from './gas-tests.import';

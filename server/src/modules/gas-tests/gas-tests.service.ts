@@ -4,17 +4,19 @@ import { assessOptionsFor, checkPermitLimitRequest, permitLimits } from '@shared
 import { instrumentStatus } from '@shared/gas-tests/instrument-status';
 import { failureSummary } from '@shared/gas-tests/verdict-text';
 import { siteDay, siteTimeOfDay } from '@shared/time/zone';
-import { gasTestPlaceLabels, type GasTestData, type GasTestPlace, type GasTestPurpose, type GasTestResult, type PermitGasLimitsInput } from '@shared/schemas/gas-tests.schema';
-import { finishedStates } from '@shared/permit/states';
+import { gasTestPlaceLabels, type GasTestData, type GasTestPlace, type GasTestPurpose, type PermitGasLimitsInput } from '@shared/schemas/gas-tests.schema';
+import type { GasTestResult } from '@shared/types/gas-tests';
+import { editableStates, limitsFixedStates, liveStates, workUnderWayStates } from '@shared/permit/states';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { appendAudit } from '../audit/audit.service';
-import { qualificationOnSiteDay } from '../admin/admin.service';
+import { qualificationOnSiteDay } from '../../lib/qualifications';
 import { loadTenantSettings } from '../tenants/tenant-settings';
-import { tenantAtmosphereLimits } from '../calc/calc.service';
+import { tenantAtmosphereLimits } from '../../lib/atmosphere-limits';
 import { notifyChange } from '../isolations/isolation-queries';
-import { applyTransition, auditActor, type CallerContext } from '../permits/permits.service';
+import { auditActor, type CallerContext } from '../../lib/caller';
+import { applyTransition } from '../permits/permits.service';
 import type { PermitRow } from '../permits/permits.repository';
 import { findGasTest, limitsForPermit, listGasTests, resolveOverdue } from './gas-tests.repository';
 import { findInstrument, type InstrumentRecord } from './instruments.service';
@@ -63,7 +65,7 @@ export async function suspendForFailure(deps: AppDeps, permit: PermitRow, assess
   return applyTransition(deps, permit, 'suspend', { reason }, { system: 'failing gas test' });
 }
 
-export async function recordGasTest(deps: AppDeps, caller: CallerContext, permitId: string, input: GasTestData): Promise<GasTestResult> {
+export async function recordGasTest(deps: AppDeps, caller: CallerContext, permitId: string, input: GasTestData): Promise<GasTestResult<Date>> {
   const { tenantId } = caller.actor;
   const testedAt = new Date(input.testedAt);
   return withTenant(deps.sequelize, tenantId, async () => {
@@ -76,7 +78,7 @@ export async function recordGasTest(deps: AppDeps, caller: CallerContext, permit
     const { limits } = await limitsForPermit(deps.sequelize, permit);
     const { others, ...gases } = input.readings;
     const assessment = assessAtmosphere(gases, limits, assessOptionsFor(permit.kinds));
-    const purpose: GasTestPurpose = input.purpose ?? (['live', 'suspended'].includes(permit.state) ? 'repeat' : 'before_work');
+    const purpose: GasTestPurpose = input.purpose ?? (workUnderWayStates.includes(permit.state) ? 'repeat' : 'before_work');
     const now = deps.clock.now();
     const [{ id }] = await deps.sequelize.query<{ id: string }>(
       `INSERT INTO gas_tests (tenant_id, permit_id, tester_user_id, instrument_id, place, place_note, purpose, tested_at, readings, verdict, assessment, source, notes, entered_late, created_at)
@@ -101,7 +103,7 @@ export async function recordGasTest(deps: AppDeps, caller: CallerContext, permit
     });
     let state = permit.state;
     if (assessment.verdict === 'pass') await resolveOverdue(deps.sequelize, tenantId, permitId, 'gas_test', now);
-    if (assessment.verdict === 'fail' && permit.state === 'live') {
+    if (assessment.verdict === 'fail' && liveStates.includes(permit.state)) {
       state = (await suspendForFailure(deps, permit, assessment, { place: input.place, testedAt, tester: caller.user.name, timeZone: bounds.timeZone })).state;
     } else await notifyChange(deps.sequelize, { tenantId, kind: 'gas_test', id: permitId, verdict: assessment.verdict });
     return { test: await findGasTest(deps.sequelize, tenantId, id), verdict: assessment.verdict, assessment, permitState: state, suspended: state !== permit.state };
@@ -116,10 +118,10 @@ export async function setPermitLimits(deps: AppDeps, caller: CallerContext, perm
   const { tenantId } = caller.actor;
   return withTenant(deps.sequelize, tenantId, async () => {
     const permit = await permitFor(deps, caller, permitId, { action: 'update', type: 'Permit', what: 'permit' }, { lock: true });
-    if (finishedStates.includes(permit.state) || permit.state === 'expired') throw AppError.unprocessable('The limits of a finished permit cannot change.');
+    if (limitsFixedStates.includes(permit.state)) throw AppError.unprocessable('The limits of a finished permit cannot change.');
     const { limits: tenant } = await tenantAtmosphereLimits(deps.sequelize, tenantId);
     const current = await limitsForPermit(deps.sequelize, permit);
-    const floor = permit.state === 'draft' ? tenant : current.limits;
+    const floor = editableStates.includes(permit.state) ? tenant : current.limits;
     checkPermitLimitRequest(tenant, floor, input, permit.number);
     const empty = Object.values(input).every((v) => !v || Object.values(v).every((x) => x === undefined));
     const now = deps.clock.now();

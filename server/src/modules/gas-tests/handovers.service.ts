@@ -1,9 +1,12 @@
 import { QueryTypes } from 'sequelize';
 import { dueTimes, timedCheckLabels } from '@shared/permit/due-times';
 import { siteTimeOfDay } from '@shared/time/zone';
+import { workUnderWayStates } from '@shared/permit/states';
 import { GAS_SHORT } from '@shared/gas-tests/verdict-text';
-import { gasTestPlaceLabels, type GasTestRow } from '@shared/schemas/gas-tests.schema';
-import type { HandoverAcceptInput, HandoverCreateInput, HandoverRow } from '@shared/schemas/timed-checks.schema';
+import { gasTestPlaceLabels } from '@shared/schemas/gas-tests.schema';
+import type { HandoverAcceptInput, HandoverCreateInput } from '@shared/schemas/timed-checks.schema';
+import type { GasTestRow } from '@shared/types/gas-tests';
+import type { AcceptedHandover, HandoverRow } from '@shared/types/timed-checks';
 import type { Page } from '@shared/schemas/common.schema';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
@@ -12,7 +15,7 @@ import { signerPasswordMatches } from '../auth/signature-password';
 import { appendAudit } from '../audit/audit.service';
 import { loadTenantSettings } from '../tenants/tenant-settings';
 import { notifyChange } from '../isolations/isolation-queries';
-import { auditActor, type CallerContext } from '../permits/permits.service';
+import { auditActor, type CallerContext } from '../../lib/caller';
 import type { PermitRow } from '../permits/permits.repository';
 import { dueFactsFor, gasTestSelect } from './gas-tests.repository';
 import { permitFor, requireWorkOpen } from './permit-access';
@@ -31,14 +34,12 @@ async function checkSignature(deps: AppDeps, caller: CallerContext, input: { pas
   if (details.length) throw AppError.validation('The signature is not complete.', details);
 }
 
-const handoverStates = ['live', 'suspended'] as const;
-
-export async function listHandovers(deps: AppDeps, caller: CallerContext, permitId: string, q: { page: number; pageSize: number }): Promise<Page<HandoverRow>> {
+export async function listHandovers(deps: AppDeps, caller: CallerContext, permitId: string, q: { page: number; pageSize: number }): Promise<Page<HandoverRow<Date>>> {
   return withTenant(deps.sequelize, caller.actor.tenantId, async () => {
     await permitFor(deps, caller, permitId, { action: 'read', type: 'Permit', what: 'permit' });
     const r = { tenantId: caller.actor.tenantId, permitId, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
     const [{ n }] = await deps.sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM permit_handovers WHERE tenant_id = :tenantId AND permit_id = :permitId`, { replacements: r, type: QueryTypes.SELECT });
-    const items = await deps.sequelize.query<HandoverRow>(`${handoverSelect} WHERE h.tenant_id = :tenantId AND h.permit_id = :permitId ORDER BY h.created_at DESC, h.id LIMIT :limit OFFSET :offset`, {
+    const items = await deps.sequelize.query<HandoverRow<Date>>(`${handoverSelect} WHERE h.tenant_id = :tenantId AND h.permit_id = :permitId ORDER BY h.created_at DESC, h.id LIMIT :limit OFFSET :offset`, {
       replacements: r,
       type: QueryTypes.SELECT,
     });
@@ -49,7 +50,7 @@ export async function listHandovers(deps: AppDeps, caller: CallerContext, permit
 /** Latest readings and what is due, in a few lines written when the outgoing lead signs. */
 async function readingsSummary(deps: AppDeps, permit: PermitRow): Promise<string[]> {
   const settings = await loadTenantSettings(deps.sequelize, permit.tenantId);
-  const tests = await deps.sequelize.query<GasTestRow>(`${gasTestSelect} WHERE g.tenant_id = :tenantId AND g.permit_id = :permitId ORDER BY g.tested_at DESC LIMIT 3`, {
+  const tests = await deps.sequelize.query<GasTestRow<Date>>(`${gasTestSelect} WHERE g.tenant_id = :tenantId AND g.permit_id = :permitId ORDER BY g.tested_at DESC LIMIT 3`, {
     replacements: { tenantId: permit.tenantId, permitId: permit.id },
     type: QueryTypes.SELECT,
   });
@@ -67,13 +68,13 @@ async function readingsSummary(deps: AppDeps, permit: PermitRow): Promise<string
   return lines;
 }
 
-export async function createHandover(deps: AppDeps, caller: CallerContext, permitId: string, input: HandoverCreateInput): Promise<HandoverRow> {
+export async function createHandover(deps: AppDeps, caller: CallerContext, permitId: string, input: HandoverCreateInput): Promise<HandoverRow<Date>> {
   const { tenantId } = caller.actor;
   return withTenant(deps.sequelize, tenantId, async () => {
     const permit = await permitFor(deps, caller, permitId, { action: 'handover', type: 'Permit', what: 'permit' }, { lock: true });
     // After the role check, so someone who may not hand over hears that, not "re-enter your password".
     await checkSignature(deps, caller, input);
-    requireWorkOpen(permit, 'A shift handover', handoverStates);
+    requireWorkOpen(permit, 'A shift handover', workUnderWayStates);
     const holder = permit.holderUserId ?? permit.contractorLeadUserId;
     if (holder !== caller.user.id) throw AppError.unprocessable(`Only the lead who holds the permit now${permit.holderName ? ` (${permit.holderName})` : ''} can hand it over.`);
     if (input.toUserId === caller.user.id) throw AppError.validation('Hand over to someone else.', [{ path: 'toUserId', message: 'Choose the incoming lead.' }]);
@@ -94,7 +95,7 @@ export async function createHandover(deps: AppDeps, caller: CallerContext, permi
       tenantId, entityType: 'handover', entityId: id, permitId, action: 'handover_signed_out', actor: auditActor(caller, 'handover'), ip: caller.ip,
       data: { toUserId: input.toUserId, signedName: caller.user.name, passwordConfirmed: true }, occurredAt: now,
     });
-    const [row] = await deps.sequelize.query<HandoverRow>(`${handoverSelect} WHERE h.tenant_id = :tenantId AND h.id = :id`, { replacements: { tenantId, id }, type: QueryTypes.SELECT });
+    const [row] = await deps.sequelize.query<HandoverRow<Date>>(`${handoverSelect} WHERE h.tenant_id = :tenantId AND h.id = :id`, { replacements: { tenantId, id }, type: QueryTypes.SELECT });
     const [incoming] = await deps.sequelize.query<{ email: string }>(`SELECT email FROM users WHERE id = :id`, { replacements: { id: input.toUserId }, type: QueryTypes.SELECT });
     await queueAlert(deps.sequelize, permit, {
       key: `handover:${tenantId}:${id}`, subject: 'shift handover to accept', to: [incoming.email], publicUrl: deps.config.PUBLIC_URL,
@@ -105,7 +106,7 @@ export async function createHandover(deps: AppDeps, caller: CallerContext, permi
   });
 }
 
-export async function acceptHandover(deps: AppDeps, caller: CallerContext, permitId: string, handoverId: string, input: HandoverAcceptInput): Promise<HandoverRow & { holderUserId: string; holderName: string }> {
+export async function acceptHandover(deps: AppDeps, caller: CallerContext, permitId: string, handoverId: string, input: HandoverAcceptInput): Promise<AcceptedHandover<Date>> {
   const { tenantId } = caller.actor;
   return withTenant(deps.sequelize, tenantId, async () => {
     const permit = await permitFor(deps, caller, permitId, { action: 'handover', type: 'Permit', what: 'permit' }, { lock: true });
@@ -117,7 +118,7 @@ export async function acceptHandover(deps: AppDeps, caller: CallerContext, permi
     if (!handover) throw AppError.notFound('handover');
     if (handover.status !== 'pending') throw AppError.conflict(`This handover is ${handover.status} and can no longer be accepted.`);
     if (handover.to_user_id !== caller.user.id) throw AppError.forbidden('This handover names another incoming lead.');
-    requireWorkOpen(permit, 'A shift handover', handoverStates);
+    requireWorkOpen(permit, 'A shift handover', workUnderWayStates);
     const lead = await deps.sequelize.query(`SELECT 1 FROM memberships WHERE tenant_id = :tenantId AND user_id = :userId AND organisation_id = :org AND role = 'contractor_lead'`, {
       replacements: { tenantId, userId: caller.user.id, org: permit.contractorOrganisationId },
       type: QueryTypes.SELECT,
@@ -135,7 +136,7 @@ export async function acceptHandover(deps: AppDeps, caller: CallerContext, permi
       data: { handoverId, fromUserId: handover.from_user_id, toUserId: caller.user.id, signedName: caller.user.name, passwordConfirmed: true }, occurredAt: now,
     });
     await notifyChange(deps.sequelize, { tenantId, kind: 'permit', id: permitId, state: permit.state, holder: caller.user.name });
-    const [row] = await deps.sequelize.query<HandoverRow>(`${handoverSelect} WHERE h.tenant_id = :tenantId AND h.id = :id`, { replacements: { tenantId, id: handoverId }, type: QueryTypes.SELECT });
+    const [row] = await deps.sequelize.query<HandoverRow<Date>>(`${handoverSelect} WHERE h.tenant_id = :tenantId AND h.id = :id`, { replacements: { tenantId, id: handoverId }, type: QueryTypes.SELECT });
     return { ...row, holderUserId: caller.user.id, holderName: caller.user.name };
   });
 }

@@ -1,13 +1,13 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
-import type { InstrumentInput, InstrumentPatch, InstrumentRow } from '@shared/schemas/gas-tests.schema';
-import type { Page } from '@shared/schemas/common.schema';
+import type { InstrumentInput, InstrumentPatch } from '@shared/schemas/gas-tests.schema';
+import type { InstrumentList, InstrumentRow } from '@shared/types/gas-tests';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { authorizeRecord, authorizeType } from '../../lib/authorize';
 import { appendAudit } from '../audit/audit.service';
 import { loadTenantSettings } from '../tenants/tenant-settings';
-import { auditActor, type CallerContext } from '../permits/permits.service';
+import { auditActor, type CallerContext } from '../../lib/caller';
 
 const instrumentSelect = `
   SELECT id, tenant_id AS "tenantId", model, serial, last_bump_test_at AS "lastBumpTestAt",
@@ -15,7 +15,8 @@ const instrumentSelect = `
          retired_at AS "retiredAt"
   FROM instruments`;
 
-export type InstrumentRecord = InstrumentRow & { tenantId: string };
+/** A monitor as the server reads it: the shared row with its moments as Dates. */
+export type InstrumentRecord = InstrumentRow<Date>;
 
 export async function findInstrument(sequelize: Sequelize, tenantId: string, id: string, lock = false): Promise<InstrumentRecord | null> {
   const rows = await sequelize.query<InstrumentRecord>(`${instrumentSelect} WHERE tenant_id = :tenantId AND id = :id${lock ? ' FOR UPDATE' : ''}`, {
@@ -29,7 +30,7 @@ export async function listInstruments(
   deps: AppDeps,
   caller: CallerContext,
   q: { page: number; pageSize: number; includeRetired?: 'true' | 'false' },
-): Promise<Page<InstrumentRecord> & { requireDailyBumpTest: boolean }> {
+): Promise<InstrumentList<Date>> {
   const { tenantId } = caller.actor;
   authorizeType(caller.ability, 'read', 'Instrument', { tenantId }, 'instruments');
   return withTenant(deps.sequelize, tenantId, async () => {
@@ -51,7 +52,7 @@ function refuseFutureBump(deps: AppDeps, at: string | null | undefined) {
     throw AppError.validation('A bump test cannot be recorded in the future.', [{ path: 'lastBumpTestAt', message: 'Give the time the bump test was done.' }]);
 }
 
-export async function createInstrument(deps: AppDeps, caller: CallerContext, input: InstrumentInput) {
+export async function createInstrument(deps: AppDeps, caller: CallerContext, input: InstrumentInput): Promise<InstrumentRecord> {
   const { tenantId } = caller.actor;
   authorizeType(caller.ability, 'create', 'Instrument', { tenantId }, 'instruments');
   refuseFutureBump(deps, input.lastBumpTestAt);
@@ -77,7 +78,7 @@ export async function createInstrument(deps: AppDeps, caller: CallerContext, inp
 
 const columns: Record<string, string> = { model: 'model', serial: 'serial', lastBumpTestAt: 'last_bump_test_at', lastCalibratedOn: 'last_calibrated_on', calibrationDueOn: 'calibration_due_on' };
 
-export async function updateInstrument(deps: AppDeps, caller: CallerContext, id: string, input: InstrumentPatch) {
+export async function updateInstrument(deps: AppDeps, caller: CallerContext, id: string, input: InstrumentPatch): Promise<InstrumentRecord> {
   const { tenantId } = caller.actor;
   refuseFutureBump(deps, input.lastBumpTestAt);
   return withTenant(deps.sequelize, tenantId, async () => {

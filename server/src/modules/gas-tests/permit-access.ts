@@ -1,14 +1,10 @@
 import type { Action, SubjectName } from '@shared/abilities/define-ability';
-import type { PermitState } from '@shared/permit/states';
-import { permitStateLabels } from '@shared/permit/states';
+import { permitStateLabels, workOpenStates, type PermitState } from '@shared/permit/states';
 import type { AppDeps } from '../../deps';
 import { AppError } from '../../errors/app-error';
 import { authorizeRecord, authorizeType } from '../../lib/authorize';
 import { findPermit, type PermitRow } from '../permits/permits.repository';
-import type { CallerContext } from '../permits/permits.service';
-
-/** States in which the crew is on the job: tests and checks may be recorded. */
-export const workOpenStates: readonly PermitState[] = ['accepted', 'isolated', 'live', 'suspended'];
+import type { CallerContext } from '../../lib/caller';
 
 /**
  * Loads a permit the caller may read (another tenant's, or one they may not see, is a 404), then

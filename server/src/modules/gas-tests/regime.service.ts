@@ -1,10 +1,10 @@
 import { dueTimes, nextDue, timedCheckLabels, type DueTime } from '@shared/permit/due-times';
 import { fireWatchEnd } from '@shared/calc';
-import type { DueTimeView, PermitRegime } from '@shared/schemas/timed-checks.schema';
+import type { DueTimeView, PermitRegime } from '@shared/types/timed-checks';
 import type { TenantSettings } from '@shared/schemas/tenant-settings.schema';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
-import type { CallerContext } from '../permits/permits.service';
+import type { CallerContext } from '../../lib/caller';
 import { dueFactsFor, gasHistory, limitsForPermit } from './gas-tests.repository';
 import { loadTenantSettings } from '../tenants/tenant-settings';
 import { permitFor } from './permit-access';

@@ -1,5 +1,7 @@
 import { QueryTypes } from 'sequelize';
 import { dueTimes, timedCheckLabels, type DueTime } from '@shared/permit/due-times';
+import { statesFrom } from '@shared/permit/state-machine';
+import { liveStates, workUnderWayStates } from '@shared/permit/states';
 import { siteDay, siteTimeOfDay } from '@shared/time/zone';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
@@ -31,7 +33,8 @@ export async function runScheduler(deps: AppDeps): Promise<{ expired: number; ov
   return { expired, overdue };
 }
 
-const expirable = `('approved', 'accepted', 'isolated', 'live')`;
+// The states the SQL below names, from the state machine and the shared lists.
+const states = { expirable: statesFrom('expire'), live: liveStates, underWay: workUnderWayStates };
 
 async function eachPermit(deps: AppDeps, tenantId: string, ids: string[], lockWhere: string, fn: (permit: PermitRow) => Promise<number>) {
   let done = 0;
@@ -40,7 +43,7 @@ async function eachPermit(deps: AppDeps, tenantId: string, ids: string[], lockWh
       done += await withTenant(deps.sequelize, tenantId, async () => {
         const now = deps.clock.now();
         const locked = await deps.sequelize.query(`SELECT id FROM permits p WHERE tenant_id = :tenantId AND id = :id AND ${lockWhere} FOR UPDATE SKIP LOCKED`, {
-          replacements: { tenantId, id, now },
+          replacements: { tenantId, id, now, ...states },
           type: QueryTypes.SELECT,
         });
         if (!locked.length) return 0;
@@ -54,9 +57,9 @@ async function eachPermit(deps: AppDeps, tenantId: string, ids: string[], lockWh
 }
 
 async function expirePermits(deps: AppDeps, tenantId: string): Promise<number> {
-  const where = `state IN ${expirable} AND valid_to <= :now`;
+  const where = `state IN (:expirable) AND valid_to <= :now`;
   const ids = await withTenant(deps.sequelize, tenantId, () =>
-    deps.sequelize.query<{ id: string }>(`SELECT id FROM permits WHERE tenant_id = :tenantId AND ${where} ORDER BY valid_to`, { replacements: { tenantId, now: deps.clock.now() }, type: QueryTypes.SELECT }),
+    deps.sequelize.query<{ id: string }>(`SELECT id FROM permits WHERE tenant_id = :tenantId AND ${where} ORDER BY valid_to`, { replacements: { tenantId, now: deps.clock.now(), ...states }, type: QueryTypes.SELECT }),
   );
   return eachPermit(deps, tenantId, ids.map((r) => r.id), where, async (permit) => {
     const { timeZone } = await loadTenantSettings(deps.sequelize, tenantId);
@@ -67,7 +70,7 @@ async function expirePermits(deps: AppDeps, tenantId: string): Promise<number> {
 }
 
 // Live permits (gas tests, vents, plugs) and hot-work permits whose fire watch may still be running.
-const watched = `(p.state = 'live' OR (p.state = 'suspended' AND 'hot_work' = ANY (p.kinds) AND p.hot_work_ended_at IS NOT NULL))`;
+const watched = `(p.state IN (:live) OR (p.state IN (:underWay) AND 'hot_work' = ANY (p.kinds) AND p.hot_work_ended_at IS NOT NULL))`;
 
 async function markOverdue(deps: AppDeps, tenantId: string): Promise<number> {
   const ids = await withTenant(deps.sequelize, tenantId, async () => {
@@ -75,9 +78,9 @@ async function markOverdue(deps: AppDeps, tenantId: string): Promise<number> {
     await deps.sequelize.query(
       `UPDATE overdue_alerts a SET resolved_at = :now FROM permits p
        WHERE a.tenant_id = :tenantId AND a.resolved_at IS NULL AND p.tenant_id = a.tenant_id AND p.id = a.permit_id AND NOT ${watched}`,
-      { replacements: { tenantId, now: deps.clock.now() } },
+      { replacements: { tenantId, now: deps.clock.now(), ...states } },
     );
-    return deps.sequelize.query<{ id: string }>(`SELECT p.id FROM permits p WHERE p.tenant_id = :tenantId AND ${watched} ORDER BY p.number`, { replacements: { tenantId }, type: QueryTypes.SELECT });
+    return deps.sequelize.query<{ id: string }>(`SELECT p.id FROM permits p WHERE p.tenant_id = :tenantId AND ${watched} ORDER BY p.number`, { replacements: { tenantId, ...states }, type: QueryTypes.SELECT });
   });
   return eachPermit(deps, tenantId, ids.map((r) => r.id), watched, async (permit) => {
     const settings = await loadTenantSettings(deps.sequelize, tenantId);

@@ -5,7 +5,8 @@ import { QueryTypes } from 'sequelize';
 import type { Request, Response } from 'express';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
-import { boardItemsJson, type BoardQuery } from './board.service';
+import type { BoardQuery } from '@shared/schemas/isolation.schema';
+import { boardItemsJson } from './board.service';
 
 const gzipAsync = promisify(gzip);
 

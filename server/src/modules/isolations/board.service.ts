@@ -1,15 +1,8 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
-import { z } from 'zod';
+import type { BoardQuery } from '@shared/schemas/isolation.schema';
 import type { BoardItem } from '@shared/types/board';
-import { uuidSchema } from '@shared/schemas/common.schema';
-
-export const boardQuerySchema = z.strictObject({
-  pipelineId: uuidSchema.optional(),
-  permitState: z.enum(['accepted', 'isolated', 'live', 'suspended', 'work_complete', 'cancelled']).optional(),
-});
-export type BoardQuery = z.infer<typeof boardQuerySchema>;
-
-export type { BoardItem } from '@shared/types/board';
+import { liveStates } from '@shared/permit/states';
+import { inPlaceStatuses } from '@shared/isolations/step-rules';
 
 // Timestamps written by PostgreSQL exactly as JSON.stringify writes a JS Date (UTC, milliseconds, "Z").
 const isoUtc = (col: string) => `to_char(${col} AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`;
@@ -19,21 +12,22 @@ const isoUtc = (col: string) => `to_char(${col} AT TIME ZONE 'UTC', 'YYYY-MM-DD"
  * position. `permits` lists every permit holding the same point (group lockout). One query, and
  * PostgreSQL writes the JSON array itself: with thousands of rows, parsing them into objects only to
  * serialise them again was most of the cost of the board in Node.
- * A live permit that has never had a passing gas test is due one now (the clock's now, so tests can move it).
+ * The next gas test is `nextGasTestDue` (shared/permit/due-times.ts) written in SQL, its states passed in:
+ * a live permit that has never had a passing gas test is due one now (the clock's now, so tests can move it).
  */
 export async function boardItemsJson(sequelize: Sequelize, tenantId: string, q: BoardQuery, now: Date): Promise<{ json: string; total: number }> {
   // Unfiltered, the steps in place are all the holders there are; filtered, the points' other holders are looked up.
   const filtered = Boolean(q.pipelineId || q.permitState);
   const holdersOfLivePoints = `(SELECT s.point_id, s.permit_id, p.number, p.state AS permit_state
        FROM isolation_steps s JOIN permits p ON p.tenant_id = s.tenant_id AND p.id = s.permit_id
-       WHERE s.tenant_id = :tenantId AND s.status IN ('applied','verified') AND s.point_id IN (SELECT point_id FROM live WHERE point_id IS NOT NULL))`;
+       WHERE s.tenant_id = :tenantId AND s.status IN (:inPlace) AND s.point_id IN (SELECT point_id FROM live WHERE point_id IS NOT NULL))`;
   const [row] = await sequelize.query<{ json: string; total: number }>(
     `WITH live AS (
        SELECT s.id, s.permit_id, s.point_id, s.status, s.kind, s.condition, s.lock_id, s.tag_id, s.applied_by, s.applied_at, s.verified_by, s.verified_at,
               s.remotely_operable, s.remote_ack_at, s.control_room_ack_applied_at, s.plug_as_built, s.temp_label, s.temp_position,
               p.number, p.state AS permit_state, p.pipeline_id, p.gas_test_interval_minutes, p.from_position::float8 AS work_from, p.to_position::float8 AS work_to
        FROM isolation_steps s JOIN permits p ON p.tenant_id = s.tenant_id AND p.id = s.permit_id
-       WHERE s.tenant_id = :tenantId AND s.status IN ('applied','verified')
+       WHERE s.tenant_id = :tenantId AND s.status IN (:inPlace)
          AND (CAST(:pipelineId AS uuid) IS NULL OR p.pipeline_id = CAST(:pipelineId AS uuid))
          AND (CAST(:permitState AS text) IS NULL OR p.state = CAST(:permitState AS text))
      ), holders AS (
@@ -67,11 +61,11 @@ export async function boardItemsJson(sequelize: Sequelize, tenantId: string, q: 
               'plugBuiltAt', plug_as_built->>'builtAt',
               'permit', jsonb_build_object('id', permit_id, 'number', number, 'state', permit_state, 'fromPosition', work_from, 'toPosition', work_to),
               'permits', coalesce(holders, jsonb_build_array(jsonb_build_object('id', permit_id, 'number', number, 'state', permit_state))),
-              'nextGasTestDue', CASE WHEN permit_state = 'live'
+              'nextGasTestDue', CASE WHEN permit_state IN (:live)
                 THEN ${isoUtc('coalesce(last_pass + make_interval(mins => gas_test_interval_minutes), CAST(:now AS timestamptz))')} END
             ) ORDER BY pipeline_name, pos, number)::text, '[]') AS json
      FROM rows`,
-    { replacements: { tenantId, pipelineId: q.pipelineId ?? null, permitState: q.permitState ?? null, now }, type: QueryTypes.SELECT },
+    { replacements: { tenantId, pipelineId: q.pipelineId ?? null, permitState: q.permitState ?? null, now, inPlace: inPlaceStatuses, live: liveStates }, type: QueryTypes.SELECT },
   );
   return row;
 }

@@ -1,45 +1,8 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
+import type { IsolationStep } from '@shared/types/isolations';
 
-export interface StepRow {
-  id: string;
-  permitId: string;
-  seq: number;
-  pointId: string | null;
-  label: string;
-  position: number;
-  kind: string;
-  condition: string;
-  status: 'planned' | 'applied' | 'verified' | 'removed';
-  remotelyOperable: boolean;
-  lockId: string | null;
-  lockNumber: string | null;
-  tagId: string | null;
-  tagNumber: string | null;
-  appliedBy: string | null;
-  appliedByName: string | null;
-  appliedAt: Date | null;
-  /** The applied time was written down after the event. */
-  appliedEnteredLate: boolean;
-  photoAttachmentId: string | null;
-  remoteAckAt: Date | null;
-  remoteAckByName: string | null;
-  verifiedBy: string | null;
-  verifiedByName: string | null;
-  verifiedAt: Date | null;
-  verificationMethod: string | null;
-  verificationReading: number | null;
-  verificationUnit: string | null;
-  verificationNotes: string | null;
-  removedByName: string | null;
-  removedAt: Date | null;
-  removalNote: string | null;
-  controlRoomAckAppliedAt: Date | null;
-  controlRoomAckRemovedAt: Date | null;
-  plugDiameterIn: number | null;
-  plugAsBuilt: { bentoniteLb: number; waterLb: number; lengthIn: number; builtAt: string } | null;
-  plugWarnings: { code: string; message: string }[];
-  plugWarningsAckAt: Date | null;
-}
+/** A step as the server reads it: the shared record with its moments as Dates. */
+export type StepRow = IsolationStep<Date>;
 
 export const stepSelect = `
   SELECT s.id, s.permit_id AS "permitId", s.seq, s.point_id AS "pointId", coalesce(ip.tag_code, s.temp_label) AS label,
@@ -51,7 +14,11 @@ export const stepSelect = `
          s.verification_reading::float8 AS "verificationReading", s.verification_unit AS "verificationUnit", s.verification_notes AS "verificationNotes",
          ux.name AS "removedByName", s.removed_at AS "removedAt", s.removal_note AS "removalNote",
          s.control_room_ack_applied_at AS "controlRoomAckAppliedAt", s.control_room_ack_removed_at AS "controlRoomAckRemovedAt",
-         s.plug_diameter_in::float8 AS "plugDiameterIn", s.plug_as_built AS "plugAsBuilt", s.plug_warnings AS "plugWarnings", s.plug_warnings_ack_at AS "plugWarningsAckAt"
+         s.plug_diameter_in::float8 AS "plugDiameterIn", s.plug_as_built AS "plugAsBuilt", s.plug_warnings AS "plugWarnings", s.plug_warnings_ack_at AS "plugWarningsAckAt",
+         s.line_stop_as_built AS "lineStopAsBuilt",
+         s.applied_seq AS "appliedSeq", s.applied_out_of_order_reason AS "appliedOutOfOrderReason",
+         e.recorded_at AS "exceptionRecordedAt", e.authoriser_user_id AS "exceptionAuthoriserId", ue.name AS "exceptionAuthoriserName",
+         (e.removed_at IS NOT NULL) AS "removedUnderException"
   FROM isolation_steps s
   LEFT JOIN isolation_points ip ON ip.tenant_id = s.tenant_id AND ip.id = s.point_id
   LEFT JOIN locks l ON l.tenant_id = s.tenant_id AND l.id = s.lock_id
@@ -59,7 +26,9 @@ export const stepSelect = `
   LEFT JOIN users ua ON ua.id = s.applied_by
   LEFT JOIN users uv ON uv.id = s.verified_by
   LEFT JOIN users ur ON ur.id = s.remote_ack_by
-  LEFT JOIN users ux ON ux.id = s.removed_by`;
+  LEFT JOIN users ux ON ux.id = s.removed_by
+  LEFT JOIN lock_removal_exceptions e ON e.tenant_id = s.tenant_id AND e.step_id = s.id
+  LEFT JOIN users ue ON ue.id = e.authoriser_user_id`;
 
 export async function listSteps(sequelize: Sequelize, tenantId: string, permitId: string): Promise<StepRow[]> {
   return sequelize.query<StepRow>(`${stepSelect} WHERE s.tenant_id = :tenantId AND s.permit_id = :permitId ORDER BY s.seq`, {

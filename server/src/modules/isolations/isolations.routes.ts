@@ -5,22 +5,29 @@
 //   POST /api/permits/:id/isolations/:stepId/apply     isolation technician (lockout/tagout qualified)
 //   POST /api/permits/:id/isolations/:stepId/verify    isolation technician other than the applier (isolation verifier qualified)
 //   POST /api/permits/:id/isolations/:stepId/acknowledge control room (remote inhibited, applied, removed); authoriser (plug warnings)
-//   POST /api/permits/:id/isolations/:stepId/remove    isolation technician, after hand-back
+//   POST /api/permits/:id/isolations/:stepId/remove    isolation technician, after hand-back; someone else's lock or tag only under a recorded exception, signed
+//   POST /api/permits/:id/isolations/:stepId/removal-exception  authoriser: the lock's owner is not on site (signed record)
+//   POST /api/permits/:id/isolations/provings          isolation technician who applied none of the isolating devices (isolation verifier qualified): start the hold test
+//   POST /api/permits/:id/isolations/provings/:provingId/end   the same: its end reading
 //   GET  /api/board                                    control room, authoriser, tenant admin, auditor
 //   GET  /api/board/stream                             the same: text/event-stream of changes
 import { Router, type Request } from 'express';
-import { acknowledgeStepInputSchema, applyStepInputSchema, proposePlanQuerySchema, removeStepInputSchema, savePlanInputSchema, verifyStepInputSchema } from '@shared/schemas/isolation.schema';
+import {
+  acknowledgeStepInputSchema, applyStepInputSchema, boardQuerySchema, proposePlanQuerySchema, removalExceptionInputSchema, removeStepInputSchema, savePlanInputSchema, verifyStepInputSchema,
+} from '@shared/schemas/isolation.schema';
 import { uuidSchema } from '@shared/schemas/common.schema';
+import { endProvingInputSchema, startProvingInputSchema } from '@shared/schemas/isolation-proving.schema';
 import type { AppDeps } from '../../deps';
 import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
 import { authorizeType } from '../../lib/authorize';
 import { changeFeed } from '../../lib/change-feed';
 import { clientIp } from '../../lib/client-ip';
-import type { CallerContext } from '../permits/permits.service';
+import type { CallerContext } from '../../lib/caller';
 import { getPlan, proposePlan, savePlan } from './isolation-plan.service';
 import { acknowledgeStep, applyStep, removeStep, verifyStep } from './isolation-steps.service';
-import { boardQuerySchema } from './board.service';
+import { recordRemovalException } from './removal-exceptions.service';
+import { endProving, startProving } from './isolation-proving.service';
 import { boardSnapshot, sendBoardSnapshot } from './board-cache';
 
 export function createIsolationsRouter(deps: AppDeps) {
@@ -39,6 +46,13 @@ export function createIsolationsRouter(deps: AppDeps) {
     const q = parse(proposePlanQuerySchema, req.query, 'query');
     res.json(await proposePlan(deps, caller(req), ids(req).permitId, q.fromPosition, q.toPosition));
   });
+  router.post('/permits/:id/isolations/provings', async (req, res) => {
+    res.status(201).json(await startProving(deps, caller(req), ids(req).permitId, parse(startProvingInputSchema, req.body, 'hold test')));
+  });
+  router.post('/permits/:id/isolations/provings/:provingId/end', async (req, res) => {
+    const provingId = parse(uuidSchema, req.params.provingId, 'path');
+    res.json(await endProving(deps, caller(req), ids(req).permitId, provingId, parse(endProvingInputSchema, req.body, 'hold test')));
+  });
   router.post('/permits/:id/isolations/:stepId/apply', async (req, res) => {
     const { permitId, stepId } = ids(req);
     res.json(await applyStep(deps, caller(req), permitId, stepId, parse(applyStepInputSchema, req.body, 'isolation')));
@@ -54,6 +68,10 @@ export function createIsolationsRouter(deps: AppDeps) {
   router.post('/permits/:id/isolations/:stepId/remove', async (req, res) => {
     const { permitId, stepId } = ids(req);
     res.json(await removeStep(deps, caller(req), permitId, stepId, parse(removeStepInputSchema, req.body, 'removal')));
+  });
+  router.post('/permits/:id/isolations/:stepId/removal-exception', async (req, res) => {
+    const { permitId, stepId } = ids(req);
+    res.status(201).json(await recordRemovalException(deps, caller(req), permitId, stepId, parse(removalExceptionInputSchema, req.body, 'removal exception')));
   });
 
   router.get('/board', async (req, res) => {

@@ -1,27 +1,31 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import type { ActorFacts, PermitFacts } from '@shared/permit/state-machine';
+import { isolationInUseStates } from '@shared/permit/states';
+import { inPlaceStatuses } from '@shared/isolations/step-rules';
 import type { Actor } from '@shared/abilities/define-ability';
 import { siteDay } from '@shared/time/zone';
-import { inDateOn } from '../admin/admin.service';
+import { inDateOn } from '../../lib/qualifications';
+import { readinessFromJson, readinessSql, type ReadinessJson } from '../isolations/isolation-readiness';
 import type { PermitRow } from './permits.repository';
 
 /** Gathers from the database everything the lifecycle guards need about one permit. */
 export async function loadPermitFacts(sequelize: Sequelize, permit: PermitRow): Promise<PermitFacts> {
-  const r = { tenantId: permit.tenantId, permitId: permit.id };
+  const r = { tenantId: permit.tenantId, permitId: permit.id, inPlace: inPlaceStatuses, inUse: isolationInUseStates };
   const [iso] = await sequelize.query<{
     steps: number; applied: number; verified: number; self_verified: number; remote_without_ack: number;
-    still_applied: number; vents_open: number; plugs_in_place: number; plug_warnings: number;
+    still_applied: number; vents_open: number; plugs_in_place: number; plug_warnings: number; readiness: ReadinessJson | null;
   }>(
     `SELECT count(*)::int AS steps,
-            count(*) FILTER (WHERE status IN ('applied','verified'))::int AS applied,
+            count(*) FILTER (WHERE status IN (:inPlace))::int AS applied,
             count(*) FILTER (WHERE status = 'verified' AND verified_by IS DISTINCT FROM applied_by
                              AND (NOT remotely_operable OR remote_ack_at IS NOT NULL))::int AS verified,
             count(*) FILTER (WHERE status = 'verified' AND verified_by = applied_by)::int AS self_verified,
-            count(*) FILTER (WHERE status IN ('applied','verified') AND remotely_operable AND remote_ack_at IS NULL)::int AS remote_without_ack,
-            count(*) FILTER (WHERE status IN ('applied','verified'))::int AS still_applied,
-            count(*) FILTER (WHERE kind = 'vent' AND status IN ('applied','verified'))::int AS vents_open,
-            count(*) FILTER (WHERE kind = 'plug' AND status IN ('applied','verified'))::int AS plugs_in_place,
-            count(*) FILTER (WHERE jsonb_array_length(plug_warnings) > 0 AND plug_warnings_ack_at IS NULL AND status <> 'removed')::int AS plug_warnings
+            count(*) FILTER (WHERE status IN (:inPlace) AND remotely_operable AND remote_ack_at IS NULL)::int AS remote_without_ack,
+            count(*) FILTER (WHERE status IN (:inPlace))::int AS still_applied,
+            count(*) FILTER (WHERE kind = 'vent' AND status IN (:inPlace))::int AS vents_open,
+            count(*) FILTER (WHERE kind = 'plug' AND status IN (:inPlace))::int AS plugs_in_place,
+            count(*) FILTER (WHERE jsonb_array_length(plug_warnings) > 0 AND plug_warnings_ack_at IS NULL AND status <> 'removed')::int AS plug_warnings,
+            ${readinessSql} AS readiness
      FROM isolation_steps WHERE tenant_id = :tenantId AND permit_id = :permitId`,
     { replacements: r, type: QueryTypes.SELECT },
   );
@@ -33,8 +37,8 @@ export async function loadPermitFacts(sequelize: Sequelize, permit: PermitRow): 
   const conflicts = await sequelize.query<{ number: string }>(
     `SELECT DISTINCT other.number FROM isolation_steps mine
      JOIN isolation_steps theirs ON theirs.tenant_id = mine.tenant_id AND theirs.point_id = mine.point_id AND theirs.permit_id <> mine.permit_id
-       AND theirs.status IN ('applied','verified')
-     JOIN permits other ON other.tenant_id = theirs.tenant_id AND other.id = theirs.permit_id AND other.state IN ('isolated','live','suspended')
+       AND theirs.status IN (:inPlace)
+     JOIN permits other ON other.tenant_id = theirs.tenant_id AND other.id = theirs.permit_id AND other.state IN (:inUse)
      WHERE mine.tenant_id = :tenantId AND mine.permit_id = :permitId AND mine.condition IN ('drained','vent_open')
      ORDER BY other.number`,
     { replacements: r, type: QueryTypes.SELECT },
@@ -61,6 +65,7 @@ export async function loadPermitFacts(sequelize: Sequelize, permit: PermitRow): 
       ventsOpen: iso.vents_open,
       plugsInPlace: iso.plugs_in_place,
       plugWarningsUnacknowledged: iso.plug_warnings,
+      readiness: readinessFromJson(iso.readiness),
     },
     gas: { lastPassAt: gas.last_pass, lastFailAt: gas.last_fail, windowMinutes: permit.gasTestWindowMinutes },
     fireWatchEndsAt,

@@ -3,7 +3,7 @@ import QRCode from 'qrcode';
 import { QueryTypes } from 'sequelize';
 import { mudPlug, MUD_PLUG_CAUTION } from '@shared/calc';
 import { permitStateLabels, workKindLabels } from '@shared/permit/states';
-import { permitEventLabels, type PermitEvent } from '@shared/permit/state-machine';
+import { permitEventLabels, signedEvents, type PermitEvent } from '@shared/permit/state-machine';
 import { formatInZone } from '@shared/time/zone';
 import type { AppDeps } from '../../deps';
 import type { PermitRow } from './permits.repository';
@@ -147,7 +147,7 @@ async function renderInTenant(deps: AppDeps, tenantId: string, p: PdfInput): Pro
 
   heading('Signatures');
   const signed = p.signatures as { event: PermitEvent; signedName: string; signedAt: string }[];
-  for (const ev of ['approve', 'accept', 'hand_back', 'return_to_service'] as PermitEvent[]) {
+  for (const ev of signedEvents) {
     const s = [...signed].reverse().find((x) => x.event === ev);
     text(`${permitEventLabels[ev]}: ${s ? `${s.signedName}, ${when(s.signedAt)} (password re-entered)` : '________________________'}`);
   }

@@ -1,52 +1,13 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
-import type { PermitState, WorkKind } from '@shared/permit/states';
-import type { ChecklistItem, PermitSummary, PermitsQuery } from '@shared/schemas/permit.schema';
+import type { PermitsQuery } from '@shared/schemas/permit.schema';
+import { liveStates } from '@shared/permit/states';
+import { nextGasTestDue } from '@shared/permit/due-times';
+import type { ChecklistItem, PermitRecord, PermitSummary } from '@shared/types/permits';
 import type { Page } from '@shared/schemas/common.schema';
 import type { SqlScope } from '../../lib/casl-sql';
 
-export interface PermitRow {
-  id: string;
-  tenantId: string;
-  number: string;
-  state: PermitState;
-  version: number;
-  kinds: WorkKind[];
-  title: string;
-  scope: string;
-  pipelineId: string;
-  pipelineName: string;
-  fromPosition: number;
-  toPosition: number;
-  jobReference: string | null;
-  methodStatement: string;
-  hazards: string;
-  ppe: string[];
-  checklist: ChecklistItem[];
-  walkdown: ChecklistItem[];
-  validFrom: Date;
-  validTo: Date;
-  contractorOrganisationId: string;
-  contractorName: string;
-  contractorLeadUserId: string | null;
-  contractorLeadName: string | null;
-  requesterUserId: string;
-  requesterName: string;
-  authoriserUserId: string | null;
-  authoriserName: string | null;
-  holderUserId: string | null;
-  holderName: string | null;
-  fireWatchMinutes: number;
-  fireWatchPerson: string | null;
-  gasTestWindowMinutes: number;
-  gasTestIntervalMinutes: number;
-  hotWorkEndedAt: Date | null;
-  controlRoomAckAt: Date | null;
-  rejectionReason: string | null;
-  stateBeforeExpiry: PermitState | null;
-  expiredFlag: boolean;
-  createdAt: Date;
-  updatedAt: Date;
-}
+/** A permit as the server reads it: the shared record with its moments as Dates. */
+export type PermitRow = PermitRecord<Date>;
 
 const permitColumns = `
   p.id, p.tenant_id AS "tenantId", p.number, p.state, p.version, p.kinds, p.title, p.scope, p.pipeline_id AS "pipelineId", pl.name AS "pipelineName",
@@ -81,7 +42,7 @@ export async function findPermit(sequelize: Sequelize, tenantId: string, id: str
 
 const sortColumns: Record<PermitsQuery['sort'], string> = { number: 'p.number', title: 'lower(p.title)', state: 'p.state', validFrom: 'p.valid_from', updatedAt: 'p.updated_at' };
 
-export async function listPermits(sequelize: Sequelize, tenantId: string, q: PermitsQuery, scope: SqlScope): Promise<Page<PermitSummary>> {
+export async function listPermits(sequelize: Sequelize, tenantId: string, q: PermitsQuery, scope: SqlScope, now: Date): Promise<Page<PermitSummary<Date>>> {
   const where = ['p.tenant_id = :tenantId', scope.sql];
   const r: Record<string, unknown> = { tenantId, ...scope.replacements, limit: q.pageSize, offset: (q.page - 1) * q.pageSize };
   if (q.state?.length) {
@@ -118,21 +79,21 @@ export async function listPermits(sequelize: Sequelize, tenantId: string, q: Per
   // The page's ids first, from the permits alone (an index walk for the usual orders), then the
   // joins and the gas-test look-up for those rows only: a deep page no longer sorts and joins
   // every row before it.
-  const items = await sequelize.query<PermitSummary>(
+  const rows = await sequelize.query<Omit<PermitSummary<Date>, 'nextGasTestDue'> & { lastGasPassAt: Date | null; gasTestIntervalMinutes: number }>(
     `WITH page AS (SELECT p.id FROM permits p WHERE ${whereSql} ORDER BY ${order} LIMIT :limit OFFSET :offset)
      SELECT p.id, p.number, p.state, p.version, p.kinds, p.title, p.pipeline_id AS "pipelineId", pl.name AS "pipelineName",
             p.from_position::float8 AS "fromPosition", p.to_position::float8 AS "toPosition", p.valid_from AS "validFrom", p.valid_to AS "validTo",
             p.contractor_organisation_id AS "contractorOrganisationId", o.name AS "contractorName", p.updated_at AS "updatedAt",
-            CASE WHEN p.state = 'live' THEN coalesce(
-              (SELECT max(g.tested_at) FROM gas_tests g WHERE g.tenant_id = p.tenant_id AND g.permit_id = p.id AND g.verdict = 'pass') + make_interval(mins => p.gas_test_interval_minutes),
-              now()) END AS "nextGasTestDue"
+            p.gas_test_interval_minutes AS "gasTestIntervalMinutes",
+            CASE WHEN p.state IN (:live) THEN (SELECT max(g.tested_at) FROM gas_tests g WHERE g.tenant_id = p.tenant_id AND g.permit_id = p.id AND g.verdict = 'pass') END AS "lastGasPassAt"
      FROM page
      JOIN permits p ON p.tenant_id = :tenantId AND p.id = page.id
      JOIN pipelines pl ON pl.tenant_id = p.tenant_id AND pl.id = p.pipeline_id
      JOIN organisations o ON o.tenant_id = p.tenant_id AND o.id = p.contractor_organisation_id
      ORDER BY ${order}`,
-    { replacements: r, type: QueryTypes.SELECT },
+    { replacements: { ...r, live: liveStates }, type: QueryTypes.SELECT },
   );
+  const items = rows.map(({ lastGasPassAt, gasTestIntervalMinutes, ...p }) => ({ ...p, nextGasTestDue: nextGasTestDue(p.state, lastGasPassAt, gasTestIntervalMinutes, now) }));
   return { items, total: n, page: q.page, pageSize: q.pageSize };
 }
 

@@ -1,12 +1,14 @@
 import { QueryTypes } from 'sequelize';
 import { subject } from '@casl/ability';
-import type { Actor, AppAbility } from '@shared/abilities/define-ability';
 import { decide, eventAction, eventsFrom, permitEventLabels, reasonedEvents, signedEvents, type PermitEvent } from '@shared/permit/state-machine';
-import type { CreatePermitData, PermitAction, PermitsQuery, TransitionInput, UpdatePermitInput } from '@shared/schemas/permit.schema';
+import type { CreatePermitData, PermitsQuery, TransitionInput, UpdatePermitInput } from '@shared/schemas/permit.schema';
+import type { PermitAction } from '@shared/types/permits';
+import { checklistOpenStates, editableStates, workUnderWayStates } from '@shared/permit/states';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { authorizeRecord, authorizeType } from '../../lib/authorize';
+import { auditActor, type CallerContext } from '../../lib/caller';
 import { scopeToSql } from '../../lib/casl-sql';
 import { signerPasswordMatches } from '../auth/signature-password';
 import { appendAudit } from '../audit/audit.service';
@@ -16,38 +18,16 @@ import { loadActorFacts, loadPermitFacts } from './permit-facts';
 import { queuePermitMail } from './permit-mail';
 import { requireRevalidationWithinMax, requireWindowWithinMax } from './validity-window';
 
-export interface CallerContext {
-  actor: Actor;
-  ability: AppAbility;
-  user: { id: string; email: string; name: string };
-  ip?: string | null;
-}
-
 const permitSubject = (p: Pick<PermitRow, 'tenantId' | 'contractorOrganisationId'> & Record<string, unknown>) =>
   subject('Permit', { ...p, tenantId: p.tenantId, contractorOrganisationId: p.contractorOrganisationId });
 
 export const permitScopeColumns = { tenantId: 'p.tenant_id', contractorOrganisationId: 'p.contractor_organisation_id' };
 
-/** The role a person acted in for the audit trail: the first of their roles that permits the action. */
-function actingRole(caller: CallerContext, action: string) {
-  const roles = caller.actor.memberships.map((m) => m.role);
-  const preferred: Record<string, string[]> = {
-    approve: ['authoriser'], reject: ['authoriser'], return_to_service: ['authoriser'], close: ['authoriser'], revalidate: ['authoriser'],
-    accept: ['contractor_lead'], hand_back: ['contractor_lead'], start_work: ['contractor_lead'], acknowledge: ['control_room'],
-    suspend: ['control_room', 'authoriser'], apply: ['isolation_technician'], verify: ['isolation_technician', 'authoriser'], remove: ['isolation_technician'],
-  };
-  return (preferred[action] ?? []).find((r) => roles.includes(r as never)) ?? roles[0] ?? null;
-}
-
-export function auditActor(caller: CallerContext, action: string) {
-  return { userId: caller.user.id, name: caller.user.name, role: actingRole(caller, action) };
-}
-
 export async function listPermitsFor(deps: AppDeps, caller: CallerContext, q: PermitsQuery) {
   // Any read rule will do here (a contractor's is limited to their organisation's permits); the scope below picks the rows.
   if (!caller.ability.can('read', 'Permit')) throw AppError.forbidden('Your role does not allow you to read permits.');
   const scope = scopeToSql(caller.ability, 'read', 'Permit', permitScopeColumns);
-  return withTenant(deps.sequelize, caller.actor.tenantId, () => listPermits(deps.sequelize, caller.actor.tenantId, q, scope));
+  return withTenant(deps.sequelize, caller.actor.tenantId, () => listPermits(deps.sequelize, caller.actor.tenantId, q, scope, deps.clock.now()));
 }
 
 async function checkReferences(deps: AppDeps, tenantId: string, input: Partial<CreatePermitData>) {
@@ -127,7 +107,7 @@ export async function updatePermit(deps: AppDeps, caller: CallerContext, id: str
   const { tenantId } = caller.actor;
   return withTenant(deps.sequelize, tenantId, async () => {
     const permit = authorizeRecord(caller.ability, 'update', 'Permit', await findPermit(deps.sequelize, tenantId, id, { lock: true }), 'permit');
-    if (permit.state !== 'draft') throw AppError.unprocessable('Only a draft can be edited. A permit sent back by the authoriser returns to draft.');
+    if (!editableStates.includes(permit.state)) throw AppError.unprocessable('Only a draft can be edited. A permit sent back by the authoriser returns to draft.');
     if (permit.version !== input.version) throw AppError.conflict('Someone changed this permit in the meantime. Reload it and try again.', { current: { state: permit.state, version: permit.version } });
     const merged = {
       ...input,
@@ -265,7 +245,9 @@ export async function applyTransition(
       sets.push('hot_work_ended_at = NULL');
       break;
     case 'expire':
-      sets.push('expired_flag = true', `state_before_expiry = CASE WHEN state = 'live' THEN NULL ELSE state END`);
+      // Re-validation returns an expired permit to where it was; a live one was only suspended and stays so.
+      sets.push('expired_flag = true', 'state_before_expiry = :beforeExpiry');
+      r.beforeExpiry = verdict.to === 'expired' ? permit.state : null;
       break;
     case 'revalidate':
       if (!input.validTo) throw AppError.validation('Give the new end of the validity window.', [{ path: 'validTo', message: 'Required to re-validate.' }]);
@@ -310,8 +292,7 @@ export async function updateChecklist(deps: AppDeps, caller: CallerContext, id: 
     const items = permit![list];
     const item = items.find((i) => i.key === key);
     if (!item) throw AppError.validation('That checklist item is not on this permit.', [{ path: 'key', message: 'Unknown item.' }]);
-    const open = list === 'checklist' ? ['accepted', 'isolated', 'live', 'suspended'] : ['work_complete'];
-    if (!open.includes(permit!.state)) throw AppError.unprocessable(`The ${list === 'checklist' ? 'checklist' : 'walk-down'} cannot be changed while the permit is ${permit!.state.replace(/_/g, ' ')}.`);
+    if (!checklistOpenStates[list].includes(permit!.state)) throw AppError.unprocessable(`The ${list === 'checklist' ? 'checklist' : 'walk-down'} cannot be changed while the permit is ${permit!.state.replace(/_/g, ' ')}.`);
     const now = deps.clock.now();
     Object.assign(item, { confirmed, confirmedBy: confirmed ? caller.user.id : null, confirmedByName: confirmed ? caller.user.name : null, confirmedAt: confirmed ? now.toISOString() : null });
     await deps.sequelize.query(`UPDATE permits SET ${list} = CAST(:items AS jsonb), version = version + 1, updated_at = :now WHERE tenant_id = :tenantId AND id = :id`, {
@@ -331,7 +312,7 @@ export async function recordHotWorkStopped(deps: AppDeps, caller: CallerContext,
     const permit = await findPermit(deps.sequelize, tenantId, id, { lock: true });
     authorizeRecord(caller.ability, 'hand_back', 'Permit', permit, 'permit');
     if (!permit!.kinds.includes('hot_work')) throw AppError.unprocessable('This permit has no hot work.');
-    if (!['live', 'suspended'].includes(permit!.state)) throw AppError.unprocessable('Hot work can only stop on a permit with work under way.');
+    if (!workUnderWayStates.includes(permit!.state)) throw AppError.unprocessable('Hot work can only stop on a permit with work under way.');
     const now = deps.clock.now();
     await deps.sequelize.query(`UPDATE permits SET hot_work_ended_at = :now, version = version + 1, updated_at = :now WHERE tenant_id = :tenantId AND id = :id`, { replacements: { now, tenantId, id } });
     await appendAudit(deps.sequelize, {

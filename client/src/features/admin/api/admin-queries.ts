@@ -2,33 +2,8 @@ import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient }
 import type { InviteInput, OrganisationInput, QualificationInput, UsersQuery } from '@shared/schemas/auth.schema';
 import type { Page } from '@shared/schemas/common.schema';
 import type { Role } from '@shared/abilities/roles';
+import type { MembershipRow, OrganisationRow, QualificationRow, UserRow } from '@shared/types/admin';
 import { api, qs } from '@client/lib/api-client';
-
-export interface UserRow {
-  membershipId: string;
-  userId: string;
-  name: string;
-  email: string;
-  role: Role;
-  organisationId: string;
-  organisationName: string;
-  organisationKind: 'operator' | 'contractor';
-}
-export interface OrganisationRow {
-  id: string;
-  name: string;
-  kind: 'operator' | 'contractor';
-  members: number;
-}
-export interface QualificationRow {
-  id: string;
-  userId: string;
-  userName: string;
-  kind: string;
-  reference: string | null;
-  issuedOn: string;
-  expiresOn: string;
-}
 
 export const getUsersQueryOptions = (q: Partial<UsersQuery>) =>
   queryOptions({ queryKey: ['admin', 'users', q], queryFn: () => api.get<Page<UserRow>>(`/api/users${qs(q)}`), placeholderData: keepPreviousData });
@@ -52,7 +27,7 @@ export function useInvite() {
 export function useChangeRole() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: ({ membershipId, role }: { membershipId: string; role: Role }) => api.patch(`/api/memberships/${membershipId}`, { role }),
+    mutationFn: ({ membershipId, role }: { membershipId: string; role: Role }) => api.patch<MembershipRow>(`/api/memberships/${membershipId}`, { role }),
     onSuccess: () => qc.invalidateQueries({ queryKey: ['admin', 'users'] }),
   });
 }

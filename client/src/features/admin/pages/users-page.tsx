@@ -1,18 +1,19 @@
 import { useMemo } from 'react';
-import { useSearchParams } from 'react-router-dom';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import type { ColumnDef } from '@tanstack/react-table';
-import { inviteInputSchema, type InviteInput, type UsersQuery } from '@shared/schemas/auth.schema';
+import { inviteInputSchema, usersQuerySchema, type InviteInput } from '@shared/schemas/auth.schema';
+import type { UserRow } from '@shared/types/admin';
 import { roleLabels, roles, type Role } from '@shared/abilities/roles';
 import { ApiError } from '@client/lib/api-client';
 import { Can } from '@client/lib/ability';
+import { useListQuery } from '@client/lib/list-query';
 import { DataTable } from '@client/components/ui/data-table';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { Card, PageHeader } from '@client/components/ui/page';
 import { useToast } from '@client/components/ui/toast';
-import { useChangeRole, useInvite, useOrganisations, useUsers, type UserRow } from '../api/admin-queries';
+import { useChangeRole, useInvite, useOrganisations, useUsers } from '../api/admin-queries';
 
 function InviteForm() {
   const orgs = useOrganisations();
@@ -60,25 +61,10 @@ function InviteForm() {
 }
 
 export default function UsersPage() {
-  const [params, setParams] = useSearchParams();
-  const q: Partial<UsersQuery> = {
-    page: Number(params.get('page') ?? 1),
-    q: params.get('q') ?? undefined,
-    role: (params.get('role') as Role) || undefined,
-    sort: (params.get('sort') as UsersQuery['sort']) ?? 'name',
-    dir: (params.get('dir') as 'asc' | 'desc') ?? 'asc',
-  };
+  const { query: q, set } = useListQuery(usersQuerySchema);
   const users = useUsers(q);
   const changeRole = useChangeRole();
   const toast = useToast();
-  const set = (patch: Record<string, string | undefined>) => {
-    const next = new URLSearchParams(params);
-    for (const [k, v] of Object.entries(patch)) {
-      if (v) next.set(k, v);
-      else next.delete(k);
-    }
-    setParams(next, { replace: true });
-  };
 
   const columns = useMemo<ColumnDef<UserRow, unknown>[]>(
     () => [
@@ -143,9 +129,9 @@ export default function UsersPage() {
           columns={columns}
           data={users.data}
           isLoading={users.isPending}
-          page={q.page ?? 1}
+          page={q.page}
           onPage={(p) => set({ page: String(p) })}
-          sorting={[{ id: q.sort ?? 'name', desc: q.dir === 'desc' }]}
+          sorting={[{ id: q.sort, desc: q.dir === 'desc' }]}
           onSorting={(s) => set({ sort: s[0]?.id, dir: s[0]?.desc ? 'desc' : 'asc', page: undefined })}
           empty={{ title: 'Nobody matches these filters.', hint: 'Clear the search or invite someone.' }}
           rowTestId="user-row"

@@ -3,6 +3,7 @@ import type { Page } from '@shared/schemas/common.schema';
 import type { InventoryInput, InventoryPatch, InventoryQuery } from '@shared/schemas/assets.schema';
 import type { InventoryKind } from '@shared/assets/inventory-state';
 import type { InventoryItem } from '@shared/assets/types';
+import type { PersonOption, UserRow } from '@shared/types/admin';
 import { api, qs } from '@client/lib/api-client';
 
 const path: Record<InventoryKind, string> = { lock: '/api/locks', tag: '/api/tags' };
@@ -24,17 +25,12 @@ export function useUpdateInventory(kind: InventoryKind) {
   });
 }
 
-export interface PersonOption {
-  userId: string;
-  name: string;
-}
-
 /** People who can hold a lock: only callers who may list people get them (the server decides). */
 export const getHoldersQueryOptions = () =>
   queryOptions({
     queryKey: ['inventory', 'holders'],
-    queryFn: async () => {
-      const page = await api.get<Page<PersonOption>>('/api/users?pageSize=200');
+    queryFn: async (): Promise<PersonOption[]> => {
+      const page = await api.get<Page<UserRow>>('/api/users?pageSize=200');
       return [...new Map(page.items.map((p) => [p.userId, { userId: p.userId, name: p.name }])).values()];
     },
     staleTime: 5 * 60_000,

@@ -5,11 +5,12 @@ import type { z } from 'zod';
 import { inventoryInputSchema, inventoryStateLabels, manualInventoryStates, type InventoryInput } from '@shared/schemas/assets.schema';
 import type { InventoryKind } from '@shared/assets/inventory-state';
 import type { InventoryItem } from '@shared/assets/types';
+import type { PersonOption } from '@shared/types/admin';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { Loading } from '@client/components/ui/page';
-import { useCreateInventory, useHolders, useUpdateInventory, type PersonOption } from '../api/inventory';
+import { useCreateInventory, useHolders, useUpdateInventory } from '../api/inventory';
 import { applyServerErrors, textOrNull } from './form-helpers';
 
 type FormInput = z.input<typeof inventoryInputSchema>;

@@ -1,11 +1,11 @@
 import { useMemo, useState } from 'react';
-import { useSearchParams } from 'react-router-dom';
+import { z } from 'zod';
 import type { ColumnDef } from '@tanstack/react-table';
-import { inventoryStateLabels, inventoryStates, type InventoryState } from '@shared/schemas/assets.schema';
-import type { InventoryKind } from '@shared/assets/inventory-state';
+import { inventoryQuerySchema, inventoryStateLabels, inventoryStates, type InventoryState } from '@shared/schemas/assets.schema';
 import type { InventoryItem } from '@shared/assets/types';
 import { formatInZone } from '@shared/time/zone';
 import { Can, useAbility } from '@client/lib/ability';
+import { useListQuery } from '@client/lib/list-query';
 import { useMe } from '@client/features/auth';
 import { DataTable } from '@client/components/ui/data-table';
 import { Button } from '@client/components/ui/button';
@@ -23,13 +23,14 @@ const stateTone: Record<InventoryState, string> = {
   retired: 'bg-paper text-ink-soft',
 };
 
+// The server's list query, plus which of the two registers this page shows (a path there, a parameter here).
+const locksPageQuerySchema = inventoryQuerySchema.extend({ kind: z.enum(['lock', 'tag']).default('lock') });
+
 export default function LocksPage() {
-  const [params, setParams] = useSearchParams();
-  const kind: InventoryKind = params.get('kind') === 'tag' ? 'tag' : 'lock';
-  const state = (params.get('state') as InventoryState) || undefined;
-  const q = params.get('q') ?? undefined;
-  const page = Number(params.get('page') ?? 1) || 1;
-  const list = useInventory(kind, { page, pageSize: 25, state, q });
+  const { query, set } = useListQuery(locksPageQuerySchema);
+  const { kind, ...listQuery } = query;
+  const { state, q, page } = listQuery;
+  const list = useInventory(kind, listQuery);
   const [editing, setEditing] = useState<InventoryItem | 'new' | null>(null);
   const toast = useToast();
   const ability = useAbility();
@@ -40,14 +41,6 @@ export default function LocksPage() {
   const edit = (next: InventoryItem | 'new') => {
     setEditing(next);
     requestAnimationFrame(() => document.getElementById('inventory-panel')?.scrollIntoView({ behavior: 'smooth', block: 'start' }));
-  };
-  const set = (patch: Record<string, string | undefined>) => {
-    const next = new URLSearchParams(params);
-    for (const [k, v] of Object.entries(patch)) {
-      if (v) next.set(k, v);
-      else next.delete(k);
-    }
-    setParams(next, { replace: true });
   };
 
   const columns = useMemo<ColumnDef<InventoryItem, unknown>[]>(

@@ -1,10 +1,11 @@
 import { useMemo, useState } from 'react';
-import { Link, useNavigate, useSearchParams } from 'react-router-dom';
+import { Link, useNavigate } from 'react-router-dom';
 import type { ColumnDef } from '@tanstack/react-table';
-import { productKinds, productLabels, type ProductKind } from '@shared/schemas/assets.schema';
+import { pipelinesQuerySchema, productKinds, productLabels } from '@shared/schemas/assets.schema';
 import { formatPosition, unitWord } from '@shared/assets/format';
 import type { PipelineSummary } from '@shared/assets/types';
 import { Can } from '@client/lib/ability';
+import { useListQuery } from '@client/lib/list-query';
 import { useMe } from '@client/features/auth';
 import { DataTable } from '@client/components/ui/data-table';
 import { Button } from '@client/components/ui/button';
@@ -18,23 +19,13 @@ import { ImportPanel } from '../components/import-panel';
 import { sizeText } from '../components/pipeline-facts';
 
 export default function PipelinesPage() {
-  const [params, setParams] = useSearchParams();
+  const { query, set } = useListQuery(pipelinesQuerySchema);
+  const { page, q, product } = query;
   const [open, setOpen] = useState<'add' | 'import' | null>(null);
   const navigate = useNavigate();
   const toast = useToast();
   const unit = useMe().data?.activeTenant?.locationUnit ?? 'mi';
-  const page = Number(params.get('page') ?? 1) || 1;
-  const q = params.get('q') ?? undefined;
-  const product = (params.get('product') as ProductKind) || undefined;
-  const pipelines = usePipelines({ page, pageSize: 25, q, product });
-  const set = (patch: Record<string, string | undefined>) => {
-    const next = new URLSearchParams(params);
-    for (const [k, v] of Object.entries(patch)) {
-      if (v) next.set(k, v);
-      else next.delete(k);
-    }
-    setParams(next, { replace: true });
-  };
+  const pipelines = usePipelines(query);
 
   const columns = useMemo<ColumnDef<PipelineSummary, unknown>[]>(
     () => [

@@ -1,5 +1,5 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
-import type { AttachmentSummary } from '@shared/schemas/attachment.schema';
+import type { AttachmentSummary } from '@shared/types/attachments';
 import type { Page } from '@shared/schemas/common.schema';
 import { api, qs } from '@client/lib/api-client';
 

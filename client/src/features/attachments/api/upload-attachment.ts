@@ -1,6 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { ApiErrorBody } from '@shared/errors/error-codes';
-import type { AttachmentEntityType, AttachmentSummary } from '@shared/schemas/attachment.schema';
+import type { AttachmentEntityType } from '@shared/schemas/attachment.schema';
+import type { AttachmentSummary } from '@shared/types/attachments';
 import { ApiError } from '@client/lib/api-client';
 import { attachmentsKey } from './get-attachments';
 

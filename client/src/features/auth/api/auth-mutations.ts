@@ -1,5 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
-import type { AcceptInvitationInput, MeResponse, ResetPasswordInput, SignInInput } from '@shared/schemas/auth.schema';
+import type { AcceptInvitationInput, ResetPasswordInput, SignInInput } from '@shared/schemas/auth.schema';
+import type { MeResponse } from '@shared/types/auth';
 import { api } from '@client/lib/api-client';
 import { getMeQueryOptions } from './get-me';
 

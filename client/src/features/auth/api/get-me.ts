@@ -1,5 +1,5 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
-import type { MeResponse } from '@shared/schemas/auth.schema';
+import type { MeResponse } from '@shared/types/auth';
 import { api, ApiError } from '@client/lib/api-client';
 
 /** The signed-in user, or null when nobody is signed in. */

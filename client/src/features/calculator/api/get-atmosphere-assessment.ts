@@ -1,5 +1,6 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
-import type { AtmosphereRequest, AtmosphereResponse } from '@shared/schemas/calc.schema';
+import type { AtmosphereRequest } from '@shared/schemas/calc.schema';
+import type { AtmosphereResponse } from '@shared/types/calc';
 import { api } from '@client/lib/api-client';
 
 // A POST because the readings travel as a body, but it changes nothing, so it is cached like a read.

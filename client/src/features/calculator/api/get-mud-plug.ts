@@ -1,5 +1,6 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
-import type { MudPlugQuery, MudPlugResponse } from '@shared/schemas/calc.schema';
+import type { MudPlugQuery } from '@shared/schemas/calc.schema';
+import type { MudPlugResponse } from '@shared/types/calc';
 import { api, qs } from '@client/lib/api-client';
 
 // The answer is a pure function of the inputs, so it never goes stale.

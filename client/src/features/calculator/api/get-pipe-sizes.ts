@@ -1,5 +1,5 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
-import type { PipeSizesResponse } from '@shared/schemas/calc.schema';
+import type { PipeSizesResponse } from '@shared/types/calc';
 import { api } from '@client/lib/api-client';
 
 export const getPipeSizesQueryOptions = () =>

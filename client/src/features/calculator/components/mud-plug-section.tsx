@@ -1,7 +1,8 @@
 import type { ReactNode } from 'react';
 import { useWatch, type UseFormReturn } from 'react-hook-form';
 import { MUD_PLUG_CAUTION, galToL, inToMm, lbToKg } from '@shared/calc';
-import type { MudPlugForm, MudPlugResponse } from '@shared/schemas/calc.schema';
+import type { MudPlugForm } from '@shared/schemas/calc.schema';
+import type { MudPlugResponse } from '@shared/types/calc';
 import { ApiError } from '@client/lib/api-client';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { Notice, SafetyCaution } from '@client/components/ui/notice';

@@ -1,6 +1,9 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Page } from '@shared/schemas/common.schema';
-import type { CheckData, CheckRow } from '@shared/schemas/timed-checks.schema';
+import type { CheckData } from '@shared/schemas/timed-checks.schema';
+import type { IsolationPlan } from '@shared/types/isolations';
+import type { CheckRow, RecordedCheck } from '@shared/types/timed-checks';
+import { isInPlace } from '@shared/isolations/step-rules';
 import { api, qs } from '@client/lib/api-client';
 import { gasKeys } from './keys';
 
@@ -11,23 +14,16 @@ export const useChecks = (permitId: string) => useQuery(getChecksQueryOptions(pe
 export function useRecordCheck(permitId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: CheckData) => api.post<CheckRow>(`/api/permits/${encodeURIComponent(permitId)}/checks`, input),
+    mutationFn: (input: CheckData) => api.post<RecordedCheck>(`/api/permits/${encodeURIComponent(permitId)}/checks`, input),
     onSuccess: () => qc.invalidateQueries({ queryKey: gasKeys.permit(permitId) }),
   });
-}
-
-export interface PlanStep {
-  id: string;
-  kind: string;
-  status: string;
-  label: string;
 }
 
 /** The vents and plugs in place on the permit (from the isolation plan), to say which one was checked. */
 export const getPlanStepsQueryOptions = (permitId: string) =>
   queryOptions({
     queryKey: ['gas-tests', permitId, 'plan-steps'],
-    queryFn: async () => (await api.get<{ items: PlanStep[] }>(`/api/permits/${encodeURIComponent(permitId)}/isolations`)).items.filter((s) => ['vent', 'plug'].includes(s.kind) && ['applied', 'verified'].includes(s.status)),
+    queryFn: async () => (await api.get<IsolationPlan>(`/api/permits/${encodeURIComponent(permitId)}/isolations`)).items.filter((s) => ['vent', 'plug'].includes(s.kind) && isInPlace(s.status)),
     staleTime: 60_000,
   });
 export const usePlanSteps = (permitId: string) => useQuery(getPlanStepsQueryOptions(permitId));

@@ -1,6 +1,6 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import type { Page } from '@shared/schemas/common.schema';
-import type { GasTestRow } from '@shared/schemas/gas-tests.schema';
+import type { GasTestRow } from '@shared/types/gas-tests';
 import { api, qs } from '@client/lib/api-client';
 import { gasKeys } from './keys';
 

@@ -1,5 +1,5 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
-import type { PermitRegime } from '@shared/schemas/timed-checks.schema';
+import type { PermitRegime } from '@shared/types/timed-checks';
 import { api } from '@client/lib/api-client';
 import { gasKeys } from './keys';
 

@@ -1,6 +1,8 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Page } from '@shared/schemas/common.schema';
-import type { HandoverAcceptInput, HandoverCreateInput, HandoverRow } from '@shared/schemas/timed-checks.schema';
+import type { HandoverAcceptInput, HandoverCreateInput } from '@shared/schemas/timed-checks.schema';
+import type { PersonOption, UserRow } from '@shared/types/admin';
+import type { AcceptedHandover, HandoverRow } from '@shared/types/timed-checks';
 import { api, ApiError, qs } from '@client/lib/api-client';
 import { gasKeys, permitsPrefix } from './keys';
 
@@ -21,23 +23,18 @@ export function useCreateHandover(permitId: string) {
 export function useAcceptHandover(permitId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: ({ handoverId, ...input }: HandoverAcceptInput & { handoverId: string }) => api.post<HandoverRow>(`${base(permitId)}/${encodeURIComponent(handoverId)}/accept`, input),
+    mutationFn: ({ handoverId, ...input }: HandoverAcceptInput & { handoverId: string }) => api.post<AcceptedHandover>(`${base(permitId)}/${encodeURIComponent(handoverId)}/accept`, input),
     onSuccess: () => Promise.all([qc.invalidateQueries({ queryKey: gasKeys.permit(permitId) }), qc.invalidateQueries({ queryKey: permitsPrefix })]),
   });
-}
-
-export interface LeadOption {
-  userId: string;
-  name: string;
 }
 
 /** Contractor leads of the permit's contractor; null when this person may not list people. */
 export const getLeadsQueryOptions = (organisationId: string) =>
   queryOptions({
     queryKey: ['gas-tests', 'leads', organisationId],
-    queryFn: async (): Promise<LeadOption[] | null> => {
+    queryFn: async (): Promise<PersonOption[] | null> => {
       try {
-        const page = await api.get<Page<LeadOption>>(`/api/users${qs({ role: 'contractor_lead', organisationId, pageSize: 200 })}`);
+        const page = await api.get<Page<UserRow>>(`/api/users${qs({ role: 'contractor_lead', organisationId, pageSize: 200 })}`);
         return [...new Map(page.items.map((u) => [u.userId, { userId: u.userId, name: u.name }])).values()];
       } catch (err) {
         if (err instanceof ApiError && err.status === 403) return null;

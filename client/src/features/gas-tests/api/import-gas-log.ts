@@ -1,6 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { ErrorDetail } from '@shared/errors/error-codes';
-import type { GasImportResult, GasTestPlace } from '@shared/schemas/gas-tests.schema';
+import type { GasTestPlace } from '@shared/schemas/gas-tests.schema';
+import type { GasImportResult } from '@shared/types/gas-tests';
 import type { ColumnMapping } from '@shared/gas-tests/csv-readings';
 import { ApiError, qs } from '@client/lib/api-client';
 import { gasKeys, permitsPrefix } from './keys';

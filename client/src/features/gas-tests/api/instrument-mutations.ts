@@ -1,5 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
-import type { InstrumentInput, InstrumentPatch, InstrumentRow } from '@shared/schemas/gas-tests.schema';
+import type { InstrumentInput, InstrumentPatch } from '@shared/schemas/gas-tests.schema';
+import type { InstrumentRow } from '@shared/types/gas-tests';
 import { api } from '@client/lib/api-client';
 import { gasKeys } from './keys';
 

@@ -1,5 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
-import type { GasTestData, GasTestResult } from '@shared/schemas/gas-tests.schema';
+import type { GasTestData } from '@shared/schemas/gas-tests.schema';
+import type { GasTestResult } from '@shared/types/gas-tests';
 import { api } from '@client/lib/api-client';
 import { gasKeys, permitsPrefix } from './keys';
 

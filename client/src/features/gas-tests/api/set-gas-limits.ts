@@ -1,5 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
-import type { PermitGasLimitsInput, PermitLimitsView } from '@shared/schemas/gas-tests.schema';
+import type { PermitGasLimitsInput } from '@shared/schemas/gas-tests.schema';
+import type { PermitLimitsView } from '@shared/types/gas-tests';
 import { api } from '@client/lib/api-client';
 import { gasKeys, permitsPrefix } from './keys';
 

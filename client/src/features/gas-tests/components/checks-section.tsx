@@ -1,6 +1,8 @@
 import { subject } from '@casl/ability';
-import { checkKindLabels, plugFaceLabels, type CheckKind, type CheckRow } from '@shared/schemas/timed-checks.schema';
+import { checkKindLabels, plugFaceLabels, type CheckKind } from '@shared/schemas/timed-checks.schema';
+import type { CheckRow } from '@shared/types/timed-checks';
 import { formatInZone } from '@shared/time/zone';
+import { workUnderWayStates } from '@shared/permit/states';
 import { useAbility } from '@client/lib/ability';
 import { Card, EmptyState, Loading } from '@client/components/ui/page';
 import { SafetyCaution } from '@client/components/ui/notice';
@@ -28,7 +30,7 @@ export function ChecksSection({ permit }: { permit: PermitLike }) {
   const timeZone = useSiteTimeZone();
   const regime = useRegime(permit.id);
   const checks = useChecks(permit.id);
-  const kinds: CheckKind[] = permit.kinds.includes('hot_work') && ['live', 'suspended'].includes(permit.state) ? ['vent', 'plug', 'fire_watch'] : ['vent', 'plug'];
+  const kinds: CheckKind[] = permit.kinds.includes('hot_work') && workUnderWayStates.includes(permit.state) ? ['vent', 'plug', 'fire_watch'] : ['vent', 'plug'];
   const canRecord = ability.can('record', subject('Check', scopeOf(permit))) && workOpen(permit);
 
   return (

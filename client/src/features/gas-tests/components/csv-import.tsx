@@ -1,6 +1,7 @@
 import { useId, useState } from 'react';
 import { readingColumnLabels, readingColumns, type ColumnMapping } from '@shared/gas-tests/csv-readings';
-import { gasTestPlaceLabels, gasTestPlaces, type GasImportResult, type GasTestPlace } from '@shared/schemas/gas-tests.schema';
+import { gasTestPlaceLabels, gasTestPlaces, type GasTestPlace } from '@shared/schemas/gas-tests.schema';
+import type { GasImportResult } from '@shared/types/gas-tests';
 import { formatInZone } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';

@@ -1,4 +1,4 @@
-import type { DueTimeView } from '@shared/schemas/timed-checks.schema';
+import type { DueTimeView } from '@shared/types/timed-checks';
 import { formatInZone } from '@shared/time/zone';
 import { dueText } from '../lib/site-time';
 import { useNow } from '../hooks/use-now';

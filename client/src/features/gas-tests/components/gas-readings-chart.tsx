@@ -1,6 +1,6 @@
 import { useId } from 'react';
 import type { AtmosphereLimits } from '@shared/calc';
-import type { GasTestRow } from '@shared/schemas/gas-tests.schema';
+import type { GasTestRow } from '@shared/types/gas-tests';
 import { formatInZone } from '@shared/time/zone';
 
 // Hand-drawn SVG (no charting package is installed): one small chart per gas, because oxygen in

@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import type { ColumnDef } from '@tanstack/react-table';
-import { gasTestPlaceLabels, type GasTestRow } from '@shared/schemas/gas-tests.schema';
+import { gasTestPlaceLabels } from '@shared/schemas/gas-tests.schema';
+import type { GasTestRow } from '@shared/types/gas-tests';
 import { formatInZone } from '@shared/time/zone';
 import { DataTable } from '@client/components/ui/data-table';
 import { EnteredLate } from '@client/components/ui/entered-late';

@@ -1,6 +1,7 @@
 import { subject } from '@casl/ability';
-import type { PermitRegime } from '@shared/schemas/timed-checks.schema';
+import type { PermitRegime } from '@shared/types/timed-checks';
 import { formatInZone } from '@shared/time/zone';
+import { editableStates, limitsFixedStates, liveStates } from '@shared/permit/states';
 import { useAbility } from '@client/lib/ability';
 import { Card, Loading } from '@client/components/ui/page';
 import { Notice, SafetyCaution } from '@client/components/ui/notice';
@@ -41,7 +42,7 @@ export function GasTestsSection({ permit }: { permit: PermitLike }) {
   const regime = useRegime(permit.id);
   const series = useGasSeries(permit.id);
   const canTest = ability.can('create', subject('GasTest', scopeOf(permit))) && workOpen(permit);
-  const canTighten = ability.can('update', subject('Permit', { ...permit })) && !['returned_to_service', 'closed', 'cancelled', 'expired'].includes(permit.state);
+  const canTighten = ability.can('update', subject('Permit', { ...permit })) && !limitsFixedStates.includes(permit.state);
 
   return (
     <Card className="min-w-0">
@@ -61,10 +62,10 @@ export function GasTestsSection({ permit }: { permit: PermitLike }) {
             <Regime r={regime.data} />
             <div className="flex flex-col gap-2" data-testid="gas-due">
               <h3 className="text-lg font-semibold">Next due</h3>
-              {permit.state === 'live' ? <DueList due={regime.data.due} kinds={['gas_test']} timeZone={regime.data.timeZone} testId="gas-due-list" /> : <p className="text-sm text-ink-soft">Repeat tests fall due while work is live.</p>}
+              {liveStates.includes(permit.state) ? <DueList due={regime.data.due} kinds={['gas_test']} timeZone={regime.data.timeZone} testId="gas-due-list" /> : <p className="text-sm text-ink-soft">Repeat tests fall due while work is live.</p>}
             </div>
             <LimitsTable view={regime.data} />
-            {canTighten ? <TightenLimitsForm permitId={permit.id} view={regime.data} draft={permit.state === 'draft'} /> : null}
+            {canTighten ? <TightenLimitsForm permitId={permit.id} view={regime.data} draft={editableStates.includes(permit.state)} /> : null}
             {canTest ? <RecordGasTestForm permit={permit} limits={regime.data.limits} timeZone={regime.data.timeZone} requireDailyBumpTest={regime.data.requireDailyBumpTest} /> : null}
             {series.data?.length ? <GasReadingsChart tests={series.data} limits={regime.data.limits} hotWork={regime.data.hotWork} timeZone={regime.data.timeZone} /> : null}
             <h3 className="text-lg font-semibold">History</h3>

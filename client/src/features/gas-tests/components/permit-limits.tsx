@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import type { AtmosphereLimits } from '@shared/calc';
-import type { PermitGasLimitsInput, PermitLimitsView } from '@shared/schemas/gas-tests.schema';
+import type { PermitGasLimitsInput } from '@shared/schemas/gas-tests.schema';
+import type { PermitLimitsView } from '@shared/types/gas-tests';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
 import { TextField } from '@client/components/ui/field';

@@ -6,10 +6,12 @@ import { assessOptionsFor } from '@shared/gas-tests/permit-limits';
 import { instrumentStatus } from '@shared/gas-tests/instrument-status';
 import { failureSummary } from '@shared/gas-tests/verdict-text';
 import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
+import { workUnderWayStates } from '@shared/permit/states';
 import {
   gasReadingsSchema, gasTestInputSchema, gasTestPlaceLabels, gasTestPlaces, gasTestPurposeLabels, gasTestPurposes,
-  type GasTestData, type GasTestInput, type GasTestResult,
+  type GasTestData, type GasTestInput,
 } from '@shared/schemas/gas-tests.schema';
+import type { GasTestResult } from '@shared/types/gas-tests';
 import { ApiError } from '@client/lib/api-client';
 import { AtmosphereReadout } from '@client/components/atmosphere/atmosphere-readout';
 import { Button } from '@client/components/ui/button';
@@ -38,7 +40,7 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
   // Untouched, the time field means "now": the moment of recording, not the minute the form opened.
   const [timeTouched, setTimeTouched] = useState(false);
   const [last, setLast] = useState<GasTestResult | null>(null);
-  const live = ['live', 'suspended'].includes(permit.state);
+  const live = workUnderWayStates.includes(permit.state);
   const form = useForm<GasTestInput, unknown, GasTestData>({
     resolver: zodResolver(gasTestInputSchema),
     defaultValues: {

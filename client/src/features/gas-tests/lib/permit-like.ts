@@ -1,4 +1,4 @@
-import type { PermitState, WorkKind } from '@shared/permit/states';
+import { workOpenStates, type PermitState, type WorkKind } from '@shared/permit/states';
 
 /** What the gas-test sections need of a permit; the permit page's record has all of it. */
 export interface PermitLike {
@@ -15,4 +15,4 @@ export interface PermitLike {
 /** CASL subject fields of the permit's records (gas tests, checks): the same scope as the permit. */
 export const scopeOf = (p: PermitLike) => ({ tenantId: p.tenantId, contractorOrganisationId: p.contractorOrganisationId });
 
-export const workOpen = (p: PermitLike) => ['accepted', 'isolated', 'live', 'suspended'].includes(p.state);
+export const workOpen = (p: PermitLike) => workOpenStates.includes(p.state);

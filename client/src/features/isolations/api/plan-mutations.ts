@@ -1,13 +1,8 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
-import type { PlanStepInput, SavePlanInput } from '@shared/schemas/isolation.schema';
+import type { SavePlanInput } from '@shared/schemas/isolation.schema';
+import type { IsolationPlan, PlanProposal } from '@shared/types/isolations';
 import { api, qs } from '@client/lib/api-client';
-import { isolationPlanKey, type IsolationPlan } from './get-isolation-plan';
-
-export interface PlanProposal {
-  steps: (PlanStepInput & { label: string; position: number })[];
-  warnings: string[];
-  insideDiameterIn: number | null;
-}
+import { isolationPlanKey } from './get-isolation-plan';
 
 /** A first plan for the cut (valves either side, vents and drains between, a plug each side); nothing is saved. */
 export function useProposePlan(permitId: string) {

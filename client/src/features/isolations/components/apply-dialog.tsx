@@ -6,21 +6,26 @@ import { conditionLabels } from '@shared/schemas/isolation.schema';
 import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
-import { SelectField, TextField } from '@client/components/ui/field';
+import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import { ModalDialog } from '@client/components/ui/dialog';
-import type { IsolationStep } from '../api/get-isolation-plan';
+import type { IsolationStep } from '@shared/types/isolations';
 import { useInStore } from '../api/get-inventory';
 import { useStepAction } from '../api/step-mutations';
-import { applyFieldOf, applyFormSchema, numberOrUndefined, takesLock, toApplyInput, type ApplyForm } from '../lib/step-forms';
+import { takesLock } from '@shared/isolations/step-rules';
+import { earlierNotApplied } from '@shared/isolations/lockout-rules';
+import { applyFieldOf, applyFormSchema, numberOrUndefined, textOrUndefined, toApplyInput, type ApplyForm } from '../lib/step-forms';
 import { placeServerErrors } from '../lib/server-errors';
 import { PlugWarnings, plugTargets } from './plug-record';
 import { ConfirmBox } from './confirm-box';
+import { LineStopFields } from './line-stop-fields';
 
 interface Props {
   permitId: string;
   step: IsolationStep;
+  /** Every step of the plan, to tell whether an earlier one is still to go on. */
+  steps: IsolationStep[];
   timeZone: string;
   onClose: () => void;
 }
@@ -34,7 +39,7 @@ function liveWarnings(diameterIn: number | null, v: { bentoniteLb?: number; wate
   }
 }
 
-export function ApplyDialog({ permitId, step, timeZone, onClose }: Props) {
+export function ApplyDialog({ permitId, step, steps, timeZone, onClose }: Props) {
   const lockNeeded = takesLock(step.kind);
   const isPlug = step.kind === 'plug';
   const showLockFields = !isPlug;
@@ -44,8 +49,11 @@ export function ApplyDialog({ permitId, step, timeZone, onClose }: Props) {
   const toast = useToast();
   const [confirmed, setConfirmed] = useState(false);
   const [problem, setProblem] = useState<string | null>(null);
+  const earlier = earlierNotApplied(step, steps);
+  const [serverSaysOrder, setServerSaysOrder] = useState<string | null>(null);
+  const outOfOrder = earlier.length > 0 || serverSaysOrder !== null;
   const form = useForm<ApplyForm>({
-    resolver: zodResolver(applyFormSchema(step.kind)),
+    resolver: zodResolver(applyFormSchema(step.kind, outOfOrder)),
     defaultValues: { lockId: '', tagId: '', appliedAt: isoToWallTime(new Date().toISOString(), timeZone) },
   });
   const { register, formState, handleSubmit, setError, control } = form;
@@ -71,6 +79,8 @@ export function ApplyDialog({ permitId, step, timeZone, onClose }: Props) {
             setError(err.message.startsWith('Lock') ? 'lockId' : 'tagId', { message: err.message });
             return;
           }
+          // Out of the plan's order: the server names what goes on first; the reason field opens beside its message.
+          if (err instanceof ApiError && err.details.some((d) => d.path === 'outOfOrderReason')) setServerSaysOrder(err.message);
           setProblem(placeServerErrors(err, setError, applyFieldOf));
         },
       },
@@ -151,6 +161,15 @@ export function ApplyDialog({ permitId, step, timeZone, onClose }: Props) {
               <PlugWarnings warnings={warnings} title="These figures are outside the rules; the authoriser will have to acknowledge them" />
             </div>
           </fieldset>
+        ) : null}
+        {step.kind === 'line_stop' ? <LineStopFields register={register} errors={formState.errors} /> : null}
+        {outOfOrder ? (
+          <>
+            <Notice tone="caution" title="Out of the plan's order" role="status">
+              {serverSaysOrder ?? `The plan puts ${earlier.map((s) => s.label).join(', ')} on first. Apply ${earlier.length === 1 ? 'it' : 'them'} first, or say why this one goes on now.`}
+            </Notice>
+            <TextAreaField label="Reason for applying it now" {...register('outOfOrderReason', { setValueAs: textOrUndefined })} error={formState.errors.outOfOrderReason?.message} />
+          </>
         ) : null}
         <ConfirmBox checked={confirmed} onChange={setConfirmed}>
           I confirm {step.label} is in the required condition ({conditionLabels[step.condition].toLowerCase()}) and the record above is what I did.

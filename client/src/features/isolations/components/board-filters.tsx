@@ -1,7 +1,7 @@
-import { permitStateLabels } from '@shared/permit/states';
+import { boardPermitStates, permitStateLabels } from '@shared/permit/states';
+import type { BoardQuery as Filters } from '@shared/schemas/isolation.schema';
 import { SelectField } from '@client/components/ui/field';
 import { usePermitPipelines } from '@client/features/permits';
-import { boardPermitStates, type BoardFilters as Filters } from '../api/get-board';
 
 /** Pipeline and permit-state filters; the values live in the URL so a board view can be shared or reloaded. */
 export function BoardFilters({ value, onChange }: { value: Filters; onChange: (next: Filters) => void }) {

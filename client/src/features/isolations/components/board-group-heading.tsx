@@ -2,7 +2,7 @@ import { memo } from 'react';
 import { SelectField } from '@client/components/ui/field';
 import { SchematicStrip } from '@client/components/schematic/schematic-strip';
 import { usePermitPipeline } from '@client/features/permits';
-import type { BoardItem } from '../api/get-board';
+import type { BoardItem } from '@shared/types/board';
 import type { BoardGroup } from '../lib/board-entries';
 import { planRange } from '../lib/step-rules';
 import { boardColumns, boardGrid } from './board-row';

@@ -1,7 +1,7 @@
 import { useCallback, useEffect, useMemo, useRef, useState, useSyncExternalStore, type FocusEvent, type RefObject } from 'react';
 import { defaultRangeExtractor, useWindowVirtualizer, type Range } from '@tanstack/react-virtual';
 import type { LocationUnit } from '@shared/schemas/assets.schema';
-import type { BoardItem } from '../api/get-board';
+import type { BoardItem } from '@shared/types/board';
 import { boardEntries, groupByPipeline, type BoardEntry } from '../lib/board-entries';
 import { BoardGroupHeading } from './board-group-heading';
 import { BoardRow } from './board-row';

@@ -8,7 +8,7 @@ import { formatInZone } from '@shared/time/zone';
 import { Can } from '@client/lib/ability';
 import { Button } from '@client/components/ui/button';
 import { describeGasDue, formatSpan, PermitStateBadge } from '@client/features/permits';
-import type { BoardItem } from '../api/get-board';
+import type { BoardItem } from '@shared/types/board';
 import { slotClass, slotProps, type VirtualSlot } from './virtual-slot';
 
 interface Props extends VirtualSlot {

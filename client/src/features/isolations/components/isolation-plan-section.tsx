@@ -1,6 +1,8 @@
 import { useState } from 'react';
 import { subject } from '@casl/ability';
-import type { PermitState } from '@shared/permit/states';
+import { editableStates, type PermitState } from '@shared/permit/states';
+import { isInPlace } from '@shared/isolations/step-rules';
+import { noDeadEnds } from '@shared/isolations/readiness';
 import { useAbility } from '@client/lib/ability';
 import { Button } from '@client/components/ui/button';
 import { Notice, SafetyCaution } from '@client/components/ui/notice';
@@ -14,6 +16,8 @@ import { planRange } from '../lib/step-rules';
 import { AcknowledgeDialog } from './acknowledge-dialog';
 import { ApplyDialog } from './apply-dialog';
 import { PlanEditor } from './plan-editor';
+import { IsolationReadinessPanel } from './isolation-readiness-panel';
+import { RemovalExceptionDialog } from './removal-exception-dialog';
 import { RemoveDialog } from './remove-dialog';
 import { StepItem, type StepDialog } from './step-item';
 import { VerifyDialog } from './verify-dialog';
@@ -46,18 +50,22 @@ export function IsolationPlanSection({ permit }: { permit: IsolationPlanPermit }
   const ability = useAbility();
   const timeZone = me?.activeTenant?.timeZone ?? 'UTC';
   const unit = pipeline.data?.unit ?? me?.activeTenant?.locationUnit ?? 'mi';
-  const editing = permit.state === 'draft' && ability.can('update', subject('Permit', { tenantId: permit.tenantId, contractorOrganisationId: permit.contractorOrganisationId }));
+  const editing = editableStates.includes(permit.state) && ability.can('update', subject('Permit', { tenantId: permit.tenantId, contractorOrganisationId: permit.contractorOrganisationId }));
   const points = usePipelinePoints(permit.pipelineId, editing);
   const [dialog, setDialog] = useState<StepDialog | null>(null);
 
   const steps = plan.data?.items ?? [];
   const overlays = schematicOverlays(permit, steps);
-  const inPlace = steps.filter((s) => s.status === 'applied' || s.status === 'verified').length;
+  const inPlace = steps.filter((s) => isInPlace(s.status)).length;
   const verified = steps.filter((s) => s.status === 'verified').length;
   const close = () => {
     if (dialog) refocusStep(dialog.step.id);
     setDialog(null);
   };
+  const user = { id: me?.user.id ?? '', name: me?.user.name ?? '' };
+  // The dialog shows the step as it is now (an exception recorded meanwhile, say), not as it was when opened.
+  const dialogStep = dialog ? (steps.find((s) => s.id === dialog.step.id) ?? dialog.step) : null;
+  const stepSubject = subject('IsolationStep', { tenantId: permit.tenantId, contractorOrganisationId: permit.contractorOrganisationId });
 
   return (
     <Card className="flex min-w-0 flex-col gap-4">
@@ -99,6 +107,7 @@ export function IsolationPlanSection({ permit }: { permit: IsolationPlanPermit }
             key={steps.map((s) => s.id).join(',')}
             permit={permit}
             steps={steps}
+            deadEnds={plan.data?.readiness.deadEnds ?? noDeadEnds}
             points={points.data?.items ?? []}
             insideDiameterIn={pipeline.data?.insideDiameterIn ?? null}
             unit={unit}
@@ -106,17 +115,30 @@ export function IsolationPlanSection({ permit }: { permit: IsolationPlanPermit }
         ) : steps.length ? (
           <ol className="flex flex-col gap-3" aria-label="Isolation steps, in the order they are applied">
             {steps.map((step) => (
-              <StepItem key={step.id} permit={permit} step={step} unit={unit} timeZone={timeZone} onAction={setDialog} />
+              <StepItem key={step.id} permit={permit} step={step} unit={unit} timeZone={timeZone} userId={user.id} onAction={setDialog} />
             ))}
           </ol>
         ) : (
           <p className="rounded-card border border-dashed border-line bg-paper px-3 py-4 text-sm text-ink-soft">No isolation plan yet. The planner adds it while the permit is a draft.</p>
         )}
+        {!editing && plan.data ? <IsolationReadinessPanel permit={permit} steps={steps} readiness={plan.data.readiness} timeZone={timeZone} /> : null}
       </div>
 
-      {dialog?.kind === 'apply' ? <ApplyDialog permitId={permit.id} step={dialog.step} timeZone={timeZone} onClose={close} /> : null}
+      {dialog?.kind === 'apply' ? <ApplyDialog permitId={permit.id} step={dialog.step} steps={steps} timeZone={timeZone} onClose={close} /> : null}
       {dialog?.kind === 'verify' ? <VerifyDialog permitId={permit.id} step={dialog.step} timeZone={timeZone} onClose={close} /> : null}
-      {dialog?.kind === 'remove' ? <RemoveDialog permitId={permit.id} step={dialog.step} steps={steps} onClose={close} /> : null}
+      {dialog?.kind === 'remove' ? <RemoveDialog permitId={permit.id} step={dialogStep ?? dialog.step} steps={steps} signer={dialog.signed ? user.name : undefined} onClose={close} /> : null}
+      {dialog?.kind === 'exception' ? (
+        <RemovalExceptionDialog
+          permitId={permit.id}
+          step={dialogStep ?? dialog.step}
+          user={user}
+          mayRecord={ability.can('approve', stepSubject)}
+          mayRemove={ability.can('remove', stepSubject)}
+          timeZone={timeZone}
+          onClose={close}
+          onRemove={() => setDialog({ kind: 'remove', step: dialogStep ?? dialog.step, signed: true })}
+        />
+      ) : null}
       {dialog?.kind === 'acknowledge' ? <AcknowledgeDialog permitId={permit.id} step={dialog.step} what={dialog.what} onClose={close} /> : null}
     </Card>
   );

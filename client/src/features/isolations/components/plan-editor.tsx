@@ -4,18 +4,21 @@ import { conditionForKind, conditionLabels, stepKindLabels } from '@shared/schem
 import { pointKindLabels, type LocationUnit } from '@shared/schemas/assets.schema';
 import { formatPosition } from '@shared/assets/format';
 import type { IsolationPoint } from '@shared/assets/types';
+import { stepKindForPoint } from '@shared/isolations/step-rules';
+import { workSides, type DeadEnds, type WorkSide } from '@shared/isolations/readiness';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import { ModalDialog } from '@client/components/ui/dialog';
-import type { IsolationStep } from '../api/get-isolation-plan';
+import type { IsolationStep } from '@shared/types/isolations';
 import { useProposePlan, useSavePlan } from '../api/plan-mutations';
-import { errorsByRow, kindForPoint, moveRow, newRowKey, rowsFromProposal, rowsFromSteps, toPlanStep, type DraftRow, type RowErrors } from '../lib/plan-draft';
+import { errorsByRow, moveRow, newRowKey, rowsFromProposal, rowsFromSteps, toPlanStep, type DraftRow, type RowErrors } from '../lib/plan-draft';
 import { numberOrUndefined, tempStepSchema } from '../lib/step-forms';
 import { plugTargets } from './plug-record';
 import { StepKindTag } from './step-badges';
+import { PlanCoverage } from './plan-coverage';
 
 export interface EditorPermit {
   id: string;
@@ -27,6 +30,8 @@ export interface EditorPermit {
 interface Props {
   permit: EditorPermit;
   steps: IsolationStep[];
+  /** The dead ends saved with the plan. */
+  deadEnds: DeadEnds;
   points: IsolationPoint[];
   insideDiameterIn: number | null;
   unit: LocationUnit;
@@ -35,8 +40,10 @@ interface Props {
 type Focus = { key: string; dir: 'up' | 'down' } | null;
 
 /** The planner's editor for a draft permit's plan: propose, reorder, remove, add, save. */
-export function PlanEditor({ permit, steps, points, insideDiameterIn, unit }: Props) {
+export function PlanEditor({ permit, steps, deadEnds: savedDeadEnds, points, insideDiameterIn, unit }: Props) {
   const [rows, setRows] = useState<DraftRow[]>(() => rowsFromSteps(steps));
+  const [deadEnds, setDeadEnds] = useState<DeadEnds>(savedDeadEnds);
+  const [deadEndErrors, setDeadEndErrors] = useState<Partial<Record<WorkSide, string>>>({});
   const [dirty, setDirty] = useState(false);
   const [rowErrors, setRowErrors] = useState<RowErrors>({});
   const [general, setGeneral] = useState<string[]>([]);
@@ -88,9 +95,14 @@ export function PlanEditor({ permit, steps, points, insideDiameterIn, unit }: Pr
     const sent = rows;
     setGeneral([]);
     setRowErrors({});
+    // A dead end is declared with its reason; the server asks the same (deadEndsSchema).
+    const missing = Object.fromEntries(workSides.filter((side) => deadEnds[side] !== null && (deadEnds[side] ?? '').trim().length < 3).map((side) => [side, `Say why no product can reach the work from ${side} (at least 3 characters).`]));
+    setDeadEndErrors(missing);
+    if (Object.keys(missing).length) return;
+    const declared = Object.fromEntries(workSides.filter((side) => deadEnds[side] !== null).map((side) => [side, deadEnds[side]!.trim()]));
     // The promise, not mutate's callbacks: the saved plan has new step ids, so this editor is remounted
     // (its key) before mutate's own onSuccess would run, and the confirmation would never show.
-    save.mutateAsync({ version: permit.version, steps: sent.map(toPlanStep) }).then(
+    save.mutateAsync({ version: permit.version, steps: sent.map(toPlanStep), ...(Object.keys(declared).length ? { deadEnds: declared } : {}) }).then(
       (plan) => {
         setRows(rowsFromSteps(plan.items));
         setDirty(false);
@@ -108,7 +120,7 @@ export function PlanEditor({ permit, steps, points, insideDiameterIn, unit }: Pr
 
   const inPlan = new Set(rows.map((r) => r.pointId).filter(Boolean));
   const addPoint = (point: IsolationPoint) => {
-    const kind = kindForPoint[point.kind];
+    const kind = stepKindForPoint[point.kind];
     change([...rows, { key: newRowKey(), pointId: point.id, kind, label: point.tagCode, position: point.position, plugDiameterIn: kind === 'plug' ? (insideDiameterIn ?? undefined) : undefined }]);
   };
 
@@ -225,6 +237,18 @@ export function PlanEditor({ permit, steps, points, insideDiameterIn, unit }: Pr
         </p>
       ) : null}
 
+      <PlanCoverage
+        rows={rows}
+        range={{ from: permit.fromPosition, to: permit.toPosition }}
+        unit={unit}
+        deadEnds={deadEnds}
+        errors={deadEndErrors}
+        onChange={(next) => {
+          setDeadEnds(next);
+          setDirty(true);
+        }}
+      />
+
       <div className="grid gap-4 lg:grid-cols-2">
         <AddRegisterPoint points={points.filter((p) => !inPlan.has(p.id))} unit={unit} onAdd={addPoint} />
         <AddTemporaryStep insideDiameterIn={insideDiameterIn} defaultPosition={permit.fromPosition} onAdd={(row) => change([...rows, row])} />
@@ -271,8 +295,9 @@ function AddRegisterPoint({ points, unit, onAdd }: { points: IsolationPoint[]; u
       <SelectField label="Isolation point" value={choice} onChange={(e) => setChoice(e.target.value)} error={error}>
         <option value="">Choose…</option>
         {points.map((p) => (
-          <option key={p.id} value={p.id}>
-            {p.tagCode} · {pointKindLabels[p.kind]} · {formatPosition(p.position, unit)}
+          // HSE HSG253: a check valve is never an isolation; it is listed so the planner sees why it is not offered.
+          <option key={p.id} value={p.id} disabled={p.valveType === 'check'}>
+            {p.tagCode} · {p.valveType === 'check' ? 'Check valve, never an isolation' : pointKindLabels[p.kind]} · {formatPosition(p.position, unit)}
           </option>
         ))}
       </SelectField>
@@ -283,8 +308,12 @@ function AddRegisterPoint({ points, unit, onAdd }: { points: IsolationPoint[]; u
   );
 }
 
+/** What the planner may add at a temporary position: a mud plug (vapour barrier), or a blind or line stop (isolating devices). */
+const tempKinds = ['plug', 'blind', 'line_stop'] as const;
+type TempKind = (typeof tempKinds)[number];
+
 function AddTemporaryStep({ insideDiameterIn, defaultPosition, onAdd }: { insideDiameterIn: number | null; defaultPosition: number; onAdd: (row: DraftRow) => void }) {
-  const [kind, setKind] = useState<'plug' | 'blind'>('plug');
+  const [kind, setKind] = useState<TempKind>('plug');
   const [label, setLabel] = useState('');
   const [position, setPosition] = useState<string>(String(defaultPosition));
   const [diameter, setDiameter] = useState<string>(insideDiameterIn ? String(insideDiameterIn) : '');
@@ -302,10 +331,13 @@ function AddTemporaryStep({ insideDiameterIn, defaultPosition, onAdd }: { inside
   };
   return (
     <fieldset className="flex min-w-0 flex-col gap-2 rounded-card border border-line p-3">
-      <legend className="px-1 font-semibold">Add a temporary plug or blind</legend>
-      <SelectField label="Kind" value={kind} onChange={(e) => setKind(e.target.value as 'plug' | 'blind')}>
-        <option value="plug">{stepKindLabels.plug}</option>
-        <option value="blind">{stepKindLabels.blind}</option>
+      <legend className="px-1 font-semibold">Add a temporary plug, blind or line stop</legend>
+      <SelectField label="Kind" value={kind} onChange={(e) => setKind(e.target.value as TempKind)}>
+        {tempKinds.map((k) => (
+          <option key={k} value={k}>
+            {stepKindLabels[k]}
+          </option>
+        ))}
       </SelectField>
       <TextField label="Label" value={label} onChange={(e) => setLabel(e.target.value)} error={errors.tempLabel} placeholder="Plug east of the cut" />
       <TextField label="Position" type="number" inputMode="decimal" step="any" value={position} onChange={(e) => setPosition(e.target.value)} error={errors.tempPosition} />

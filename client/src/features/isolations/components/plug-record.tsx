@@ -1,7 +1,7 @@
 import { MUD_PLUG_CAUTION, mudPlug, type PlugWarning } from '@shared/calc';
 import { formatInZone } from '@shared/time/zone';
 import { Notice } from '@client/components/ui/notice';
-import type { IsolationStep } from '../api/get-isolation-plan';
+import type { IsolationStep } from '@shared/types/isolations';
 
 const lb = (v: number) => `${Number(v.toFixed(1))} lb`;
 const inch = (v: number) => `${Number(v.toFixed(1))} in`;

@@ -4,35 +4,50 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { removeStepInputSchema, type RemoveStepInput } from '@shared/schemas/isolation.schema';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
-import { TextAreaField } from '@client/components/ui/field';
+import { TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import { ModalDialog } from '@client/components/ui/dialog';
-import type { IsolationStep } from '../api/get-isolation-plan';
+import type { IsolationStep } from '@shared/types/isolations';
 import { useStepAction } from '../api/step-mutations';
-import { appliedLater } from '../lib/step-rules';
+import { appliedAfter } from '@shared/isolations/lockout-rules';
 import { textOrUndefined } from '../lib/step-forms';
 import { placeServerErrors } from '../lib/server-errors';
 import { ConfirmBox } from './confirm-box';
 
-const fields = ['note', 'plugOutcome', 'outOfOrderReason'] as const;
+const fields = ['note', 'plugOutcome', 'outOfOrderReason', 'password', 'signedName'] as const;
 
-const removeFormSchema = (isPlug: boolean, needsReason: boolean) =>
+const same = (a: string | undefined, b: string) => (a ?? '').trim().toLowerCase() === b.trim().toLowerCase();
+
+/** `signer`: the remover's name when they sign for taking off someone else's lock under a recorded exception. */
+const removeFormSchema = (isPlug: boolean, needsReason: boolean, signer: string | null) =>
   removeStepInputSchema.superRefine((v, ctx) => {
     if (isPlug && !v.plugOutcome) ctx.addIssue({ code: 'custom', path: ['plugOutcome'], message: 'Say whether the plug was removed or left to be displaced by product.' });
     if (needsReason && !v.outOfOrderReason) ctx.addIssue({ code: 'custom', path: ['outOfOrderReason'], message: 'Give the reason for taking this one off out of order.' });
+    if (signer === null) return;
+    if (!v.password) ctx.addIssue({ code: 'custom', path: ['password'], message: 'Re-enter your password to sign.' });
+    if (!same(v.signedName, signer)) ctx.addIssue({ code: 'custom', path: ['signedName'], message: `Type your name exactly as "${signer}".` });
   });
 
-export function RemoveDialog({ permitId, step, steps, onClose }: { permitId: string; step: IsolationStep; steps: IsolationStep[]; onClose: () => void }) {
+interface Props {
+  permitId: string;
+  step: IsolationStep;
+  steps: IsolationStep[];
+  /** Set when the remover takes off someone else's lock or tag under the exception an authoriser recorded: they sign. */
+  signer?: string;
+  onClose: () => void;
+}
+
+export function RemoveDialog({ permitId, step, steps, signer, onClose }: Props) {
   const remove = useStepAction('remove');
   const toast = useToast();
   const isPlug = step.kind === 'plug';
-  const later = appliedLater(step, steps);
+  const later = appliedAfter(step, steps);
   const [serverSaysOrder, setServerSaysOrder] = useState<string | null>(null);
   const needsReason = later.length > 0 || serverSaysOrder !== null;
   const [confirmed, setConfirmed] = useState(false);
   const [problem, setProblem] = useState<string | null>(null);
-  const form = useForm<RemoveStepInput>({ resolver: zodResolver(removeFormSchema(isPlug, needsReason)), defaultValues: {} });
+  const form = useForm<RemoveStepInput>({ resolver: zodResolver(removeFormSchema(isPlug, needsReason, signer ?? null)), defaultValues: {} });
   const { register, formState, handleSubmit, setError } = form;
 
   const submit = handleSubmit((v) => {
@@ -58,7 +73,11 @@ export function RemoveDialog({ permitId, step, steps, onClose }: { permitId: str
   });
 
   return (
-    <ModalDialog title={`Remove ${step.label}`} onClose={onClose} description={<p>Taking an isolation off is recorded and cannot be undone. Each device comes off in reverse order of application.</p>}>
+    <ModalDialog
+      title={signer ? `Remove ${step.label} under the exception procedure` : `Remove ${step.label}`}
+      onClose={onClose}
+      description={<p>Taking an isolation off is recorded and cannot be undone. Each device comes off in reverse order of application.</p>}
+    >
       <form noValidate onSubmit={submit} className="flex flex-col gap-3" data-testid="remove-form">
         {problem ? (
           <Notice tone="danger" role="alert" title="Not removed">
@@ -95,6 +114,15 @@ export function RemoveDialog({ permitId, step, steps, onClose }: { permitId: str
           </>
         ) : null}
         <TextAreaField label="Note (optional)" {...register('note', { setValueAs: textOrUndefined })} error={formState.errors.note?.message} data-autofocus={isPlug ? undefined : true} />
+        {signer ? (
+          <>
+            <Notice tone="caution" title={`This is ${step.appliedByName ?? 'someone else'}'s lock`} role="status">
+              {step.exceptionAuthoriserName ?? 'An authoriser'} recorded that they are not on site. You sign for taking it off; they get an e-mail saying so.
+            </Notice>
+            <TextField label="Your password" type="password" autoComplete="current-password" {...register('password')} error={formState.errors.password?.message} />
+            <TextField label={`Type your name as it appears: ${signer}`} autoComplete="off" spellCheck={false} {...register('signedName')} error={formState.errors.signedName?.message} />
+          </>
+        ) : null}
         <ConfirmBox checked={confirmed} onChange={setConfirmed}>
           I have checked that people are clear and that those affected know {step.label} is coming off.
         </ConfirmBox>
@@ -103,7 +131,7 @@ export function RemoveDialog({ permitId, step, steps, onClose }: { permitId: str
             Cancel
           </Button>
           <Button type="submit" variant="danger" busy={remove.isPending} disabled={!confirmed}>
-            Remove isolation
+            {signer ? 'Sign: remove isolation' : 'Remove isolation'}
           </Button>
         </div>
       </form>

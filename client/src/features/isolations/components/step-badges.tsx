@@ -1,5 +1,5 @@
 import { stepKindLabels, type StepKind } from '@shared/schemas/isolation.schema';
-import type { StepStatus } from '../api/get-isolation-plan';
+import type { StepStatus } from '@shared/types/isolations';
 
 // Safety colour meanings (ISO 3864 / ANSI Z535): yellow caution = on but not yet checked by a second
 // person, green = isolation proven, grey = planned or finished. The words carry the meaning; the colour repeats it.

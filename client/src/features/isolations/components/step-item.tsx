@@ -5,16 +5,22 @@ import type { LocationUnit } from '@shared/schemas/assets.schema';
 import { formatPosition } from '@shared/assets/format';
 import type { PermitState } from '@shared/permit/states';
 import { formatInZone } from '@shared/time/zone';
-import { Can } from '@client/lib/ability';
+import { Can, useAbility } from '@client/lib/ability';
 import { Button } from '@client/components/ui/button';
 import { EnteredLate } from '@client/components/ui/entered-late';
-import type { IsolationStep } from '../api/get-isolation-plan';
-import { stepActionsFit } from '../lib/step-rules';
+import type { IsolationStep } from '@shared/types/isolations';
+import { isInPlace, stepActions } from '@shared/isolations/step-rules';
+import { removalNeedsException } from '@shared/isolations/lockout-rules';
 import { acknowledgeButtonLabels, type AcknowledgeWhat } from './acknowledge-dialog';
+import { LineStopRecord } from './line-stop-record';
 import { PlugRecord } from './plug-record';
 import { StepKindTag, StepStatusBadge } from './step-badges';
 
-export type StepDialog = { kind: 'apply' | 'verify' | 'remove'; step: IsolationStep } | { kind: 'acknowledge'; step: IsolationStep; what: AcknowledgeWhat };
+/** `signed`: a removal of someone else's lock under a recorded exception, which the remover signs. */
+export type StepDialog =
+  | { kind: 'apply' | 'verify' | 'exception'; step: IsolationStep }
+  | { kind: 'remove'; step: IsolationStep; signed?: boolean }
+  | { kind: 'acknowledge'; step: IsolationStep; what: AcknowledgeWhat };
 
 export interface StepPermit {
   id: string;
@@ -28,6 +34,8 @@ interface Props {
   step: IsolationStep;
   unit: LocationUnit;
   timeZone: string;
+  /** The signed-in person: a lock or tag someone else put on is theirs to take off only under the exception procedure. */
+  userId: string;
   onAction: (dialog: StepDialog) => void;
 }
 
@@ -43,12 +51,16 @@ function Fact({ label, children }: { label: string; children: ReactNode }) {
 const reading = (s: IsolationStep) => (s.verificationReading !== null ? `: ${s.verificationReading} ${s.verificationUnit ?? ''}`.trimEnd() : '');
 
 /** One step of the plan: what it is, what has been done to it and by whom, and what may be done next. */
-export function StepItem({ permit, step, unit, timeZone, onAction }: Props) {
-  const fit = stepActionsFit(step, permit.state);
+export function StepItem({ permit, step, unit, timeZone, userId, onAction }: Props) {
+  const fit = stepActions(step, permit.state);
+  const ability = useAbility();
+  const othersDevice = fit.remove && removalNeedsException(step, userId);
   const stepSubject = subject('IsolationStep', { tenantId: permit.tenantId, contractorOrganisationId: permit.contractorOrganisationId });
   const permitSubject = subject('Permit', { tenantId: permit.tenantId, contractorOrganisationId: permit.contractorOrganisationId });
   const at = (iso: string | null) => formatInZone(iso, timeZone);
-  const inPlace = step.status === 'applied' || step.status === 'verified';
+  const inPlace = isInPlace(step.status);
+  // A technician who did not put the lock on, and the authoriser who records the exception, both come through the exception procedure.
+  const mayUseException = othersDevice && (ability.can('remove', stepSubject) || ability.can('approve', stepSubject));
 
   return (
     <li className="flex min-w-0 flex-col gap-3 rounded-card border border-line bg-surface p-3" data-testid="isolation-step" data-label={step.label} data-status={step.status} aria-labelledby={`step-${step.id}`}>
@@ -76,6 +88,7 @@ export function StepItem({ permit, step, unit, timeZone, onAction }: Props) {
           <Fact label="Applied">
             {step.appliedByName}, {at(step.appliedAt)}
             {step.appliedEnteredLate ? <EnteredLate /> : null}
+            {step.appliedOutOfOrderReason ? <span className="block text-ink-soft">Out of the plan&apos;s order: {step.appliedOutOfOrderReason}</span> : null}
           </Fact>
         ) : null}
         {step.remotelyOperable && step.appliedAt ? (
@@ -102,10 +115,16 @@ export function StepItem({ permit, step, unit, timeZone, onAction }: Props) {
           <Fact label="Removed">
             {step.removedByName}, {at(step.removedAt)}
             {step.removalNote ? <span className="block text-ink-soft">{step.removalNote}</span> : null}
+            {step.removedUnderException ? <span className="block font-semibold">Under the exception procedure, authorised by {step.exceptionAuthoriserName}</span> : null}
+          </Fact>
+        ) : step.exceptionRecordedAt ? (
+          <Fact label="Exception recorded">
+            {step.exceptionAuthoriserName}, {at(step.exceptionRecordedAt)}: {step.appliedByName} is away; another technician may take the lock off and sign for it
           </Fact>
         ) : null}
       </dl>
       {step.kind === 'plug' ? <PlugRecord step={step} timeZone={timeZone} /> : null}
+      {step.kind === 'line_stop' ? <LineStopRecord step={step} timeZone={timeZone} /> : null}
       <div className="flex flex-wrap gap-2">
         {fit.apply ? (
           <Can I="apply" this={stepSubject}>
@@ -145,12 +164,17 @@ export function StepItem({ permit, step, unit, timeZone, onAction }: Props) {
             </Button>
           </Can>
         ) : null}
-        {fit.remove ? (
+        {fit.remove && !othersDevice ? (
           <Can I="remove" this={stepSubject}>
             <Button variant="danger" aria-describedby={`step-${step.id}`} onClick={() => onAction({ kind: 'remove', step })}>
               Remove
             </Button>
           </Can>
+        ) : null}
+        {mayUseException ? (
+          <Button variant="danger" aria-describedby={`step-${step.id}`} onClick={() => onAction({ kind: 'exception', step })}>
+            Remove under the exception procedure
+          </Button>
         ) : null}
       </div>
     </li>

@@ -8,7 +8,7 @@ import { SelectField, TextAreaField, TextField } from '@client/components/ui/fie
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import { ModalDialog } from '@client/components/ui/dialog';
-import type { IsolationStep } from '../api/get-isolation-plan';
+import type { IsolationStep } from '@shared/types/isolations';
 import { useStepAction } from '../api/step-mutations';
 import { numberOrUndefined, textOrUndefined } from '../lib/step-forms';
 import { placeServerErrors } from '../lib/server-errors';

@@ -1,4 +1,4 @@
-import type { BoardItem } from '../api/get-board';
+import type { BoardItem } from '@shared/types/board';
 
 export interface BoardGroup {
   pipelineId: string;

@@ -1,6 +1,5 @@
-import type { IsolationPointKind } from '@shared/schemas/assets.schema';
 import type { PlanStepInput, StepKind } from '@shared/schemas/isolation.schema';
-import type { IsolationStep } from '../api/get-isolation-plan';
+import type { IsolationStep } from '@shared/types/isolations';
 
 /** One row of the plan while the planner edits it; `key` stays with the row when it moves. */
 export interface DraftRow {
@@ -13,17 +12,6 @@ export interface DraftRow {
   label: string;
   position: number;
 }
-
-/** The step kind a register point takes in a plan (the server checks the same pairing). */
-export const kindForPoint: Record<IsolationPointKind, StepKind> = {
-  block_valve: 'block_valve',
-  vent: 'vent',
-  drain: 'drain',
-  plug_position: 'plug',
-  mechanical_plug_position: 'plug',
-  blind_position: 'blind',
-  isolator: 'isolator',
-};
 
 let counter = 0;
 export const newRowKey = () => `new-${Date.now().toString(36)}-${(counter++).toString(36)}`;

@@ -1,29 +1,22 @@
 import { useMemo, useState } from 'react';
-import { useSearchParams } from 'react-router-dom';
+import { boardQuerySchema, type BoardQuery } from '@shared/schemas/isolation.schema';
+import type { BoardItem } from '@shared/types/board';
 import { formatInZone } from '@shared/time/zone';
 import { Button } from '@client/components/ui/button';
 import { Notice, SafetyCaution } from '@client/components/ui/notice';
 import { EmptyState, Loading, PageHeader } from '@client/components/ui/page';
+import { useListQuery } from '@client/lib/list-query';
 import { useMe } from '@client/features/auth';
 import { useNow } from '@client/features/permits';
-import { boardPermitStates, useBoard, type BoardFilters as Filters, type BoardItem } from '../api/get-board';
+import { useBoard } from '../api/get-board';
 import { AcknowledgeDialog } from '../components/acknowledge-dialog';
 import { BoardFilters } from '../components/board-filters';
 import { LiveIndicator } from '../components/live-indicator';
 import { BoardList } from '../components/board-list';
 import { useBoardStream } from '../hooks/use-board-stream';
 
-function filtersFrom(params: URLSearchParams): Filters {
-  const state = params.get('permitState');
-  return {
-    pipelineId: params.get('pipelineId') || undefined,
-    permitState: boardPermitStates.find((s) => s === state),
-  };
-}
-
 export default function BoardPage() {
-  const [params, setParams] = useSearchParams();
-  const filters = filtersFrom(params);
+  const { query: filters, set } = useListQuery(boardQuerySchema);
   const board = useBoard(filters);
   const status = useBoardStream();
   const now = useNow(30_000);
@@ -33,12 +26,7 @@ export default function BoardPage() {
   const unit = me?.activeTenant?.locationUnit ?? 'mi';
   const tenantId = me?.activeTenantId ?? '';
 
-  const setFilters = (next: Filters) => {
-    const p = new URLSearchParams();
-    if (next.pipelineId) p.set('pipelineId', next.pipelineId);
-    if (next.permitState) p.set('permitState', next.permitState);
-    setParams(p, { replace: true });
-  };
+  const setFilters = (next: BoardQuery) => set({ pipelineId: next.pipelineId, permitState: next.permitState });
 
   const items = useMemo(() => board.data?.items ?? [], [board.data]);
   const unacknowledged = useMemo(() => items.filter((i) => !i.controlRoomAckAppliedAt).length, [items]);

@@ -1,12 +1,7 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { Page } from '@shared/schemas/common.schema';
+import type { UserRow } from '@shared/types/admin';
 import { api, ApiError, qs } from '@client/lib/api-client';
-
-export interface LeadOption {
-  userId: string;
-  name: string;
-  email: string;
-}
 
 /**
  * Contractor leads of one organisation. Not every role may list people: a refusal answers null,
@@ -15,9 +10,9 @@ export interface LeadOption {
 export const getContractorLeadsQueryOptions = (organisationId: string) =>
   queryOptions({
     queryKey: ['users', 'list', { role: 'contractor_lead', organisationId, pageSize: 200 }],
-    queryFn: async (): Promise<LeadOption[] | null> => {
+    queryFn: async (): Promise<UserRow[] | null> => {
       try {
-        const page = await api.get<Page<LeadOption>>(`/api/users${qs({ role: 'contractor_lead', organisationId, page: 1, pageSize: 200 })}`);
+        const page = await api.get<Page<UserRow>>(`/api/users${qs({ role: 'contractor_lead', organisationId, page: 1, pageSize: 200 })}`);
         const seen = new Set<string>();
         return page.items.filter((u) => !seen.has(u.userId) && seen.add(u.userId));
       } catch (err) {

@@ -1,20 +1,14 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { Page } from '@shared/schemas/common.schema';
-import type { OrganisationKind } from '@shared/abilities/roles';
+import type { OrganisationRow } from '@shared/types/admin';
 import { api, qs } from '@client/lib/api-client';
-
-export interface OrganisationOption {
-  id: string;
-  name: string;
-  kind: OrganisationKind;
-}
 
 /** Contractor organisations of the tenant (GET /api/organisations answers every kind). */
 export const getContractorsQueryOptions = () =>
   queryOptions({
     queryKey: ['organisations', 'list', { page: 1, pageSize: 200 }],
-    queryFn: () => api.get<Page<OrganisationOption>>(`/api/organisations${qs({ page: 1, pageSize: 200 })}`),
-    select: (page: Page<OrganisationOption>) => page.items.filter((o) => o.kind === 'contractor'),
+    queryFn: () => api.get<Page<OrganisationRow>>(`/api/organisations${qs({ page: 1, pageSize: 200 })}`),
+    select: (page: Page<OrganisationRow>) => page.items.filter((o) => o.kind === 'contractor'),
     staleTime: 5 * 60_000,
   });
 

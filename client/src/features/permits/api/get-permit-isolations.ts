@@ -1,21 +1,12 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
-import type { StepKind } from '@shared/schemas/isolation.schema';
+import type { IsolationStepSummary } from '@shared/types/isolations';
 import { api } from '@client/lib/api-client';
 
-/** The few fields of an isolation step the permit page draws on the line. */
-export interface IsolationStepSummary {
-  id: string;
-  seq: number;
-  pointId: string | null;
-  label: string;
-  position: number;
-  kind: StepKind;
-  status: 'planned' | 'applied' | 'verified' | 'removed';
-}
+export const permitIsolationsKey = (permitId: string) => ['permits', 'detail', permitId, 'isolations'] as const;
 
 export const getPermitIsolationsQueryOptions = (permitId: string) =>
   queryOptions({
-    queryKey: ['permits', 'detail', permitId, 'isolations'],
+    queryKey: permitIsolationsKey(permitId),
     queryFn: () => api.get<{ items: IsolationStepSummary[] }>(`/api/permits/${encodeURIComponent(permitId)}/isolations`),
   });
 

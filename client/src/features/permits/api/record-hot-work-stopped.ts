@@ -1,6 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
+import type { PermitDetail } from '@shared/types/permits';
 import { api } from '@client/lib/api-client';
-import { getPermitQueryOptions, type PermitDetail } from './get-permit';
+import { getPermitQueryOptions } from './get-permit';
 import { permitsListKey } from './get-permits';
 
 /** Hot work has stopped: the server starts the fire watch from now. */

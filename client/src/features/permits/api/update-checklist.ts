@@ -1,8 +1,9 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { z } from 'zod';
 import type { checklistUpdateSchema } from '@shared/schemas/permit.schema';
+import type { PermitDetail } from '@shared/types/permits';
 import { api } from '@client/lib/api-client';
-import { getPermitQueryOptions, type PermitDetail } from './get-permit';
+import { getPermitQueryOptions } from './get-permit';
 
 export type ChecklistUpdate = z.infer<typeof checklistUpdateSchema>;
 

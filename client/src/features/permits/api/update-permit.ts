@@ -1,7 +1,8 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { UpdatePermitInput } from '@shared/schemas/permit.schema';
+import type { PermitDetail } from '@shared/types/permits';
 import { api } from '@client/lib/api-client';
-import { getPermitQueryOptions, type PermitDetail } from './get-permit';
+import { getPermitQueryOptions } from './get-permit';
 import { permitsListKey } from './get-permits';
 
 /** PATCH a draft; the server refuses a stale `version` with 409. */

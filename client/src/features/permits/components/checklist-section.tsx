@@ -1,18 +1,11 @@
 import { subject } from '@casl/ability';
-import type { ChecklistItem } from '@shared/schemas/permit.schema';
-import type { PermitState } from '@shared/permit/states';
+import { checklistOpenStates } from '@shared/permit/states';
 import { formatInZone } from '@shared/time/zone';
 import { useAbility } from '@client/lib/ability';
 import { Card } from '@client/components/ui/page';
 import { useToast } from '@client/components/ui/toast';
-import type { PermitDetail } from '../api/get-permit';
+import type { ChecklistItem, PermitDetail } from '@shared/types/permits';
 import { useUpdateChecklist } from '../api/update-checklist';
-
-// The states in which the server lets each list change (permits.service.ts updateChecklist).
-const openFor: Record<'checklist' | 'walkdown', PermitState[]> = {
-  checklist: ['accepted', 'isolated', 'live', 'suspended'],
-  walkdown: ['work_complete'],
-};
 
 function ItemList({ permit, list, items, editable, timeZone }: { permit: PermitDetail; list: 'checklist' | 'walkdown'; items: ChecklistItem[]; editable: boolean; timeZone: string }) {
   const update = useUpdateChecklist(permit.id);
@@ -59,9 +52,9 @@ function ItemList({ permit, list, items, editable, timeZone }: { permit: PermitD
 export function ChecklistSection({ permit, timeZone }: { permit: PermitDetail; timeZone: string }) {
   const ability = useAbility();
   const record = subject('Permit', { ...permit });
-  const canChecklist = openFor.checklist.includes(permit.state) && ability.can('start_work', record);
-  const canWalkdown = openFor.walkdown.includes(permit.state) && ability.can('return_to_service', record);
-  const showWalkdown = permit.state === 'work_complete' || permit.walkdown.some((i) => i.confirmed);
+  const canChecklist = checklistOpenStates.checklist.includes(permit.state) && ability.can('start_work', record);
+  const canWalkdown = checklistOpenStates.walkdown.includes(permit.state) && ability.can('return_to_service', record);
+  const showWalkdown = checklistOpenStates.walkdown.includes(permit.state) || permit.walkdown.some((i) => i.confirmed);
 
   return (
     <Card>

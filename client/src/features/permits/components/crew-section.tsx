@@ -1,5 +1,5 @@
 import { Card } from '@client/components/ui/page';
-import type { PermitDetail } from '../api/get-permit';
+import type { PermitDetail } from '@shared/types/permits';
 import { Detail, DetailList } from './detail-list';
 
 export function CrewSection({ permit }: { permit: PermitDetail }) {

@@ -2,12 +2,13 @@ import { useState } from 'react';
 import { subject } from '@casl/ability';
 import { fireWatchEnd } from '@shared/calc';
 import { formatInZone } from '@shared/time/zone';
+import { workUnderWayStates } from '@shared/permit/states';
 import { useAbility } from '@client/lib/ability';
 import { Button } from '@client/components/ui/button';
 import { ModalDialog } from '@client/components/ui/dialog';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
-import type { PermitDetail } from '../api/get-permit';
+import type { PermitDetail } from '@shared/types/permits';
 import { useRecordHotWorkStopped } from '../api/record-hot-work-stopped';
 import { formatSpan } from '../lib/time-left';
 import { useNow } from '../hooks/use-now';
@@ -36,7 +37,7 @@ export function HotWorkPanel({ permit, timeZone }: { permit: PermitDetail; timeZ
     );
   }
 
-  const may = ['live', 'suspended'].includes(permit.state) && ability.can('hand_back', subject('Permit', { ...permit }));
+  const may = workUnderWayStates.includes(permit.state) && ability.can('hand_back', subject('Permit', { ...permit }));
   if (!may) {
     return <p className="text-sm text-ink-soft">Fire watch: {permit.fireWatchMinutes} minutes from when the contractor lead records that hot work has stopped.</p>;
   }

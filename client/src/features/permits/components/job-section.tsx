@@ -1,6 +1,6 @@
 import { workKindLabels } from '@shared/permit/states';
 import { Card } from '@client/components/ui/page';
-import type { PermitDetail } from '../api/get-permit';
+import type { PermitDetail } from '@shared/types/permits';
 import { Detail, DetailList } from './detail-list';
 
 export function JobSection({ permit }: { permit: PermitDetail }) {

@@ -1,10 +1,9 @@
 import { useId, useState } from 'react';
-import type { PermitAction } from '@shared/schemas/permit.schema';
 import type { PermitEvent } from '@shared/permit/state-machine';
 import { permitStateLabels } from '@shared/permit/states';
 import { Button } from '@client/components/ui/button';
 import { useToast } from '@client/components/ui/toast';
-import type { PermitDetail } from '../api/get-permit';
+import type { PermitAction, PermitDetail } from '@shared/types/permits';
 import { TransitionDialog, type TransitionOutcome } from './transition-dialog';
 
 interface Props {

@@ -1,6 +1,6 @@
 import { Link } from 'react-router-dom';
-import type { PermitSummary } from '@shared/schemas/permit.schema';
-import { workKindLabels } from '@shared/permit/states';
+import type { PermitSummary } from '@shared/types/permits';
+import { liveStates, workKindLabels } from '@shared/permit/states';
 import type { LocationUnit } from '@shared/schemas/assets.schema';
 import { formatInZone } from '@shared/time/zone';
 import { PermitStateBadge } from './permit-state-badge';
@@ -34,7 +34,7 @@ export function PermitCards({ items, timeZone, unit }: { items: PermitSummary[];
               {formatInZone(p.validFrom, timeZone)} to {formatInZone(p.validTo, timeZone)}
             </dd>
           </dl>
-          {p.state === 'live' ? (
+          {liveStates.includes(p.state) ? (
             <p className="mt-1">
               <GasTestDue due={p.nextGasTestDue} timeZone={timeZone} />
             </p>

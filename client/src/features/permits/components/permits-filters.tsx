@@ -1,15 +1,15 @@
 import { useId, useState } from 'react';
 import { permitStateLabels, permitStates, workKindLabels, workKinds, type PermitState } from '@shared/permit/states';
+import type { PermitsQuery } from '@shared/schemas/permit.schema';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { Button } from '@client/components/ui/button';
-import type { PermitsParams } from '../api/get-permits';
 import { usePermitPipelines } from '../api/get-pipelines';
 import { useContractors } from '../api/get-contractors';
 import { hasFilters } from '../lib/list-params';
 import { pipelineLabel } from '../lib/positions';
 
 interface Props {
-  query: PermitsParams;
+  query: PermitsQuery;
   onChange: (patch: Record<string, string | undefined>) => void;
   onClear: () => void;
 }

@@ -1,7 +1,7 @@
 import type { LocationUnit } from '@shared/schemas/assets.schema';
 import type { PipelineDetail } from '@shared/assets/types';
 import { Card } from '@client/components/ui/page';
-import type { PermitDetail } from '../api/get-permit';
+import type { PermitDetail } from '@shared/types/permits';
 import { usePermitPipeline } from '../api/get-pipeline';
 import { usePermitIsolations } from '../api/get-permit-isolations';
 import { formatRange, pipelineLabel } from '../lib/positions';

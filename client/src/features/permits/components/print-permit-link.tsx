@@ -1,4 +1,4 @@
-import type { PermitDetail } from '../api/get-permit';
+import type { PermitDetail } from '@shared/types/permits';
 import { linkButtonClass } from './link-button';
 
 /** The printable permit for the work site; the browser downloads it with the session cookie. */

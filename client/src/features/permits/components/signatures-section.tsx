@@ -1,7 +1,7 @@
 import { permitEventLabels } from '@shared/permit/state-machine';
 import { formatInZone } from '@shared/time/zone';
 import { Card } from '@client/components/ui/page';
-import type { PermitDetail } from '../api/get-permit';
+import type { PermitDetail } from '@shared/types/permits';
 
 export function SignaturesSection({ permit, timeZone }: { permit: PermitDetail; timeZone: string }) {
   return (

@@ -3,7 +3,7 @@ import { permitStateLabels, type PermitState } from '@shared/permit/states';
 import { roleLabels, type Role } from '@shared/abilities/roles';
 import { formatInZone } from '@shared/time/zone';
 import { Card } from '@client/components/ui/page';
-import type { PermitDetail } from '../api/get-permit';
+import type { PermitDetail } from '@shared/types/permits';
 
 const actionWords: Record<string, string> = {
   created: 'Created',
@@ -13,6 +13,9 @@ const actionWords: Record<string, string> = {
   checklist_unconfirmed: 'Checklist item unconfirmed',
   walkdown_confirmed: 'Walk-down item confirmed',
   walkdown_unconfirmed: 'Walk-down item unconfirmed',
+  proving_started: 'Hold test started',
+  section_proved: 'Section proved dead',
+  proving_failed: 'Hold test failed',
 };
 
 const actionLabel = (a: string) => actionWords[a] ?? permitEventLabels[a as PermitEvent] ?? a.charAt(0).toUpperCase() + a.slice(1).replace(/_/g, ' ');

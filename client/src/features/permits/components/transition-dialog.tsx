@@ -1,14 +1,14 @@
 import { useMemo } from 'react';
 import { Controller, useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { transitionInputSchema, type PermitAction } from '@shared/schemas/permit.schema';
+import { transitionInputSchema } from '@shared/schemas/permit.schema';
+import type { PermitAction, PermitDetail } from '@shared/types/permits';
 import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
 import { ModalDialog } from '@client/components/ui/dialog';
 import { TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
-import type { PermitDetail } from '../api/get-permit';
 import { useTransitionPermit } from '../api/transition-permit';
 import { eventExplanations, irreversibleNotes } from '../lib/transition-copy';
 

@@ -1,6 +1,6 @@
 import type { CreatePermitInput } from '@shared/schemas/permit.schema';
 import { nextWholeHourWall, wallTimeToIso } from '@shared/time/zone';
-import type { PermitDetail } from '../api/get-permit';
+import type { PermitDetail } from '@shared/types/permits';
 
 /** A new request: starting at the next whole hour but one, for an eight-hour shift. */
 export function emptyPermitValues(now: Date, timeZone: string, contractorOrganisationId = ''): CreatePermitInput {

@@ -16,7 +16,7 @@ export const eventExplanations: Partial<Record<PermitEvent, string>> = {
   reject: 'The permit goes back to the requester as a draft, with your reasons, to be changed and sent again.',
   approve: 'You sign as the authoriser: re-enter your password and type your name.',
   accept: 'You sign as the contractor lead: re-enter your password and type your name.',
-  confirm_isolated: 'Confirms every isolation step is applied and verified by a second person.',
+  confirm_isolated: 'You sign as the authoriser that the isolations are in place: every step applied and verified by a second person, an isolating device on every open side of the work, and the section proved dead. Re-enter your password and type your name.',
   start_work: 'Work may start now under this permit.',
   suspend: 'The crew must stop work and make the site safe.',
   resume: 'Work may restart under this permit.',

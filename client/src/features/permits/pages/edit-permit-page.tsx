@@ -1,4 +1,5 @@
 import { Navigate, useNavigate, useParams } from 'react-router-dom';
+import { editableStates } from '@shared/permit/states';
 import { ApiError } from '@client/lib/api-client';
 import { Loading, PageHeader } from '@client/components/ui/page';
 import { Notice } from '@client/components/ui/notice';
@@ -30,7 +31,7 @@ export default function EditPermitPage() {
     );
   }
   const p = permit.data;
-  if (p.state !== 'draft') return <Navigate to={`/permits/${p.id}`} replace />;
+  if (!editableStates.includes(p.state)) return <Navigate to={`/permits/${p.id}`} replace />;
 
   return (
     <>

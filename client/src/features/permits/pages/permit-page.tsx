@@ -1,6 +1,6 @@
 import { Link, useParams } from 'react-router-dom';
 import { subject } from '@casl/ability';
-import { workKindLabels } from '@shared/permit/states';
+import { editableStates, finishedStates, liveStates, workKindLabels } from '@shared/permit/states';
 import { formatInZone } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
 import { useAbility } from '@client/lib/ability';
@@ -50,8 +50,8 @@ export default function PermitPage() {
   }
 
   const p = permit.data;
-  const canEdit = p.state === 'draft' && ability.can('update', subject('Permit', { ...p }));
-  const finished = ['returned_to_service', 'closed', 'cancelled'].includes(p.state);
+  const canEdit = editableStates.includes(p.state) && ability.can('update', subject('Permit', { ...p }));
+  const finished = finishedStates.includes(p.state);
 
   return (
     <div className="flex min-w-0 flex-col gap-4">
@@ -73,11 +73,11 @@ export default function PermitPage() {
           <span className="text-sm text-ink-soft">
             {formatInZone(p.validFrom, timeZone)} to {formatInZone(p.validTo, timeZone)}
           </span>
-          {p.state === 'live' ? <GasTestDue due={p.nextGasTestDue} timeZone={timeZone} /> : null}
+          {liveStates.includes(p.state) ? <GasTestDue due={p.nextGasTestDue} timeZone={timeZone} /> : null}
         </p>
       </header>
 
-      {p.state === 'draft' && p.rejectionReason ? (
+      {editableStates.includes(p.state) && p.rejectionReason ? (
         <Notice tone="caution" title="Sent back by the authoriser" role="status">
           <p className="break-words whitespace-pre-line">{p.rejectionReason}</p>
         </Notice>

@@ -1,10 +1,12 @@
 import { useMemo } from 'react';
-import { Link, useSearchParams } from 'react-router-dom';
+import { Link } from 'react-router-dom';
 import type { ColumnDef } from '@tanstack/react-table';
-import type { PermitSummary } from '@shared/schemas/permit.schema';
-import { workKindLabels } from '@shared/permit/states';
+import { permitsQuerySchema } from '@shared/schemas/permit.schema';
+import type { PermitSummary } from '@shared/types/permits';
+import { liveStates, workKindLabels } from '@shared/permit/states';
 import { formatInZone } from '@shared/time/zone';
 import { Can } from '@client/lib/ability';
+import { useListQuery } from '@client/lib/list-query';
 import { DataTable } from '@client/components/ui/data-table';
 import { Button } from '@client/components/ui/button';
 import { EmptyState, Loading, PageHeader } from '@client/components/ui/page';
@@ -15,7 +17,7 @@ import { GasTestDue } from '../components/gas-test-due';
 import { PermitCards } from '../components/permit-cards';
 import { PermitsFilters } from '../components/permits-filters';
 import { linkButtonClass } from '../components/link-button';
-import { hasFilters, patchParams, readPermitsParams } from '../lib/list-params';
+import { hasFilters } from '../lib/list-params';
 import { formatRange } from '../lib/positions';
 import { useTenantSettings } from '../hooks/use-tenant-settings';
 
@@ -30,12 +32,9 @@ function RequestLink() {
 }
 
 export default function PermitsPage() {
-  const [params, setParams] = useSearchParams();
-  const query = useMemo(() => readPermitsParams(params), [params]);
+  const { query, set, clear } = useListQuery(permitsQuerySchema);
   const permits = usePermits(query);
   const { timeZone, unit } = useTenantSettings();
-  const set = (patch: Record<string, string | undefined>) => setParams(patchParams(params, patch), { replace: true });
-  const clear = () => setParams(new URLSearchParams(), { replace: true });
 
   const columns = useMemo<ColumnDef<PermitSummary, unknown>[]>(
     () => [
@@ -81,7 +80,7 @@ export default function PermitsPage() {
         id: 'gas',
         header: 'Gas test',
         enableSorting: false,
-        cell: ({ row }) => (row.original.state === 'live' ? <GasTestDue due={row.original.nextGasTestDue} timeZone={timeZone} compact /> : <span className="text-ink-soft">—</span>),
+        cell: ({ row }) => (liveStates.includes(row.original.state) ? <GasTestDue due={row.original.nextGasTestDue} timeZone={timeZone} compact /> : <span className="text-ink-soft">—</span>),
       },
       { id: 'updatedAt', accessorKey: 'updatedAt', header: 'Changed', cell: ({ row }) => <span className="whitespace-nowrap">{formatInZone(row.original.updatedAt, timeZone)}</span> },
     ],
@@ -128,7 +127,7 @@ export default function PermitsPage() {
                 isLoading={false}
                 page={query.page}
                 onPage={(p) => set({ page: String(p) })}
-                sorting={[{ id: query.sort ?? 'updatedAt', desc: query.dir !== 'asc' }]}
+                sorting={[{ id: query.sort, desc: query.dir !== 'asc' }]}
                 onSorting={(s) => set({ sort: s[0]?.id, dir: s[0] ? (s[0].desc ? 'desc' : 'asc') : undefined, page: undefined })}
                 empty={{ title: 'No permits.' }}
                 rowTestId="permit-row"

@@ -1,18 +1,20 @@
 import { QueryTypes } from 'sequelize';
 import { defineAbilityFor } from '@shared/abilities/define-ability';
 import { assessAtmosphere, DEFAULT_ATMOSPHERE_LIMITS, mudPlug } from '@shared/calc';
-import type { PermitEvent } from '@shared/permit/state-machine';
-import { createLogger } from '../../lib/logger';
-import { ManualClock } from '../../lib/clock';
-import type { AppDeps } from '../../deps';
-import type { Config } from '../../config/env';
-import { loadActor } from '../../modules/auth/auth.repository';
-import { createPermit, transitionPermit, updateChecklist, recordHotWorkStopped, type CallerContext } from '../../modules/permits/permits.service';
-import { findPermit } from '../../modules/permits/permits.repository';
-import { applyTransition } from '../../modules/permits/permits.service';
-import { proposePlan, savePlan } from '../../modules/isolations/isolation-plan.service';
-import { acknowledgeStep, applyStep, removeStep, verifyStep } from '../../modules/isolations/isolation-steps.service';
-import { listSteps } from '../../modules/isolations/isolation-queries';
+import { signedEvents, type PermitEvent } from '@shared/permit/state-machine';
+import { createLogger } from '../lib/logger';
+import { ManualClock } from '../lib/clock';
+import { loadActor } from '../lib/actor';
+import type { CallerContext } from '../lib/caller';
+import type { AppDeps } from '../deps';
+import type { Config } from '../config/env';
+import { applyTransition, createPermit, transitionPermit, updateChecklist, recordHotWorkStopped } from '../modules/permits/permits.service';
+import { findPermit } from '../modules/permits/permits.repository';
+import { proposePlan, savePlan } from '../modules/isolations/isolation-plan.service';
+import { acknowledgeStep, applyStep, removeStep, verifyStep } from '../modules/isolations/isolation-steps.service';
+import { listSteps } from '../modules/isolations/isolation-queries';
+import { endProving, startProving } from '../modules/isolations/isolation-proving.service';
+import { loadTenantSettings } from '../modules/tenants/tenant-settings';
 import { DEMO_PASSWORD } from './demo-people';
 import type { DemoSeeder } from './registry';
 
@@ -61,7 +63,7 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   const at = (t: Date) => clock.set(t);
   const move = async (who: CallerContext, id: string, event: PermitEvent, extra: Record<string, unknown> = {}) => {
     const p = (await findPermit(sequelize, tenantId, id))!;
-    const signed = ['approve', 'accept', 'hand_back', 'return_to_service'].includes(event);
+    const signed = signedEvents.includes(event);
     return transitionPermit(deps, who, id, { event, version: p.version, ...(signed ? { ...sig, signedName: who.user.name } : {}), ...extra });
   };
   const [bm10] = await sequelize.query<{ id: string; bore: number }>(`SELECT id, inside_diameter_in::float8 AS bore FROM pipelines WHERE tenant_id = :tenantId AND code = 'BM-10'`, { replacements: { tenantId }, type: QueryTypes.SELECT });
@@ -100,6 +102,22 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
     }
     return new Date(t);
   };
+  const { provingHoldMinutes } = await loadTenantSettings(sequelize, tenantId);
+  /**
+   * The second technician, who applied none of the isolating devices, proves the section dead at the
+   * plan's first vent or drain, held the site's time without build-up (HSE HSG253); then the
+   * authoriser signs the isolations in place (HSE HSG250). Returns when that was done.
+   */
+  const proveAndSign = async (id: string, from: Date, signer = authoriser) => {
+    const bleed = (await listSteps(sequelize, tenantId, id)).find((s) => s.kind === 'vent' || s.kind === 'drain')!;
+    at(new Date(from.getTime() + 2 * MIN));
+    const test = await startProving(deps, tech2, id, { stepId: bleed.id, reading: 0, unit: 'psig' });
+    at(new Date(from.getTime() + (2 + provingHoldMinutes) * MIN));
+    await endProving(deps, tech2, id, test.id, { reading: 0 });
+    at(new Date(from.getTime() + (4 + provingHoldMinutes) * MIN));
+    await move(signer, id, 'confirm_isolated');
+    return clock.now();
+  };
   const gasTest = async (id: string, when: Date, readings: { o2Pct: number; lelPct: number; h2sPpm: number; coPpm: number }, place = 'work_area') => {
     const assessment = assessAtmosphere(readings, DEFAULT_ATMOSPHERE_LIMITS, { hotWork: true });
     await sequelize.query(
@@ -123,7 +141,7 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   at(new Date(weekAgo.getTime() - HOUR));
   await move(authoriser, done, 'approve');
   await move(lead, done, 'accept');
-  let t = await isolate(done, new Date(weekAgo.getTime() + 10 * MIN));
+  let t = await proveAndSign(done, await isolate(done, new Date(weekAgo.getTime() + 10 * MIN)));
   at(t);
   await confirmChecklist(done, lead, 'checklist');
   await gasTest(done, t, clean, 'inside_pipe_upstream');
@@ -151,7 +169,7 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   at(new Date(liveStart.getTime() - HOUR));
   await move(authoriser, live, 'approve');
   await move(lead, live, 'accept');
-  t = await isolate(live, liveStart);
+  t = await proveAndSign(live, await isolate(live, liveStart));
   at(t);
   await confirmChecklist(live, lead, 'checklist');
   await gasTest(live, t, clean, 'inside_pipe_downstream');
@@ -164,14 +182,18 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   const shared = await request({ kinds: ['cold_work'], title: 'Replace corrosion coupon at MP 12.6', jobReference: 'BM-DEMO-1260', pipelineId: bm10.id, fromPosition: 12.6, toPosition: 12.6, hazards: 'Residual product at the fitting.' }, shareStart, 10);
   {
     const p = (await findPermit(sequelize, tenantId, shared))!;
-    const points = await sequelize.query<{ id: string; tag_code: string }>(`SELECT id, tag_code FROM isolation_points WHERE tenant_id = :tenantId AND tag_code IN ('CR-BV-098','CR-BV-149')`, { replacements: { tenantId }, type: QueryTypes.SELECT });
-    await savePlan(deps, lead, shared, { version: p.version, steps: points.map((pt) => ({ pointId: pt.id, kind: 'block_valve' as const })) });
+    // The two valves either side, and the vent between them where the section is proved dead.
+    const points = await sequelize.query<{ id: string; tag_code: string; kind: 'block_valve' | 'vent' }>(
+      `SELECT id, tag_code, kind FROM isolation_points WHERE tenant_id = :tenantId AND tag_code IN ('CR-BV-098','CR-BV-149','CR-VT-099') ORDER BY kind, tag_code`,
+      { replacements: { tenantId }, type: QueryTypes.SELECT },
+    );
+    await savePlan(deps, lead, shared, { version: p.version, steps: points.map((pt) => ({ pointId: pt.id, kind: pt.kind })) });
   }
   await move(lead, shared, 'submit');
   at(new Date(shareStart.getTime() - HOUR));
   await move(authoriser2, shared, 'approve');
   await move(lead, shared, 'accept');
-  await isolate(shared, shareStart);
+  await proveAndSign(shared, await isolate(shared, shareStart), authoriser2);
 
   // 4. Suspended after a high flammable reading: valve repack on BM-16.
   const suspStart = new Date(now.getTime() - 3 * HOUR);
@@ -181,7 +203,7 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   at(new Date(suspStart.getTime() - HOUR));
   await move(authoriser, susp, 'approve');
   await move(lead, susp, 'accept');
-  t = await isolate(susp, suspStart);
+  t = await proveAndSign(susp, await isolate(susp, suspStart));
   at(t);
   await confirmChecklist(susp, lead, 'checklist');
   await gasTest(susp, t, clean);

@@ -1,5 +1,5 @@
 import type { Sequelize } from 'sequelize';
-import { hashPassword } from '../../lib/passwords';
+import { hashPassword } from '../lib/passwords';
 import { DEMO_PASSWORD, seedPeople, type SeededIds } from './demo-people';
 import { demoSeeders } from './registry';
 import { seedPermits } from './demo-permits';
