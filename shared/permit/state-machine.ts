@@ -39,12 +39,15 @@ export const permitEventLabels: Record<PermitEvent, string> = {
   revalidate: 'Re-validate',
 };
 
-/** Events that are signatures: the signer re-enters the password and types their name. */
-/** Signing the isolations in place is the authoriser's (HSE HSG250: the issuer signs that the isolations are made before work starts). */
+/**
+ * Events that are signatures: the signer re-enters the password and types their name. Signing the
+ * isolations in place is the authoriser's (HSE HSG250: the issuer signs that the isolations are made
+ * before work starts).
+ */
 export const signedEvents: readonly PermitEvent[] = ['approve', 'accept', 'confirm_isolated', 'hand_back', 'return_to_service'];
 /** Events that need a reason in words. */
 export const reasonedEvents: readonly PermitEvent[] = ['reject', 'suspend', 'cancel'];
-/** Events only the server fires (scheduler, failing gas test). */
+/** Events only the server fires (the scheduler expires a permit). A failing gas test fires the ordinary `suspend`, as the system actor. */
 export const systemEvents: readonly PermitEvent[] = ['expire'];
 
 /** The CASL action a person needs on the permit to fire each event. */

@@ -10,7 +10,7 @@ const reading = z
   .max(100_000, 'That reading is beyond any gauge; check it.');
 const readAt = isoDateTimeField();
 
-/** POST /api/permits/:id/provings: the first reading of the section's hold test, at a vent or drain of the plan. */
+/** POST /api/permits/:id/isolations/provings: the first reading of the section's hold test, at a vent or drain of the plan. */
 export const startProvingInputSchema = z.strictObject({
   stepId: uuidSchema,
   reading,
@@ -20,7 +20,7 @@ export const startProvingInputSchema = z.strictObject({
 });
 export type StartProvingInput = z.infer<typeof startProvingInputSchema>;
 
-/** POST /api/permits/:id/provings/:provingId/end: the reading at the end of the hold, on the same gauge. */
+/** POST /api/permits/:id/isolations/provings/:provingId/end: the reading at the end of the hold, on the same gauge. */
 export const endProvingInputSchema = z.strictObject({
   reading,
   readAt: readAt.optional(),

@@ -195,7 +195,7 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   await move(lead, shared, 'accept');
   await proveAndSign(shared, await isolate(shared, shareStart), authoriser2);
 
-  // 4. Suspended after a high flammable reading: valve repack on BM-16.
+  // 4. Suspended after a high flammable reading: weld repair on a stopple fitting on BM-16.
   const suspStart = new Date(now.getTime() - 3 * HOUR);
   const susp = await request({ kinds: ['hot_work'], title: 'Weld repair on a stopple fitting at MP 8.2', jobReference: 'BM-DEMO-0820', pipelineId: bm16.id, fromPosition: 8.19, toPosition: 8.21, hazards: 'Crude oil vapour; hot work.' }, suspStart, 10);
   await planCut(susp, 8.19, 8.21);
