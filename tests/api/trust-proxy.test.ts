@@ -71,3 +71,18 @@ describe('finding 4: X-Forwarded-For with TRUST_PROXY=loopback', () => {
     expect((await failedSignIn(srv, '198.51.100.21', 51)).status).toBe(401);
   });
 });
+
+describe('the per-address limit as a setting', () => {
+  let srv: TestServer;
+  beforeAll(async () => {
+    srv = await startTestServer({ env: { SIGN_IN_LIMIT_PER_IP: '3' } });
+  });
+  afterAll(() => srv?.close());
+
+  it('when SIGN_IN_LIMIT_PER_IP is 3, then the fourth sign-in attempt from one address is refused with 429', async () => {
+    for (let n = 1; n <= 3; n++) expect((await failedSignIn(srv, '198.51.100.7', n)).status).toBe(401);
+    const res = await failedSignIn(srv, '198.51.100.7', 4);
+    expect(res.status).toBe(429);
+    expect(res.body.error.code).toBe('rate_limited');
+  });
+});

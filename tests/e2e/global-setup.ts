@@ -30,7 +30,9 @@ export default async function globalSetup() {
   const server: ChildProcess = spawn(process.execPath, ['--import', 'tsx', 'server/src/index.ts'], {
     cwd: root,
     // The server logs in as the app role (bound by row-level security), as it does in npm start.
-    env: { ...process.env, NODE_ENV: 'development', PORT: String(port), DATABASE_URL: withCredentials(databaseUrl, db.appRole), DATABASE_OWNER_URL: databaseUrl, DATA_DIR: dataDir, DEV_MAILBOX: 'on', LOG_LEVEL: 'warn', PUBLIC_URL: `http://127.0.0.1:${port}` },
+    env: { ...process.env, NODE_ENV: 'development', PORT: String(port), DATABASE_URL: withCredentials(databaseUrl, db.appRole), DATABASE_OWNER_URL: databaseUrl, DATA_DIR: dataDir, DEV_MAILBOX: 'on', LOG_LEVEL: 'warn',
+      // Every browser test signs in from 127.0.0.1: the per-address limit is for a site, not a test run.
+      SIGN_IN_LIMIT_PER_IP: '10000', PUBLIC_URL: `http://127.0.0.1:${port}` },
     stdio: ['ignore', 'inherit', 'inherit'],
   });
   const base = `http://127.0.0.1:${port}`;

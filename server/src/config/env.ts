@@ -36,6 +36,8 @@ const envSchema = z.object({
   SESSION_SECRET: z.string().min(16, 'SESSION_SECRET must be at least 16 characters').optional(),
   SESSION_IDLE_MINUTES: z.coerce.number().int().positive().default(30),
   SESSION_ABSOLUTE_HOURS: z.coerce.number().positive().default(12),
+  /** Sign-in and token requests per network address per 15 minutes (a site office behind one address may need more). */
+  SIGN_IN_LIMIT_PER_IP: z.coerce.number().int().min(1).max(100_000).default(100),
   SMTP_URL: z.string().regex(/^smtps?:\/\//, 'SMTP_URL must start with smtp:// or smtps://').optional(),
   MAIL_FROM: z.string().default('Holdpoint <no-reply@holdpoint.example>'),
   DEV_MAILBOX: z.enum(['on', 'off']).default('off'),

@@ -130,8 +130,8 @@ export class AttemptLimits {
 const perApp = new WeakMap<object, AttemptLimits>();
 
 /** Called once by the auth router with the app's limits. */
-export function setUpAttemptLimits(deps: Pick<AppDeps, 'config' | 'clock'>, limits: AuthLimits = defaultAuthLimits) {
-  const merged: Required<AuthLimits> = { ...defaultAuthLimits, ...limits };
+export function setUpAttemptLimits(deps: Pick<AppDeps, 'config' | 'clock'>, limits: Partial<AuthLimits> = {}) {
+  const merged: Required<AuthLimits> = { ...defaultAuthLimits, perIp: deps.config.SIGN_IN_LIMIT_PER_IP, ...limits };
   const made = new AttemptLimits(deps.clock, merged);
   perApp.set(deps.config, made);
   return made;
