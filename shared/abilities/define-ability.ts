@@ -7,6 +7,8 @@ export const actions = [
   'request', 'approve', 'reject', 'accept', 'cancel', 'revalidate', 'suspend', 'resume', 'start_work', 'hand_back', 'return_to_service', 'close', 'handover',
   // isolation steps and checks
   'apply', 'verify', 'remove', 'acknowledge', 'record', 'verify_chain',
+  // a personal lock on the permit's group lockbox
+  'sign_on',
 ] as const;
 export type Action = (typeof actions)[number];
 
@@ -69,7 +71,7 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
   },
   contractor_lead(can, a, m) {
     const scope = permitScope(a, m);
-    can(['read', 'request', 'accept', 'cancel', 'start_work', 'hand_back', 'handover', 'resume'], 'Permit', scope);
+    can(['read', 'request', 'accept', 'cancel', 'start_work', 'hand_back', 'handover', 'resume', 'sign_on'], 'Permit', scope);
     can(['create', 'update'], 'Permit', scope);
     can('read', ['IsolationStep', 'GasTest', 'Check', 'Attachment'], scope);
     can('create', 'Attachment', scope);
@@ -80,6 +82,7 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
   isolation_technician(can, a, m) {
     const scope = permitScope(a, m);
     can('read', ['Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment'], scope);
+    can('sign_on', 'Permit', scope);
     can(['apply', 'verify', 'remove'], 'IsolationStep', scope);
     can('record', 'Check', scope);
     can('create', 'Attachment', scope);
@@ -87,6 +90,7 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
   gas_tester(can, a, m) {
     const scope = permitScope(a, m);
     can('read', ['Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment'], scope);
+    can('sign_on', 'Permit', scope);
     can('create', 'GasTest', scope);
     can('record', 'Check', scope);
     can('create', 'Attachment', scope);

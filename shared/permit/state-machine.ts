@@ -119,9 +119,11 @@ export interface PermitFacts {
   fireWatchEndsAt: Date | null;
   walkdownComplete: boolean;
   controlRoomAcknowledged: boolean;
-  /** Live permits whose isolations this permit's plan would operate. */
+  /** Points of this plan another permit holds in place, each in words ("CR-VT-196 is held open by PW-2026-0002"). */
   conflicts: string[];
   hasExpiredFlag: boolean;
+  /** Group lockout per person: how many personal locks are on the permit's lockbox; absent when the site locks per permit. */
+  crewOnLockbox?: number | null;
 }
 
 export interface ActorFacts {
@@ -158,7 +160,7 @@ export function decide(event: PermitEvent, facts: PermitFacts, actor: ActorFacts
     case 'approve':
       if (actor.userId === facts.requesterUserId) reasons.push('You requested this permit, so someone else must approve it (two-person rule).');
       if (facts.validTo < now) reasons.push('The validity window has already ended; change it before approving.');
-      if (facts.conflicts.length) reasons.push(`The plan would operate points that live permits hold isolated: ${facts.conflicts.join(', ')}.`);
+      if (facts.conflicts.length) reasons.push(`The plan would operate points another permit holds in place: ${facts.conflicts.join('; ')}.`);
       break;
     case 'accept': {
       if (!actor.organisationIds.includes(facts.contractorOrganisationId) || !actor.roles.includes('contractor_lead'))
@@ -174,6 +176,9 @@ export function decide(event: PermitEvent, facts: PermitFacts, actor: ActorFacts
       break;
     case 'start_work':
     case 'resume':
+      // OSHA 29 CFR 1910.147(f)(3)(ii)(D): each person working puts a personal lock on the group lockbox when they begin.
+      if (event === 'start_work' && facts.crewOnLockbox === 0)
+        reasons.push('Nobody has signed on to the lockbox: each person working puts a personal lock on it first.');
       reasons.push(...isolationGaps(facts));
       if (!windowOpen) reasons.push(now < facts.validFrom ? 'The permit is not valid yet.' : 'The validity window has ended; the authoriser must re-validate it.');
       if (!facts.gas.lastPassAt) reasons.push('Record a passing gas test first.');

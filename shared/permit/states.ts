@@ -98,8 +98,13 @@ export const workUnderWayStates: readonly PermitState[] = ['live', 'suspended'];
 export const liveStates: readonly PermitState[] = ['live'];
 /** Before the isolations are signed in place (an expired permit may go back to one of these when re-validated). */
 export const beforeIsolatedStates: readonly PermitState[] = ['draft', 'requested', 'approved', 'accepted', 'expired'];
+/** Sent for approval and not yet handed back: another permit's work on the same stretch of line is flagged to both authorisers. */
+export const workOverlapStates: readonly PermitState[] = ['requested', 'approved', ...holding];
 /** The isolations are confirmed and the crew may be at work: another permit's plan must not operate those points. */
 export const isolationInUseStates: readonly PermitState[] = ['isolated', 'live', 'suspended'];
+
+/** The isolations are signed in place and work is not handed back: the crew may put personal locks on the permit's lockbox. */
+export const crewSignOnStates: readonly PermitState[] = ['isolated', 'live', 'suspended'];
 
 /** When each of the permit's lists may be ticked: the before-work checklist by the crew, the walk-down once work is complete. */
 export const checklistOpenStates: Record<'checklist' | 'walkdown', readonly PermitState[]> = {

@@ -73,6 +73,21 @@ export interface IsolationPlan<Time extends Moment = string> {
   items: IsolationStep<Time>[];
   /** Where the plan stands against Isolated: devices per side of the work, the hold tests, the authoriser's signature. */
   readiness: IsolationPlanReadiness<Time>;
+  /** Points of this plan that another permit holds in place in a way this plan would undo: refused at plan save, approval and apply. */
+  conflicts: PointNeighbour[];
+  /** Points this plan and another permit both hold closed: allowed, shown so both crews know the valve is shared. */
+  shared: PointNeighbour[];
+}
+
+/** Another permit's hold on a point of this plan (simultaneous operations, HSE HSG250). */
+export interface PointNeighbour {
+  pointId: string;
+  label: string;
+  permitNumber: string;
+  /** The condition the other permit holds the point in. */
+  held: StepCondition;
+  /** In plain words, e.g. "CR-VT-196 is held open by PW-2026-0002". */
+  message: string;
 }
 
 /** The few fields of a step the permit page draws on the line. */

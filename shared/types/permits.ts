@@ -1,6 +1,7 @@
 import type { PermitState, WorkKind } from '../permit/states';
 import type { PermitEvent } from '../permit/state-machine';
 import type { Moment } from './moment';
+import type { PermitLockbox } from './crew';
 
 // What the permit API answers, written once for the server and the client (`Time`: see ./moment.ts).
 
@@ -117,4 +118,19 @@ export interface PermitDetail<Time extends Moment = string> extends PermitRecord
   timeline: PermitTimelineEvent<Time>[];
   signatures: PermitSignature<Time>[];
   nextGasTestDue: string | null;
+  /** Group lockout per person: who has a personal lock on the permit's lockbox now. */
+  lockbox: PermitLockbox<Time>;
+  /** Other permits whose work range overlaps this one on the same line: a warning, not a refusal. */
+  workOverlaps: WorkOverlap[];
+}
+
+/** Another permit working on the same stretch of the same pipeline (simultaneous operations, HSE HSG250). */
+export interface WorkOverlap {
+  permitNumber: string;
+  title: string;
+  state: PermitState;
+  fromPosition: number;
+  toPosition: number;
+  /** In plain words, e.g. "PW-2026-0003 (Coating repair) also works between 4.6 and 4.8 on this line". */
+  message: string;
 }

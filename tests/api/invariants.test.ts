@@ -106,6 +106,10 @@ describe('invariants under random sequences of actions', () => {
     techUserId = (await q<{ id: string }>(`SELECT id FROM users WHERE email = :email`, { email: users.tech }))[0].id;
     userIds.tech = techUserId;
     userIds.tech2 = (await q<{ id: string }>(`SELECT id FROM users WHERE email = :email`, { email: users.tech2 }))[0].id;
+    userIds.lead = (await q<{ id: string }>(`SELECT id FROM users WHERE email = :email`, { email: users.lead }))[0].id;
+    // The tenant locks per person: work starts only with a personal lock on the lockbox, and the
+    // isolations come off only once every personal lock is off (invariant 9).
+    await q(`UPDATE tenants SET settings = coalesce(settings, '{}'::jsonb) || '{"groupLockout":"per_person"}'::jsonb WHERE id = :tenantId RETURNING id`);
   });
   afterAll(() => srv?.close());
 
@@ -234,6 +238,21 @@ describe('invariants under random sequences of actions', () => {
     return { permitId, status: res.status, transitioned: false };
   }
 
+  /** Whose people put a personal lock on a permit's lockbox (`sign_on`: the contractor's crew); anyone else must hear 403. */
+  const crewMembers: Who[] = ['lead', ...technicians];
+  const onBox = (permitId: string) =>
+    q<{ user_id: string }>(`SELECT user_id FROM permit_crew_members WHERE tenant_id = :tenantId AND permit_id = :permitId AND signed_off_at IS NULL ORDER BY signed_on_at`, { permitId });
+
+  /** Group lockout per person (OSHA 29 CFR 1910.147(f)(3)(ii)(D)): `who` puts their personal lock on the permit's lockbox, or takes it off. */
+  async function crewLock(permitId: string, who: Who, on: boolean): Promise<Outcome> {
+    const res = on
+      ? answer(await crew[who].post(`/api/permits/${permitId}/crew/sign-on`, { personalLockNumber: `PL-${who}` }), `${who} sign on to the lockbox`)
+      : answer(await crew[who].post(`/api/permits/${permitId}/crew/sign-off`, {}), `${who} sign off the lockbox`);
+    if (on && !crewMembers.includes(who)) expect(res.status, `${who} is not of the contractor crew`).toBe(403);
+    return { permitId, status: res.status, transitioned: false };
+  }
+  const whoIs = (userId: string) => (Object.entries(userIds).find(([, id]) => id === userId)?.[0] ?? 'lead') as Who;
+
   /** The next thing the right person would do with this permit, so runs get past the first stages. */
   async function progress(permitId: string, pick: number): Promise<Outcome> {
     const [p] = await q<{ state: string; checklist: { required: boolean; confirmed: boolean }[]; walkdown: { required: boolean; confirmed: boolean }[]; control_room_ack_at: Date | null }>(
@@ -270,20 +289,27 @@ describe('invariants under random sequences of actions', () => {
       }
       case 'isolated':
         if (open(p.checklist)) return confirmOne(permitId, 'checklist', 'lead');
+        if (!(await onBox(permitId)).length) return crewLock(permitId, crewMembers[pick % 3], true);
         return pick % 2 === 0 ? gasTest(permitId, 'pass', 'tech') : fire(permitId, 'start_work', 'lead');
       case 'live':
         return pick % 3 === 0 ? gasTest(permitId, 'pass', 'tech') : fire(permitId, 'hand_back', 'lead');
       case 'suspended':
         return pick % 2 === 0 ? gasTest(permitId, 'pass', 'tech') : fire(permitId, 'resume', 'lead');
-      case 'work_complete':
+      case 'work_complete': {
+        const still = await onBox(permitId);
+        if (still.length) return crewLock(permitId, whoIs(still[0].user_id), false);
         if (active.length) return takeOff(permitId, active[0], pick);
         if (open(p.walkdown)) return confirmOne(permitId, 'walkdown', authorisers[pick % 2]);
         return fire(permitId, 'return_to_service', authorisers[pick % 2]);
+      }
       case 'returned_to_service':
         return p.control_room_ack_at ? fire(permitId, 'close', authorisers[pick % 2]) : fire(permitId, 'acknowledge_return', 'control');
-      case 'cancelled':
+      case 'cancelled': {
+        const still = await onBox(permitId);
+        if (still.length) return crewLock(permitId, whoIs(still[0].user_id), false);
         if (active.length) return takeOff(permitId, active[0], pick);
         return fire(permitId, 'submit', 'lead');
+      }
       default:
         return fire(permitId, 'close', authorisers[pick % 2]);
     }
@@ -456,6 +482,20 @@ describe('invariants under random sequences of actions', () => {
     );
     expect(readByApplier, 'hold tests read by a person who applied an isolating device of the section').toEqual([]);
 
+    // 9. Group lockout per person (OSHA 29 CFR 1910.147(f)(3)(ii)(D)): no lockbox opened while a personal
+    //    lock is on it: no isolation of a permit came off between a person signing on and signing off (by the trail's order).
+    const openedWhileLocked = await q<{ number: string; label: string }>(
+      `SELECT p.number, s.temp_label AS label FROM permit_crew_members c
+       JOIN permits p ON p.tenant_id = c.tenant_id AND p.id = c.permit_id
+       JOIN audit_events son ON son.tenant_id = c.tenant_id AND son.entity_id::text = c.id::text AND son.action = 'crew_signed_on'
+       LEFT JOIN audit_events soff ON soff.tenant_id = c.tenant_id AND soff.entity_id::text = c.id::text AND soff.action = 'crew_signed_off'
+       JOIN audit_events r ON r.tenant_id = c.tenant_id AND r.permit_id = c.permit_id AND r.action = 'isolation_removed' AND r.seq > son.seq AND (soff.seq IS NULL OR r.seq < soff.seq)
+       JOIN isolation_steps s ON s.tenant_id = r.tenant_id AND s.id::text = r.entity_id::text
+       WHERE c.tenant_id = :tenantId AND c.permit_id IN (:created)`,
+      { created },
+    );
+    expect(openedWhileLocked, 'isolations removed while a personal lock was on the lockbox').toEqual([]);
+
     model.states = real.permits.map((id) => real.states.get(id)!);
     model.steps = await Promise.all(real.permits.map(async (id) => (await stepsOf(id)).map((s) => s.status)));
 
@@ -589,6 +629,18 @@ describe('invariants under random sequences of actions', () => {
     }
   }
 
+  class CrewLock extends Action {
+    constructor(permit: number, minutes: number, readonly who: Who, readonly on: boolean) {
+      super(permit, minutes);
+    }
+    act(real: Real) {
+      return crewLock(real.permits[this.permit], this.who, this.on);
+    }
+    describe() {
+      return `${this.who} sign ${this.on ? 'on to' : 'off'} the lockbox`;
+    }
+  }
+
   /** The crew stops the job: cancelled before work starts, handed back once it has. */
   class WindDown extends Action {
     async act(real: Real) {
@@ -622,6 +674,7 @@ describe('invariants under random sequences of actions', () => {
     { weight: 1, arbitrary: fc.tuple(permitArb, minutesArb, indexArb, fc.oneof({ weight: 3, arbitrary: fc.constantFrom<Who>(...authorisers) }, { weight: 1, arbitrary: whoArb })).map(([p, m, i, w]) => new RecordException(p, m, i, w)) },
     { weight: 2, arbitrary: fc.tuple(permitArb, minutesArb, fc.constantFrom('pass', 'fail') as fc.Arbitrary<'pass' | 'fail'>, fc.oneof({ weight: 3, arbitrary: fc.constant<Who>('tech') }, { weight: 1, arbitrary: whoArb })).map(([p, m, v, w]) => new GasTest(p, m, v, w)) },
     { weight: 1, arbitrary: fc.tuple(permitArb, minutesArb, fc.constantFrom('checklist', 'walkdown') as fc.Arbitrary<'checklist' | 'walkdown'>, whoArb).map(([p, m, l, w]) => new Confirm(p, m, l, w)) },
+    { weight: 2, arbitrary: fc.tuple(permitArb, minutesArb, whoArb, fc.boolean()).map(([p, m, w, on]) => new CrewLock(p, m, w, on)) },
   ].map((c) => ({ weight: c.weight, arbitrary: c.arbitrary as fc.Arbitrary<fc.AsyncCommand<Model, Real>> }));
   const commands = [fc.oneof(...weighted)];
 
@@ -683,6 +736,7 @@ describe('invariants under random sequences of actions', () => {
     // A new passing test a minute later clears it.
     srv.clock.advanceMinutes(1);
     expect((await crew.tech.post(`/api/permits/${id}/gas-tests`, { instrumentId, place: 'work_area', testedAt: srv.clock.now().toISOString(), readings: { o2Pct: 20.9, lelPct: 0, h2sPpm: 0, coPpm: 1 } })).status).toBe(201);
+    expect((await crew.tech.post(`/api/permits/${id}/crew/sign-on`, { personalLockNumber: 'PL-tech' })).status).toBe(200);
     expect((await transition(crew.lead, id, 'start_work')).status).toBe(200);
   });
 
@@ -701,13 +755,16 @@ describe('invariants under random sequences of actions', () => {
     });
     const started = Date.now();
     try {
-      // Two hand-written cases (each counts as one of the runs): a permit stops and takes the shared valve off
-      // while the other, accepted, still plans it (the group-lockout rule must refuse the removal); and a
+      // Three hand-written cases (each counts as one of the runs): a permit stops and takes the shared valve off
+      // while the other, accepted, still plans it (the group-lockout rule must refuse the removal); a
       // cancelled permit whose valve's owner is away: an authoriser records the exception, then the other
-      // technician takes the lock off and signs (OSHA 29 CFR 1910.147(e)(3)).
+      // technician takes the lock off and signs (OSHA 29 CFR 1910.147(e)(3)); and the lockbox case below.
       const examples: [Stage[], Iterable<fc.AsyncCommand<Model, Real>>][] = [
         [['isolated', 'accepted'], [new WindDown(0, 0), new Progress(0, 0, 1), new Progress(1, 0, 0)]],
         [['isolated', 'draft'], [new WindDown(0, 0), new Remove(0, 0, 1, 'tech2', false, true), new Progress(0, 0, 0), new Progress(0, 0, 3)]],
+        // The lead signs on to the lockbox, the permit is cancelled, and the valve's owner tries to take it off
+        // while the lead's personal lock is still on (invariant 9); the lead signs off, then it comes off.
+        [['isolated', 'draft'], [new Progress(0, 0, 0), new WindDown(0, 0), new Remove(0, 0, 1, 'tech', false), new Progress(0, 0, 0), new Remove(0, 0, 1, 'tech', false)]],
       ];
       await fc.assert(property, { numRuns, seed, endOnFailure: true, examples });
     } finally {

@@ -382,13 +382,14 @@ describe('isolations through the API, as the demo users', () => {
     await isolate(D);
   });
 
-  it('when a permit would vent a point that an isolated permit holds, then approval is refused naming that permit', async () => {
-    const E = await newPermit('Vent the section for a pig run', [{ pointId: point['CR-VT-150'], kind: 'vent' }], { kinds: ['cold_work'], fromPosition: 15, toPosition: 15 });
-    expect((await transition(lead, E.id, 'submit')).status).toBe(200);
-    const res = await transition(authoriser, E.id, 'approve', sign(users.authoriser));
+  // HSE HSG250 (conflicting work identified): the plan is refused when saved; approval and apply check the same rule (isolation-conflicts.test.ts).
+  it('when a permit would vent a point that an isolated permit holds, then saving its plan is refused naming the point and that permit', async () => {
+    const created = await lead.post('/api/permits', permitBody(ids, srv.clock.now(), { title: 'Vent the section for a pig run', kinds: ['cold_work'], fromPosition: 15, toPosition: 15 }));
+    expect(created.status, JSON.stringify(created.body)).toBe(201);
+    const res = await lead.put(`/api/permits/${created.body.id}/isolations`, { version: created.body.version, steps: [{ pointId: point['CR-VT-150'], kind: 'vent' }] });
     expect(res.status).toBe(422);
-    expect(res.body.error.message).toContain(D.number);
-    expect(await stateOf(E)).toBe('requested');
+    expect(res.body.error.message).toContain(`CR-VT-150 is held open by ${D.number}`);
+    expect(await plan({ id: created.body.id, number: created.body.number })).toEqual([]);
   });
 
   it('when one permit of a group lockout takes its lock off, then the valve stays isolated under the other', async () => {

@@ -17,11 +17,16 @@ const budgets = {
   'board, live permits only': 12,
   'permits list': 9,
   'permits list, closed, page 3': 9,
-  'permit page': 15,
+  // +1: the page warns of other permits working on the same stretch of line (HSE HSG250), one statement whatever the rows.
+  // +1: the permit's lockbox (group lockout per person: the keys inside, who is signed on), one statement whatever the rows.
+  'permit page': 17,
   // +1: the plan answers with where it stands against Isolated (hold tests, signature, the site's proving limits), one statement whatever the rows.
-  'isolation plan': 10,
+  // +1: the plan names other permits holding its points (conflicting or shared isolations, HSE HSG250), one statement whatever the rows.
+  'isolation plan': 11,
   'gas tests of a permit': 10,
-  'send for approval': 37,
+  // +2: one statement finds other permits working on the same stretch of line (HSE HSG250); the scale draft overlaps one, so one mail goes to the outbox.
+  // +1: the answer carries the permit's lockbox, one statement whatever the rows.
+  'send for approval': 40,
   'gas test entry': 22,
 } as const;
 type Route = keyof typeof budgets;

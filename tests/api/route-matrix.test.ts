@@ -12,7 +12,7 @@ import { DEMO_PASSWORD, startTestServer, type ApiClient, type TestServer } from 
 import { readAnswer, registeredApiRoutes } from '../fixtures/registered-routes';
 import {
   instrumentBody, inventoryBody, monitorOf, onePixelPng, permitBody, pipelineBody, pointBody, sampleAttachment, sampleHandover, sampleHeldPermit, sampleInstrument,
-  sampleInventory, sampleLockedStep, sampleMembership, samplePermit, samplePipeline, samplePoint, sampleProving, sampleStep, tokenFor,
+  sampleCrewOn, sampleInventory, sampleLockedStep, sampleMembership, samplePermit, samplePipeline, samplePoint, sampleProving, sampleStep, tokenFor,
   type Keepers, type MatrixContext, type SampleFactory, type SampleRecord, type TenantIds,
 } from '../fixtures/matrix-samples';
 
@@ -210,6 +210,9 @@ const routes: RouteCase[] = [
     body: (_c, s) => ({ stepId: s?.params.stepId, reading: 0, unit: 'psig' }),
   },
   { method: 'POST', path: '/api/permits/:id/isolations/provings/:provingId/end', access: onRecord('verify', 'IsolationStep', sampleProving, 'Permit'), body: () => ({ reading: 0 }) },
+  // group lockout per person: the permit's lockbox (both demo tenants are set to per_person in beforeAll)
+  { method: 'POST', path: '/api/permits/:id/crew/sign-on', access: onRecord('sign_on', 'Permit', samplePermit('isolated')), body: () => ({ personalLockNumber: 'MX-PL-2' }) },
+  { method: 'POST', path: '/api/permits/:id/crew/sign-off', access: onRecord('read', 'Permit', sampleCrewOn), body: () => ({}) },
   { method: 'GET', path: '/api/board', access: can('read', 'Board') },
   { method: 'GET', path: '/api/board/stream', access: can('read', 'Board'), stream: true },
 
@@ -333,6 +336,8 @@ beforeAll(async () => {
     else t.contractorOrgId = r.org;
   }
   for (const u of await db.query<{ id: string; email: string }>(`SELECT id, email FROM users`, { type: QueryTypes.SELECT })) users[u.email] = u.id;
+  // The crew routes answer only where group lockout is per person; no other route here depends on the setting.
+  await db.query(`UPDATE tenants SET settings = coalesce(settings, '{}'::jsonb) || '{"groupLockout":"per_person"}'::jsonb WHERE slug IN ('bramblecote', 'harlowridge')`);
   for (const role of demoRoles) {
     const client = await srv.signIn(role.email);
     const me = (await client.get('/api/auth/me')).body as MeResponse;

@@ -98,6 +98,7 @@ describe('finding 2: the server answers exactly the shapes declared in shared/ty
         requesterUserId: true, requesterName: true, authoriserUserId: true, authoriserName: true, holderUserId: true, holderName: true,
         fireWatchMinutes: true, fireWatchPerson: true, gasTestWindowMinutes: true, gasTestIntervalMinutes: true, hotWorkEndedAt: true, controlRoomAckAt: true,
         rejectionReason: true, stateBeforeExpiry: true, expiredFlag: true, createdAt: true, updatedAt: true, actions: true, timeline: true, signatures: true, nextGasTestDue: true,
+        lockbox: true, workOverlaps: true,
       }),
     );
     expect(keysOf(permit.timeline[0])).toEqual(
@@ -109,7 +110,7 @@ describe('finding 2: the server answers exactly the shapes declared in shared/ty
 
   it('when the isolation plan, a proposal and the board are read, then they have exactly the fields of IsolationStep, PlanProposal, Board and BoardItem', async () => {
     const plan = await ok(authoriser, `/api/permits/${permitId}/isolations`);
-    expect(keysOf(plan)).toEqual(fieldsOf<IsolationPlan>({ items: true, readiness: true }));
+    expect(keysOf(plan)).toEqual(fieldsOf<IsolationPlan>({ items: true, readiness: true, conflicts: true, shared: true }));
     expect(keysOf(plan.items[0])).toEqual(
       fieldsOf<IsolationStep>({
         id: true, permitId: true, seq: true, pointId: true, label: true, position: true, kind: true, condition: true, status: true, remotelyOperable: true,

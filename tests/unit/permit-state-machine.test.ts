@@ -152,15 +152,15 @@ describe('approve (two-person rule)', () => {
     expect(refused(decide('approve', facts('requested', { validTo: at(-1) }), authoriser, NOW))).toEqual(['The validity window has already ended; change it before approving.']);
   });
 
-  it('when the plan would operate points that live permits hold isolated, then approval names those permits', () => {
-    expect(refused(decide('approve', facts('requested', { conflicts: ['PW-2026-0007', 'PW-2026-0011'] }), authoriser, NOW))).toEqual([
-      'The plan would operate points that live permits hold isolated: PW-2026-0007, PW-2026-0011.',
+  it('when the plan would operate points that other permits hold in place, then approval names each point and permit', () => {
+    expect(refused(decide('approve', facts('requested', { conflicts: ['CR-VT-196 is held open by PW-2026-0007', 'CR-DR-195 is held open by PW-2026-0011'] }), authoriser, NOW))).toEqual([
+      'The plan would operate points another permit holds in place: CR-VT-196 is held open by PW-2026-0007; CR-DR-195 is held open by PW-2026-0011.',
     ]);
   });
 
   it('when everything is wrong at once, then every reason is given, not just the first', () => {
     const self = { ...authoriser, userId: people.requester };
-    expect(refused(decide('approve', facts('requested', { validTo: at(-1), validFrom: at(-120), conflicts: ['PW-2026-0007'] }), self, NOW))).toHaveLength(3);
+    expect(refused(decide('approve', facts('requested', { validTo: at(-1), validFrom: at(-120), conflicts: ['CR-VT-196 is held open by PW-2026-0007'] }), self, NOW))).toHaveLength(3);
   });
 });
 

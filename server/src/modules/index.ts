@@ -8,6 +8,7 @@ import { createIsolationsRouter } from './isolations/isolations.routes';
 import { createAssetsRouter } from './assets/assets.routes';
 import { createAttachmentsRouter } from './attachments/attachments.routes';
 import { createGasTestsRouter } from './gas-tests/gas-tests.routes';
+import { createCrewRouter } from './crew/crew.routes';
 
 /** Every feature's router, mounted under /api after sign-in checks. Add one line per feature. */
-export const featureRouters: Array<(deps: AppDeps) => Router> = [createAdminRouter, createCalcRouter, createPermitsRouter, createIsolationsRouter, createAuditRouter, createAssetsRouter, createAttachmentsRouter, createGasTestsRouter];
+export const featureRouters: Array<(deps: AppDeps) => Router> = [createAdminRouter, createCalcRouter, createPermitsRouter, createIsolationsRouter, createAuditRouter, createAssetsRouter, createAttachmentsRouter, createGasTestsRouter, createCrewRouter];

@@ -13,6 +13,7 @@ import { findPermit } from '../permits/permits.repository';
 import { auditActor, type CallerContext } from '../../lib/caller';
 import { listSteps } from './isolation-queries';
 import { planReadiness } from './isolation-plan-view';
+import { asNeighbours, pointNeighbours } from './isolation-neighbours';
 
 interface PointRow {
   id: string;
@@ -28,7 +29,8 @@ export async function getPlan(deps: AppDeps, caller: CallerContext, permitId: st
   return withTenant(deps.sequelize, tenantId, async () => {
     const permit = authorizeRecord(caller.ability, 'read', 'Permit', await findPermit(deps.sequelize, tenantId, permitId), 'permit');
     const items = await listSteps(deps.sequelize, tenantId, permitId);
-    return { items, readiness: await planReadiness(deps.sequelize, permit, items) };
+    const { conflicts, shared } = await pointNeighbours(deps.sequelize, tenantId, permitId);
+    return { items, readiness: await planReadiness(deps.sequelize, permit, items), conflicts: asNeighbours(conflicts), shared: asNeighbours(shared) };
   });
 }
 
@@ -126,6 +128,13 @@ export async function savePlan(deps: AppDeps, caller: CallerContext, permitId: s
         },
       );
     }
+    // Checked on the rows just written, so the rule is the one approval and apply use; a refusal rolls them back.
+    const { conflicts, shared } = await pointNeighbours(deps.sequelize, tenantId, permitId);
+    if (conflicts.length)
+      throw AppError.unprocessable(
+        `This plan would operate points another permit holds in place: ${conflicts.map((c) => c.message).join('; ')}. Plan other points, or wait until that permit's isolations come off.`,
+        conflicts.map((c) => ({ path: `steps.${c.seq - 1}.pointId`, message: `${c.message}.` })),
+      );
     // The dead ends belong to the plan: saved and replaced with it.
     await deps.sequelize.query(
       `UPDATE permits SET version = version + 1, dead_end_upstream = :upstream, dead_end_downstream = :downstream, updated_at = :now WHERE tenant_id = :tenantId AND id = :permitId`,
@@ -136,6 +145,6 @@ export async function savePlan(deps: AppDeps, caller: CallerContext, permitId: s
       data: { steps: input.steps.length, ...(input.deadEnds?.upstream || input.deadEnds?.downstream ? { deadEnds: input.deadEnds } : {}) }, occurredAt: deps.clock.now(),
     });
     const items = await listSteps(deps.sequelize, tenantId, permitId);
-    return { items, readiness: await planReadiness(deps.sequelize, (await findPermit(deps.sequelize, tenantId, permitId))!, items) };
+    return { items, readiness: await planReadiness(deps.sequelize, (await findPermit(deps.sequelize, tenantId, permitId))!, items), conflicts: [], shared: asNeighbours(shared) };
   });
 }

@@ -16,6 +16,8 @@ import { checkObservedTime, observationBounds } from '../permits/observed-time';
 import { appliedAfter, earlierNotApplied, removalNeedsException } from '@shared/isolations/lockout-rules';
 import { findStep, listSteps, notifyChange, type StepRow } from './isolation-queries';
 import { claimRemovalException, completeRemovalException } from './removal-exceptions.service';
+import { pointNeighbours } from './isolation-neighbours';
+import { crewOnLockbox, groupLockoutPerPerson } from '../crew/crew-queries';
 
 type StepAction = Extract<Action, 'apply' | 'verify' | 'remove' | 'acknowledge' | 'approve'>;
 
@@ -97,6 +99,15 @@ export async function applyStep(deps: AppDeps, caller: CallerContext, permitId: 
       if (refused === 'permit_state') throw AppError.unprocessable('Isolations are applied after the contractor lead accepts the permit and before work starts.');
       if (refused) throw AppError.conflict(`This step is already ${step.status}.`, { current: { status: step.status } });
       if (step.kind === 'block_valve' && step.pointId) await refuseCheckValve(deps, tenantId, step);
+      // Simultaneous operations (HSE HSG250): another permit may have put this point in place since the plan was approved.
+      if (step.pointId) {
+        const { conflicts } = await pointNeighbours(deps.sequelize, tenantId, permitId, step.id);
+        if (conflicts.length)
+          throw AppError.unprocessable(
+            `${conflicts.map((c) => c.message).join('; ')}. Do not operate it: the authoriser must sort out the two permits first.`,
+            conflicts.map((c) => ({ path: 'stepId', message: `${c.message}.` })),
+          );
+      }
       await requireQualification(deps, caller, 'lockout_tagout', 'apply isolations');
       // Isolations go on in the plan's order (HSE HSG253); another order needs a reason, kept on the step.
       const skipped = earlierNotApplied(step, await listSteps(deps.sequelize, tenantId, permitId));
@@ -218,6 +229,19 @@ export async function acknowledgeStep(deps: AppDeps, caller: CallerContext, perm
   });
 }
 
+/**
+ * Group lockout per person: the lockbox holding the isolation keys opens only when every personal
+ * lock is off (OSHA 29 CFR 1910.147(f)(3)(ii)(D)), so no isolation comes off while anyone is signed on.
+ */
+async function refuseWhileCrewLockedOn(deps: AppDeps, tenantId: string, permitId: string) {
+  if (!(await groupLockoutPerPerson(deps.sequelize, tenantId))) return;
+  const on = await crewOnLockbox(deps.sequelize, tenantId, permitId);
+  if (on.length)
+    throw AppError.unprocessable(
+      `The lockbox is still locked: ${on.map((c) => `${c.name} (personal lock ${c.personalLockNumber})`).join(', ')} ${on.length === 1 ? 'is' : 'are'} still signed on. Each person takes their own personal lock off before any isolation comes off.`,
+    );
+}
+
 export async function removeStep(deps: AppDeps, caller: CallerContext, permitId: string, stepId: string, input: RemoveStepInput) {
   const { tenantId } = caller.actor;
   return withTenant(deps.sequelize, tenantId, async () => {
@@ -227,6 +251,7 @@ export async function removeStep(deps: AppDeps, caller: CallerContext, permitId:
     if (refused) throw AppError.conflict(step.status === 'removed' ? 'This isolation is already removed.' : 'This step was never applied.');
     if (step.kind === 'plug' && !input.plugOutcome) throw AppError.validation('Say whether the plug was removed or left to be displaced by product.', [{ path: 'plugOutcome', message: 'Required for a plug.' }]);
     await requireQualification(deps, caller, 'lockout_tagout', 'remove isolations');
+    await refuseWhileCrewLockedOn(deps, tenantId, permitId);
     // A lock or tag comes off by the hand that put it on, or under an authoriser's recorded exception (OSHA 29 CFR 1910.147(e)(3)).
     const exception = removalNeedsException(step, caller.user.id) ? await claimRemovalException(deps, caller, step, input) : null;
     // De-isolation runs in reverse order of application (the counter, not the minute typed) unless a reason is recorded.

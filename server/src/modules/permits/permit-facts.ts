@@ -1,16 +1,17 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import type { ActorFacts, PermitFacts } from '@shared/permit/state-machine';
-import { isolationInUseStates } from '@shared/permit/states';
 import { inPlaceStatuses } from '@shared/isolations/step-rules';
 import type { Actor } from '@shared/abilities/define-ability';
 import { siteDay } from '@shared/time/zone';
 import { inDateOn } from '../../lib/qualifications';
 import { readinessFromJson, readinessSql, type ReadinessJson } from '../isolations/isolation-readiness';
+import { pointNeighbours } from '../isolations/isolation-neighbours';
 import type { PermitRow } from './permits.repository';
+import { perPersonIn } from '../crew/crew-queries';
 
 /** Gathers from the database everything the lifecycle guards need about one permit. */
 export async function loadPermitFacts(sequelize: Sequelize, permit: PermitRow): Promise<PermitFacts> {
-  const r = { tenantId: permit.tenantId, permitId: permit.id, inPlace: inPlaceStatuses, inUse: isolationInUseStates };
+  const r = { tenantId: permit.tenantId, permitId: permit.id, inPlace: inPlaceStatuses };
   const [iso] = await sequelize.query<{
     steps: number; applied: number; verified: number; self_verified: number; remote_without_ack: number;
     still_applied: number; vents_open: number; plugs_in_place: number; plug_warnings: number; readiness: ReadinessJson | null;
@@ -29,20 +30,16 @@ export async function loadPermitFacts(sequelize: Sequelize, permit: PermitRow): 
      FROM isolation_steps WHERE tenant_id = :tenantId AND permit_id = :permitId`,
     { replacements: r, type: QueryTypes.SELECT },
   );
-  const [gas] = await sequelize.query<{ last_pass: Date | null; last_fail: Date | null }>(
-    `SELECT max(tested_at) FILTER (WHERE verdict = 'pass') AS last_pass, max(tested_at) FILTER (WHERE verdict = 'fail') AS last_fail
+  // The group-lockout setting and the personal locks on the lockbox ride along: no statement of their own.
+  const [gas] = await sequelize.query<{ last_pass: Date | null; last_fail: Date | null; settings: unknown; crew_on: number }>(
+    `SELECT max(tested_at) FILTER (WHERE verdict = 'pass') AS last_pass, max(tested_at) FILTER (WHERE verdict = 'fail') AS last_fail,
+            (SELECT settings FROM tenants WHERE id = :tenantId) AS settings,
+            (SELECT count(*)::int FROM permit_crew_members WHERE tenant_id = :tenantId AND permit_id = :permitId AND signed_off_at IS NULL) AS crew_on
      FROM gas_tests WHERE tenant_id = :tenantId AND permit_id = :permitId`,
     { replacements: r, type: QueryTypes.SELECT },
   );
-  const conflicts = await sequelize.query<{ number: string }>(
-    `SELECT DISTINCT other.number FROM isolation_steps mine
-     JOIN isolation_steps theirs ON theirs.tenant_id = mine.tenant_id AND theirs.point_id = mine.point_id AND theirs.permit_id <> mine.permit_id
-       AND theirs.status IN (:inPlace)
-     JOIN permits other ON other.tenant_id = theirs.tenant_id AND other.id = theirs.permit_id AND other.state IN (:inUse)
-     WHERE mine.tenant_id = :tenantId AND mine.permit_id = :permitId AND mine.condition IN ('drained','vent_open')
-     ORDER BY other.number`,
-    { replacements: r, type: QueryTypes.SELECT },
-  );
+  // The same rule as plan save and apply, against every permit from accepted to work complete.
+  const { conflicts } = await pointNeighbours(sequelize, permit.tenantId, permit.id);
   const fireWatchEndsAt =
     permit.kinds.includes('hot_work') && permit.hotWorkEndedAt ? new Date(new Date(permit.hotWorkEndedAt).getTime() + permit.fireWatchMinutes * 60_000) : null;
   return {
@@ -71,8 +68,9 @@ export async function loadPermitFacts(sequelize: Sequelize, permit: PermitRow): 
     fireWatchEndsAt,
     walkdownComplete: permit.walkdown.filter((w) => w.required).every((w) => w.confirmed),
     controlRoomAcknowledged: Boolean(permit.controlRoomAckAt),
-    conflicts: conflicts.map((c) => c.number),
+    conflicts: conflicts.map((c) => c.message),
     hasExpiredFlag: permit.expiredFlag,
+    crewOnLockbox: perPersonIn(gas.settings) ? gas.crew_on : null,
   };
 }
 

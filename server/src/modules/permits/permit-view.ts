@@ -8,6 +8,8 @@ import { authorizeRecord } from '../../lib/authorize';
 import { findPermit, type PermitRow } from './permits.repository';
 import type { CallerContext } from '../../lib/caller';
 import { availableActions } from './permits.service';
+import { permitLockbox } from '../crew/crew-queries';
+import { workOverlaps } from './work-overlaps';
 
 /** A permit as its page shows it, with what this caller may do now; one read transaction. */
 export async function permitDetail(deps: AppDeps, c: CallerContext, id: string): Promise<PermitDetail<Date>> {
@@ -19,7 +21,9 @@ export async function permitDetail(deps: AppDeps, c: CallerContext, id: string):
     const timeline = await permitTimeline(sequelize, c.actor.tenantId, id);
     const signatures = await permitSignatures(sequelize, c.actor.tenantId, id);
     const gasDue = await permitGasTestDue(sequelize, permit, deps.clock.now());
-    return { ...permit, actions, timeline, signatures, nextGasTestDue: gasDue };
+    const lockbox = await permitLockbox(sequelize, c.actor.tenantId, id);
+    const overlaps = await workOverlaps(sequelize, permit);
+    return { ...permit, actions, timeline, signatures, nextGasTestDue: gasDue, lockbox, workOverlaps: overlaps };
   });
 }
 

@@ -15,6 +15,7 @@ import { appendAudit } from '../audit/audit.service';
 import { loadTenantSettings } from '../tenants/tenant-settings';
 import { checklistTemplate, findPermit, listPermits, nextPermitNumber, type PermitRow } from './permits.repository';
 import { loadActorFacts, loadPermitFacts } from './permit-facts';
+import { mailNewOverlaps } from './work-overlaps';
 import { queuePermitMail } from './permit-mail';
 import { requireRevalidationWithinMax, requireWindowWithinMax } from './validity-window';
 
@@ -279,6 +280,8 @@ export async function applyTransition(
   await queuePermitMail(sequelize, permit, event, verdict.to, {
     actorName: who.caller?.user.name ?? 'Holdpoint', reason: input.reason ?? who.system, publicUrl: deps.config.PUBLIC_URL, auditSeq: audit.seq, excludeUserEmail: who.caller?.user.email,
   });
+  // Overlapping work on the same line is flagged to both permits' authorisers when first found (HSE HSG250).
+  if (event === 'submit' || event === 'approve') await mailNewOverlaps(sequelize, permit, event === 'approve' ? (who.caller?.user.email ?? null) : null, deps.config.PUBLIC_URL);
   await sequelize.query(`SELECT pg_notify('holdpoint_changes', :payload)`, { replacements: { payload: JSON.stringify({ tenantId, kind: 'permit', id: permit.id, state: verdict.to }) } });
   return (await findPermit(sequelize, tenantId, permit.id))!;
 }

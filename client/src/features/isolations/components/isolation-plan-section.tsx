@@ -16,6 +16,7 @@ import { planRange } from '../lib/step-rules';
 import { AcknowledgeDialog } from './acknowledge-dialog';
 import { ApplyDialog } from './apply-dialog';
 import { PlanEditor } from './plan-editor';
+import { PlanNeighbours } from './plan-neighbours';
 import { IsolationReadinessPanel } from './isolation-readiness-panel';
 import { RemovalExceptionDialog } from './removal-exception-dialog';
 import { RemoveDialog } from './remove-dialog';
@@ -92,6 +93,8 @@ export function IsolationPlanSection({ permit }: { permit: IsolationPlanPermit }
             initialRange={planRange(overlays.workRange, steps)}
           />
         ) : null}
+
+        {plan.data ? <PlanNeighbours conflicts={plan.data.conflicts} shared={plan.data.shared} /> : null}
 
         {plan.isPending ? (
           <Loading label="Loading the isolation plan…" />

@@ -20,6 +20,7 @@ import { PrintPermitLink } from '../components/print-permit-link';
 import { JobSection } from '../components/job-section';
 import { PlaceSection } from '../components/place-section';
 import { CrewSection } from '../components/crew-section';
+import { LockboxSection } from '../components/lockbox-section';
 import { ChecklistSection } from '../components/checklist-section';
 import { SignaturesSection } from '../components/signatures-section';
 import { TimelineSection } from '../components/timeline-section';
@@ -83,6 +84,17 @@ export default function PermitPage() {
         </Notice>
       ) : null}
 
+      {p.workOverlaps.length ? (
+        <Notice tone="caution" title="Other work on the same stretch of line" role="status">
+          <ul className="list-disc pl-5 text-sm" data-testid="work-overlaps">
+            {p.workOverlaps.map((o) => (
+              <li key={o.permitNumber}>{o.message}.</li>
+            ))}
+          </ul>
+          <p className="text-sm">Check the two jobs, their isolations and their crews are planned together before either goes ahead.</p>
+        </Notice>
+      ) : null}
+
       <div className="grid min-w-0 gap-4 lg:grid-cols-3">
         <aside className="flex min-w-0 flex-col gap-4 lg:order-2" aria-label="Actions on this permit">
           <Card>
@@ -106,6 +118,7 @@ export default function PermitPage() {
           <PlaceSection permit={p} unit={unit} showStrip={false} />
           <IsolationPlanSection permit={p} />
           <CrewSection permit={p} />
+          <LockboxSection permit={p} userId={me?.user.id ?? ''} timeZone={timeZone} />
           <ChecklistSection permit={p} timeZone={timeZone} />
           <GasTestsSection permit={p} />
           <ChecksSection permit={p} />

@@ -1,0 +1,95 @@
+import { useForm } from 'react-hook-form';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { subject } from '@casl/ability';
+import { crewSignOnStates } from '@shared/permit/states';
+import { crewSignOnInputSchema, type CrewSignOnInput } from '@shared/schemas/crew.schema';
+import type { PermitDetail } from '@shared/types/permits';
+import { formatInZone } from '@shared/time/zone';
+import { ApiError } from '@client/lib/api-client';
+import { useAbility } from '@client/lib/ability';
+import { Button } from '@client/components/ui/button';
+import { TextField } from '@client/components/ui/field';
+import { Card } from '@client/components/ui/page';
+import { useToast } from '@client/components/ui/toast';
+import { useCrewSignOff, useCrewSignOn } from '../api/crew-lockbox';
+
+/**
+ * Group lockout per person (OSHA 29 CFR 1910.147(f)(3)(ii)(D)): who has a personal lock on the
+ * permit's lockbox now, and the signed-in person's own Sign on / Sign off. Shown only where the site
+ * locks per person.
+ */
+export function LockboxSection({ permit, userId, timeZone }: { permit: PermitDetail; userId: string; timeZone: string }) {
+  const ability = useAbility();
+  const toast = useToast();
+  const signOn = useCrewSignOn(permit.id);
+  const signOff = useCrewSignOff(permit.id);
+  const form = useForm<CrewSignOnInput>({ resolver: zodResolver(crewSignOnInputSchema), defaultValues: { personalLockNumber: '' } });
+  const box = permit.lockbox;
+  if (!box.perPerson) return null;
+  const mine = box.crewOn.find((c) => c.userId === userId);
+  const maySignOn = !mine && crewSignOnStates.includes(permit.state) && ability.can('sign_on', subject('Permit', { ...permit }));
+
+  return (
+    <Card>
+      <h2 className="mb-2 text-lg font-semibold">Lockbox</h2>
+      <p className="mb-3 text-sm text-ink-soft">
+        {box.label ?? 'The lockbox'} holds the keys of this permit&apos;s isolation locks{box.keys.length ? ` (${box.keys.join(', ')})` : ''}. Each person working puts a personal
+        lock on it before starting and takes it off when they stop. It opens only when every personal lock is off.
+      </p>
+      {box.crewOn.length ? (
+        <ul className="mb-3 flex flex-col gap-2" aria-label="People signed on">
+          {box.crewOn.map((c) => (
+            <li key={c.userId} className="flex flex-wrap items-baseline justify-between gap-x-3 rounded-md border border-line p-3">
+              <span className="font-semibold break-words">{c.name}</span>
+              <span className="text-sm">
+                Personal lock <strong className="break-all">{c.personalLockNumber}</strong> · on since {formatInZone(c.signedOnAt, timeZone)}
+              </span>
+            </li>
+          ))}
+        </ul>
+      ) : (
+        <p className="mb-3 text-sm font-medium">Nobody is signed on.</p>
+      )}
+      {mine ? (
+        <Button
+          type="button"
+          variant="secondary"
+          className="w-full sm:w-auto"
+          busy={signOff.isPending}
+          onClick={() =>
+            signOff.mutate(undefined, {
+              onSuccess: () => toast('success', `Signed off: take personal lock ${mine.personalLockNumber} off the lockbox.`),
+              onError: (e) => toast('error', e.message),
+            })
+          }
+        >
+          Sign off (remove my lock {mine.personalLockNumber})
+        </Button>
+      ) : maySignOn ? (
+        <form
+          noValidate
+          className="flex flex-col gap-3 sm:flex-row sm:items-end"
+          onSubmit={form.handleSubmit((v) =>
+            signOn.mutate(v, {
+              onSuccess: () => {
+                toast('success', `Signed on with personal lock ${v.personalLockNumber}.`);
+                form.reset();
+              },
+              onError: (e) =>
+                e instanceof ApiError && e.details.length
+                  ? e.details.forEach((d) => form.setError('personalLockNumber', { message: d.message }))
+                  : form.setError('personalLockNumber', { message: e.message }),
+            }),
+          )}
+        >
+          <div className="min-w-0 flex-1">
+            <TextField label="Your personal lock number" autoComplete="off" {...form.register('personalLockNumber')} error={form.formState.errors.personalLockNumber?.message} />
+          </div>
+          <Button type="submit" busy={signOn.isPending} className="w-full sm:w-auto">
+            Sign on
+          </Button>
+        </form>
+      ) : null}
+    </Card>
+  );
+}
