@@ -100,9 +100,6 @@ export const liveStates: readonly PermitState[] = ['live'];
 export const beforeIsolatedStates: readonly PermitState[] = ['draft', 'requested', 'approved', 'accepted', 'expired'];
 /** Sent for approval and not yet handed back: another permit's work on the same stretch of line is flagged to both authorisers. */
 export const workOverlapStates: readonly PermitState[] = ['requested', 'approved', ...holding];
-/** The isolations are confirmed and the crew may be at work: another permit's plan must not operate those points. */
-export const isolationInUseStates: readonly PermitState[] = ['isolated', 'live', 'suspended'];
-
 /** The isolations are signed in place and work is not handed back: the crew may put personal locks on the permit's lockbox. */
 export const crewSignOnStates: readonly PermitState[] = ['isolated', 'live', 'suspended'];
 

@@ -2,30 +2,23 @@
 // the API as the demo people meet them. One hot-work permit is taken live and worked on in order.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
-import { startMailCatcher } from '../../server/src/lib/mail-catcher';
-import { deliverDueMail } from '../../server/src/lib/mailer';
+import { captureMail, type CaughtMail } from '../fixtures/mail-capture';
 import { hashPassword } from '../../server/src/lib/passwords';
 import { runScheduler } from '../../server/src/modules/gas-tests/scheduler';
 import { startTestServer, type ApiClient, type TestServer } from '../fixtures/test-server';
 import { demoIds, sign, transition, users } from '../fixtures/permit-fixtures';
 import { applyAndVerifyAll, confirmChecklist, draftWithPlan, expectOk, signInCrew, toAccepted, type Crew, type Ids } from '../fixtures/permit-journey';
 
-interface Mail {
-  to: string;
-  subject: string;
-  body: string;
-}
-
 describe('gas tests, timed checks and handover through the API', () => {
   let srv: TestServer;
-  let catcher: Awaited<ReturnType<typeof startMailCatcher>>;
+  let capture: Awaited<ReturnType<typeof captureMail>>;
   let crew: Crew;
   let ids: Ids;
   let permitId = '';
   let permitNumber = '';
   let inDate = '';
   let overdueCalibration = '';
-  const mails: Mail[] = [];
+  const mails: CaughtMail[] = [];
   const q = <T extends object>(sql: string, replacements: Record<string, unknown> = {}) => srv.deps.sequelize.query<T>(sql, { replacements, type: QueryTypes.SELECT });
   const now = () => srv.clock.now().toISOString();
   const minutesAgo = (m: number) => new Date(srv.clock.now().getTime() - m * 60_000).toISOString();
@@ -35,19 +28,11 @@ describe('gas tests, timed checks and handover through the API', () => {
   /** The demo monitor was bump-tested when the template was seeded; the clock moves, so bump it "now". */
   const bump = async (id = inDate) => expectOk(await crew.authoriser.patch(`/api/instruments/${id}`, { lastBumpTestAt: now() }));
   const gasTestCount = async () => (await q<{ n: number }>(`SELECT count(*)::int AS n FROM gas_tests WHERE permit_id = :permitId`, { permitId }))[0].n;
-  /** Sends the whole outbox (the mail worker is off in tests) and waits for the catcher to have it. */
-  const flushMail = async () => {
-    let sent = 0;
-    for (let n = -1; n !== 0; sent += n) n = await deliverDueMail(srv.deps.sequelize, srv.deps.mailTransport, srv.deps.config.MAIL_FROM, srv.deps.logger);
-    await expect.poll(() => mails.length, { timeout: 5000 }).toBeGreaterThanOrEqual(sent);
-  };
+  const flushMail = () => capture.flush(srv);
 
   beforeAll(async () => {
-    catcher = await startMailCatcher();
-    catcher.tester.bind((_addr: string | null, _id: number, email: { receivers: Record<string, boolean>; headers: Record<string, unknown>; body?: string }) => {
-      for (const to of Object.keys(email.receivers)) mails.push({ to, subject: String(email.headers.subject), body: email.body ?? '' });
-    });
-    srv = await startTestServer({ smtpPort: catcher.port, env: { SESSION_IDLE_MINUTES: '600', SESSION_ABSOLUTE_HOURS: '48' } });
+    capture = await captureMail(mails);
+    srv = await startTestServer({ smtpPort: capture.catcher.port, env: { SESSION_IDLE_MINUTES: '600', SESSION_ABSOLUTE_HOURS: '48' } });
     crew = await signInCrew(srv);
     ids = await demoIds(srv);
     const instruments = await q<{ id: string; serial: string }>(`SELECT id, serial FROM instruments WHERE tenant_id = :t`, { t: ids.tenantId });
@@ -63,7 +48,7 @@ describe('gas tests, timed checks and handover through the API', () => {
   });
   afterAll(async () => {
     await srv?.close();
-    await catcher?.stop();
+    await capture?.catcher.stop();
   });
 
   it('when anyone lists instruments, then they see the register; when the gas tester tries to add one, then 403', async () => {

@@ -3,8 +3,7 @@
 import { QueryTypes } from 'sequelize';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startTestServer, type TestServer } from '../fixtures/test-server';
-import { startMailCatcher } from '../../server/src/lib/mail-catcher';
-import { deliverDueMail } from '../../server/src/lib/mailer';
+import { captureMail, type CaughtMail } from '../fixtures/mail-capture';
 import { demoIds, permitBody, sign, transition, users } from '../fixtures/permit-fixtures';
 import { draftWithPlan, expectOk, inStore, reasonsOf, signInCrew, tempDeadEnds, toAccepted, type Crew, type Ids, type PlanStepBody } from '../fixtures/permit-journey';
 
@@ -36,21 +35,13 @@ describe('conflicting isolations between permits', () => {
   const stepOf = async (id: string, label: string) => (await planOf(id)).items.find((s) => s.label === label)!;
   const lockAndTag = async () => ({ lockId: await inStore(srv, 'locks', ids.tenantId), tagId: await inStore(srv, 'tags', ids.tenantId) });
 
-  let catcher: Awaited<ReturnType<typeof startMailCatcher>>;
-  const mails: { to: string; subject: string; body: string }[] = [];
-  /** Sends the whole outbox (the mail worker is off in tests) and waits for the catcher to have it. */
-  const flushMail = async () => {
-    let sent = 0;
-    for (let n = -1; n !== 0; sent += n) n = await deliverDueMail(srv.deps.sequelize, srv.deps.mailTransport, srv.deps.config.MAIL_FROM, srv.deps.logger);
-    await expect.poll(() => mails.length, { timeout: 5000 }).toBeGreaterThanOrEqual(sent);
-  };
+  let capture: Awaited<ReturnType<typeof captureMail>>;
+  const mails: CaughtMail[] = [];
+  const flushMail = () => capture.flush(srv);
 
   beforeAll(async () => {
-    catcher = await startMailCatcher();
-    catcher.tester.bind((_addr: string | null, _id: number, email: { receivers: Record<string, boolean>; headers: Record<string, unknown>; body?: string }) => {
-      for (const to of Object.keys(email.receivers)) mails.push({ to, subject: String(email.headers.subject), body: email.body ?? '' });
-    });
-    srv = await startTestServer({ smtpPort: catcher.port });
+    capture = await captureMail(mails);
+    srv = await startTestServer({ smtpPort: capture.catcher.port });
     crew = await signInCrew(srv);
     ids = await demoIds(srv);
     for (const p of await select<{ id: string; tag_code: string }>(`SELECT id, tag_code FROM isolation_points WHERE tenant_id = :tenantId`)) point[p.tag_code] = p.id;
@@ -67,7 +58,7 @@ describe('conflicting isolations between permits', () => {
   });
   afterAll(async () => {
     await srv?.close();
-    await catcher?.stop();
+    await capture?.catcher.stop();
   });
 
   // Source: HSE HSG250 (a permit-to-work system must identify conflicting work); common practice where the text was not read.

@@ -4,7 +4,7 @@ import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { addMinutes, subMinutes } from 'date-fns';
 import {
-  beforeIsolatedStates, boardPermitStates, checklistOpenStates, closedStates, editableStates, finishedStates, holdsIsolations, isolationInUseStates, limitsFixedStates, liveStates, permitStates,
+  beforeIsolatedStates, boardPermitStates, crewSignOnStates, checklistOpenStates, closedStates, editableStates, finishedStates, holdsIsolations, limitsFixedStates, liveStates, permitStates,
   workOpenStates, workUnderWayStates, type PermitState,
 } from '@shared/permit/states';
 import { eventsFrom, statesFrom, targetOf } from '@shared/permit/state-machine';
@@ -39,7 +39,7 @@ describe('finding 1: the lists of permit states agree with the state machine', (
 
   it('when a permit holds isolations, then the board shows it; the board adds cancelled permits whose isolations are not off yet', () => {
     sameStates(boardPermitStates, [...holdsIsolations, 'cancelled']);
-    for (const s of [...applyStates, ...removeStates, ...isolationInUseStates, ...workOpenStates]) expect(boardPermitStates).toContain(s);
+    for (const s of [...applyStates, ...removeStates, ...crewSignOnStates, ...workOpenStates]) expect(boardPermitStates).toContain(s);
   });
 
   it('when the walk-down is ticked, then the permit is waiting for return to service; only a draft is edited', () => {
@@ -50,7 +50,7 @@ describe('finding 1: the lists of permit states agree with the state machine', (
 
   it('when the isolations are not yet signed in place, then the permit is at most accepted (or expired); the signature is confirm-isolated', () => {
     for (const s of statesFrom('confirm_isolated')) expect(beforeIsolatedStates).toContain(s);
-    for (const s of beforeIsolatedStates) expect(isolationInUseStates).not.toContain(s);
+    for (const s of beforeIsolatedStates) expect(crewSignOnStates).not.toContain(s);
     expect(beforeIsolatedStates).toContain(statesFrom('revalidate').find((s) => targetOf('revalidate', s) !== s));
   });
 

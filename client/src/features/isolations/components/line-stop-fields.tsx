@@ -1,5 +1,5 @@
 import type { FieldErrors, UseFormRegister } from 'react-hook-form';
-import { gaugeUnitLabels, gaugeUnits } from '@shared/calc/pressure';
+import { GaugeUnitOptions } from './gauge-unit-options';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { numberOrUndefined, textOrUndefined, type ApplyForm } from '../lib/step-forms';
 
@@ -15,11 +15,7 @@ export function LineStopFields({ register, errors }: { register: UseFormRegister
         <TextField label="Set pressure" type="number" inputMode="decimal" step="any" min={0} {...register('lineStopSetPressure', num)} error={errors.lineStopSetPressure?.message} />
         <SelectField label="Unit" {...register('lineStopSetPressureUnit')} error={errors.lineStopSetPressureUnit?.message}>
           <option value="">Choose…</option>
-          {gaugeUnits.map((u) => (
-            <option key={u} value={u}>
-              {gaugeUnitLabels[u]}
-            </option>
-          ))}
+          <GaugeUnitOptions />
         </SelectField>
       </div>
       <TextField

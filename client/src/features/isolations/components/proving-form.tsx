@@ -9,6 +9,7 @@ import type { IsolationStep } from '@shared/types/isolations';
 import type { IsolationPlanReadiness, IsolationProving } from '@shared/types/isolation-proving';
 import { formatInZone, isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { Button } from '@client/components/ui/button';
+import { GaugeUnitOptions } from './gauge-unit-options';
 import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
@@ -108,11 +109,7 @@ export function ProvingForm({ permitId, steps, running, limits, timeZone }: Prop
           <p className="self-end pb-3 text-sm">In {gaugeUnitLabels[running.unit]}, on the same gauge as the first reading.</p>
         ) : (
           <SelectField label="Unit" {...register('unit')} error={formState.errors.unit?.message}>
-            {gaugeUnits.map((u) => (
-              <option key={u} value={u}>
-                {gaugeUnitLabels[u]}
-              </option>
-            ))}
+            <GaugeUnitOptions />
           </SelectField>
         )}
       </div>
