@@ -11,7 +11,7 @@ import type { Page } from '@shared/schemas/common.schema';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
-import { signerPasswordMatches } from '../auth/signature-password';
+import { requireSignature } from '../auth/signature-password';
 import { appendAudit } from '../audit/audit.service';
 import { loadTenantSettings } from '../tenants/tenant-settings';
 import { notifyChange } from '../isolations/isolation-queries';
@@ -25,14 +25,6 @@ const handoverSelect = `
   SELECT h.id, h.status, h.from_user_id AS "fromUserId", f.name AS "fromName", h.to_user_id AS "toUserId", t.name AS "toName",
          h.open_points AS "openPoints", h.readings_summary AS "readingsSummary", h.from_signed_at AS "fromSignedAt", h.accepted_at AS "acceptedAt"
   FROM permit_handovers h JOIN users f ON f.id = h.from_user_id JOIN users t ON t.id = h.to_user_id`;
-
-/** The same signature as a permit transition: the password again and the name typed as on the account. */
-async function checkSignature(deps: AppDeps, caller: CallerContext, input: { password: string; signedName: string }) {
-  const details = [];
-  if (input.signedName.trim().toLowerCase() !== caller.user.name.trim().toLowerCase()) details.push({ path: 'signedName', message: `Type your name exactly as "${caller.user.name}" to sign.` });
-  if (!(await signerPasswordMatches(deps, caller.user.id, input.password))) details.push({ path: 'password', message: 'Re-enter your password to sign.' });
-  if (details.length) throw AppError.validation('The signature is not complete.', details);
-}
 
 export async function listHandovers(deps: AppDeps, caller: CallerContext, permitId: string, q: { page: number; pageSize: number }): Promise<Page<HandoverRow<Date>>> {
   return withTenant(deps.sequelize, caller.actor.tenantId, async () => {
@@ -73,7 +65,7 @@ export async function createHandover(deps: AppDeps, caller: CallerContext, permi
   return withTenant(deps.sequelize, tenantId, async () => {
     const permit = await permitFor(deps, caller, permitId, { action: 'handover', type: 'Permit', what: 'permit' }, { lock: true });
     // After the role check, so someone who may not hand over hears that, not "re-enter your password".
-    await checkSignature(deps, caller, input);
+    await requireSignature(deps, caller.user, input);
     requireWorkOpen(permit, 'A shift handover', workUnderWayStates);
     const holder = permit.holderUserId ?? permit.contractorLeadUserId;
     if (holder !== caller.user.id) throw AppError.unprocessable(`Only the lead who holds the permit now${permit.holderName ? ` (${permit.holderName})` : ''} can hand it over.`);
@@ -110,7 +102,7 @@ export async function acceptHandover(deps: AppDeps, caller: CallerContext, permi
   const { tenantId } = caller.actor;
   return withTenant(deps.sequelize, tenantId, async () => {
     const permit = await permitFor(deps, caller, permitId, { action: 'handover', type: 'Permit', what: 'permit' }, { lock: true });
-    await checkSignature(deps, caller, input);
+    await requireSignature(deps, caller.user, input);
     const [handover] = await deps.sequelize.query<{ status: string; to_user_id: string; from_user_id: string }>(
       `SELECT status, to_user_id, from_user_id FROM permit_handovers WHERE tenant_id = :tenantId AND permit_id = :permitId AND id = :id FOR UPDATE`,
       { replacements: { tenantId, permitId, id: handoverId }, type: QueryTypes.SELECT },

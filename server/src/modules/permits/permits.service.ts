@@ -10,7 +10,7 @@ import { AppError } from '../../errors/app-error';
 import { authorizeRecord, authorizeType } from '../../lib/authorize';
 import { auditActor, type CallerContext } from '../../lib/caller';
 import { scopeToSql } from '../../lib/casl-sql';
-import { signerPasswordMatches } from '../auth/signature-password';
+import { requireSignature } from '../auth/signature-password';
 import { appendAudit } from '../audit/audit.service';
 import { loadTenantSettings } from '../tenants/tenant-settings';
 import { checklistTemplate, findPermit, listPermits, nextPermitNumber, type PermitRow } from './permits.repository';
@@ -186,11 +186,7 @@ export async function transitionPermit(deps: AppDeps, caller: CallerContext, id:
     authorizeRecord(caller.ability, eventAction[event], 'Permit', await findPermit(deps.sequelize, tenantId, id), 'permit'),
   );
   if (signedEvents.includes(event)) {
-    const details = [];
-    if (!input.signedName || input.signedName.trim().toLowerCase() !== caller.user.name.trim().toLowerCase())
-      details.push({ path: 'signedName', message: `Type your name exactly as "${caller.user.name}" to sign.` });
-    if (!(await signerPasswordMatches(deps, caller.user.id, input.password))) details.push({ path: 'password', message: 'Re-enter your password to sign.' });
-    if (details.length) throw AppError.validation('The signature is not complete.', details);
+    await requireSignature(deps, caller.user, input);
   }
   return withTenant(deps.sequelize, tenantId, async () => {
     const permit = await findPermit(deps.sequelize, tenantId, id, { lock: true });
