@@ -1,6 +1,7 @@
 // `npm run bench`: the performance run on the scale dataset (build it first with `npm run seed:scale`).
 // Starts the database of `npm start` if it is not running (and stops it again at the end), builds the
-// client when dist/ is missing, then runs scripts/bench/run.ts. Not part of `npm test`.
+// client when dist/ is missing, compiles the server, then runs scripts/bench/run.ts (or, with
+// `-- profile [entry]`, scripts/bench/profile.ts). Not part of `npm test`.
 import { existsSync, mkdirSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import { dirname, join, resolve } from 'node:path';
@@ -29,7 +30,13 @@ try {
     console.log('[bench] building the client');
     if (spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: root, stdio: 'inherit' }).status !== 0) throw new Error('the client build failed');
   }
-  status = spawnSync(process.execPath, ['--import', 'tsx', 'scripts/bench/run.ts'], {
+  // The server runs as in production: compiled, with plain node.
+  const { buildServer } = await import('./build-server.mjs');
+  await buildServer(root);
+  // `npm run bench -- profile [entry]`: the CPU profile of the signed-in reads instead of the whole run.
+  const [command, ...rest] = process.argv.slice(2);
+  const script = command === 'profile' ? ['scripts/bench/profile.ts', ...rest] : ['scripts/bench/run.ts'];
+  status = spawnSync(process.execPath, ['--import', 'tsx', ...script], {
     cwd: root,
     stdio: 'inherit',
     env: { ...process.env, DATABASE_URL: appUrl, DATABASE_OWNER_URL: ownerUrl, DATA_DIR: dataDir },

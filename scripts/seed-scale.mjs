@@ -6,7 +6,7 @@
 // recomputes the whole audit chain afterwards, `--factor 0.1` builds a tenth of everything. A database
 // this command started is stopped again at the end; one that was already running is left running.
 import { spawnSync } from 'node:child_process';
-import { mkdirSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { ensureNodeModules } from './lib/deps.mjs';
@@ -25,6 +25,18 @@ ensureNodeModules(root);
 mkdirSync(dataDir, { recursive: true });
 const cluster = startCluster({ root: join(dataDir, 'pg'), port: pgPort });
 const password = keptSecret(join(dataDir, 'db-password'));
+/** CPU time of this command and the processes it waited for (the builders, psql); the database server's own work is not included. */
+function cpuSeconds() {
+  try {
+    // /proc/self/stat: utime, stime, cutime, cstime (fields 14–17) in clock ticks of 1/100 s.
+    const fields = readFileSync('/proc/self/stat', 'utf8').split(') ')[1].split(' ');
+    const ticks = [11, 12, 13, 14].reduce((sum, i) => sum + Number(fields[i]), 0);
+    return `${(ticks / 100).toFixed(1)} s of CPU outside PostgreSQL`;
+  } catch {
+    const { user, system } = process.cpuUsage();
+    return `${((user + system) / 1e6).toFixed(1)} s of CPU in this process`;
+  }
+}
 const finish = (code) => {
   if (cluster.startedHere) cluster.stop();
   process.exit(code);
@@ -46,7 +58,7 @@ try {
   const status = node('scripts/scale/seed-data.ts', args.filter((a) => a !== '--fresh'));
   if (status === 3) finish(0);
   if (status !== 0) throw new Error('building the dataset failed; run again with --fresh');
-  console.log(`[seed:scale] done in ${((Date.now() - started) / 1000).toFixed(1)} s. Sign in as the demo people (password "holdpoint-demo") against ${database}; run \`npm run bench\` next.`);
+  console.log(`[seed:scale] done in ${((Date.now() - started) / 1000).toFixed(1)} s (${cpuSeconds()}). Sign in as the demo people (password "holdpoint-demo") against ${database}; run \`npm run bench\` next.`);
   finish(0);
 } catch (err) {
   console.error(`[seed:scale] ${err.message}`);

@@ -1,6 +1,6 @@
-// `npm start`: installs what is missing, starts PostgreSQL under .data/pg, migrates and seeds the
-// demo, builds the client and serves everything from one process. Ctrl-C stops the server and the
-// database this command started.
+// `npm start`: installs what is missing, starts PostgreSQL under .data/pg, compiles the server, migrates
+// and seeds the demo, builds the client and serves everything (one server process per core).
+// Ctrl-C stops the server and the database this command started.
 import { spawn, spawnSync } from 'node:child_process';
 import { mkdirSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
@@ -36,7 +36,10 @@ const env = { ...process.env, DATABASE_URL: appUrl, DATABASE_OWNER_URL: ownerUrl
 const run = (args) => spawnSync(process.execPath, args, { cwd: root, env: { ...env, DATABASE_URL: ownerUrl }, stdio: 'inherit' });
 
 try {
-  if (run(['--import', 'tsx', 'server/src/demo/cli.ts', 'setup']).status !== 0) throw new Error('database set-up failed');
+  // The server runs compiled (dist/server, git-ignored), with plain node: see scripts/build-server.mjs.
+  const { buildServer } = await import('./build-server.mjs');
+  await buildServer(root);
+  if (run(['dist/server/demo-cli.js', 'setup']).status !== 0) throw new Error('database set-up failed');
   if (spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: root, env, stdio: 'inherit' }).status !== 0) throw new Error('client build failed');
   if (await portInUse(port)) throw new Error(`Port ${port} is in use; set PORT to another port.`);
 } catch (err) {
@@ -45,7 +48,13 @@ try {
   process.exit(1);
 }
 
-const server = spawn(process.execPath, ['--import', 'tsx', 'server/src/index.ts'], { cwd: root, env, stdio: ['ignore', 'inherit', 'inherit'] });
+// One server process per core (node:cluster) unless SERVER_PROCESSES says otherwise; with the development
+// mailbox on, the server keeps to one process (the mailbox lives in its memory).
+const server = spawn(process.execPath, ['dist/server/index.js'], {
+  cwd: root,
+  env: { ...env, SERVER_PROCESSES: process.env.SERVER_PROCESSES ?? 'auto' },
+  stdio: ['ignore', 'inherit', 'inherit'],
+});
 console.log(`
   Holdpoint is starting on http://127.0.0.1:${port}
   Demo sign-ins (password "holdpoint-demo"):

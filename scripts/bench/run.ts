@@ -80,13 +80,21 @@ function stopper(child: ChildProcess) {
     });
 }
 
-/** The real server, as in production: built client, NODE_ENV=production, warnings only, no background workers. */
+// BENCH_PROCESSES: the server's processes (SERVER_PROCESSES: "auto" is one per core, as `npm start`).
+const processes = process.env.BENCH_PROCESSES ?? 'auto';
+// BENCH_CPU_PROF=on: every server process writes a V8 CPU profile (node --cpu-prof) into bench/results/profiles.
+const cpuProfDir = process.env.BENCH_CPU_PROF === 'on' ? join(root, 'bench', 'results', 'profiles', new Date().toISOString().replace(/[:.]/g, '-')) : null;
+
+/** The real server, as in production: compiled (dist/server, plain node), built client, NODE_ENV=production, warnings only, no background workers. */
 async function startServer(extra: Record<string, string> = {}): Promise<Running> {
   const port = await freePort();
   const base = `http://127.0.0.1:${port}`;
-  const child = spawn(process.execPath, ['--import', 'tsx', 'server/src/index.ts'], {
+  const child = spawn(process.execPath, [...(cpuProfDir ? ['--cpu-prof', `--cpu-prof-dir=${cpuProfDir}`] : []), 'dist/server/index.js'], {
     cwd: root,
-    env: { ...process.env, NODE_ENV: 'production', LOG_LEVEL: 'warn', WORKERS: 'off', HOST: '127.0.0.1', PORT: String(port), PUBLIC_URL: base, DATABASE_URL: databaseUrl, DATABASE_OWNER_URL: ownerUrl, ...extra },
+    env: {
+      ...process.env, NODE_ENV: 'production', LOG_LEVEL: 'warn', WORKERS: 'off', SERVER_PROCESSES: processes, HOST: '127.0.0.1', PORT: String(port), PUBLIC_URL: base,
+      DATABASE_URL: databaseUrl, DATABASE_OWNER_URL: ownerUrl, ...extra,
+    },
     stdio: ['ignore', 'ignore', 'inherit'],
   });
   await waitFor(`${base}/api/health`, child, 'the server');
@@ -105,20 +113,44 @@ async function startFloor(tenantId: string): Promise<Running> {
   return { base, child, stop: stopper(child) };
 }
 
-/** Peak and last resident memory of a process, read from /proc every 250 ms. */
+async function startFloors(): Promise<Running> {
+  const port = await freePort();
+  const base = `http://127.0.0.1:${port}`;
+  const child = spawn(process.execPath, ['bench/floors.mjs'], { cwd: root, env: { ...process.env, DATABASE_URL: ownerUrl, PORT: String(port) }, stdio: ['ignore', 'ignore', 'inherit'] });
+  await waitFor(`${base}/select1`, child, 'the floors');
+  return { base, child, stop: stopper(child) };
+}
+
+/** The process and its children (the cluster's server processes). */
+function processTree(pid: number): number[] {
+  try {
+    const children = readFileSync(`/proc/${pid}/task/${pid}/children`, 'utf8').trim().split(/\s+/).filter(Boolean).map(Number);
+    return [pid, ...children.flatMap(processTree)];
+  } catch {
+    return [pid];
+  }
+}
+
+const rssOf = (pid: number) => {
+  try {
+    return Number(/VmRSS:\s+(\d+)/.exec(readFileSync(`/proc/${pid}/status`, 'utf8'))?.[1] ?? 0) / 1024;
+  } catch {
+    return 0;
+  }
+};
+
+/**
+ * Peak and last resident memory of the server, read from /proc every 250 ms: of its largest process
+ * (the target is per process), with the cluster's primary and each server process listed at the end.
+ */
 function rssWatch(pid: number) {
   let peak = 0;
   let window = 0;
   let last = 0;
   const read = () => {
-    try {
-      const kb = Number(/VmRSS:\s+(\d+)/.exec(readFileSync(`/proc/${pid}/status`, 'utf8'))?.[1] ?? 0);
-      last = kb / 1024;
-      peak = Math.max(peak, last);
-      window = Math.max(window, last);
-    } catch {
-      /* gone */
-    }
+    last = Math.max(0, ...processTree(pid).map(rssOf));
+    peak = Math.max(peak, last);
+    window = Math.max(window, last);
   };
   const timer = setInterval(read, 250);
   read();
@@ -128,6 +160,8 @@ function rssWatch(pid: number) {
     /** The peak since the last reset (one run). */
     windowPeak: () => (read(), window),
     reset: () => (window = last),
+    /** Every process now: pid and MB. */
+    each: () => processTree(pid).map((p) => ({ pid: p, mb: rssOf(p) })),
     stop: () => clearInterval(timer),
   };
 }
@@ -224,7 +258,14 @@ async function main() {
     return r;
   };
 
-  // ---- The floor ---------------------------------------------------------------------------------
+  // ---- The floors of this machine: bare node:http, and one SELECT 1 through a pg pool ------------
+  const floors = await startFloors();
+  console.log('\n[bench] floors: bare node:http; the same with one SELECT 1 through a pg pool');
+  const bareHttp = await run({ name: 'floor: bare node:http', base: floors.base, path: '/bare' });
+  const select1 = await run({ name: 'floor: SELECT 1 through a pg pool', base: floors.base, path: '/select1' });
+  await floors.stop();
+
+  // ---- The board floor ----------------------------------------------------------------------------
   const floor = await startFloor(fx.tenantId);
   console.log('\n[bench] floor: bare Express + pg, the best hand-written board query, no auth');
   // The small board first: requests still running after a full-board run would hold the pool.
@@ -242,21 +283,30 @@ async function main() {
   const authoriser = await signIn(server.base, users.authoriser);
   const tech = await signIn(server.base, users.tech);
   const gz = { 'accept-encoding': 'gzip' };
-  console.log(`\n[bench] Holdpoint (production build, NODE_ENV=production, LOG_LEVEL=warn, WORKERS=off), server RSS at start ${rssIdle.toFixed(0)} MB`);
+  const startEach = rss.each();
+  console.log(`\n[bench] Holdpoint (compiled, plain node, SERVER_PROCESSES=${processes}: ${Math.max(1, startEach.length - 1)} server process(es), NODE_ENV=production, LOG_LEVEL=warn, WORKERS=off), RSS at start ${startEach.map((p) => `${p.mb.toFixed(0)} MB`).join(' + ')}`);
+  const health = await run({ name: 'health (no session)', base: server.base, path: '/api/health' });
+  const me = await run({ name: 'signed in: GET /api/auth/me', base: server.base, path: '/api/auth/me', headers: sessionHeaders(control) });
   const boardFull = await run({ name: `board, full tenant (${fx.liveSteps} rows, gzip)`, base: server.base, path: '/api/board', headers: sessionHeaders(control, gz) }, 150);
-  const boardPipe = await run({ name: 'board, one pipeline', base: server.base, path: `/api/board?pipelineId=${fx.pipelineId}`, headers: sessionHeaders(control, gz) }, 150);
+  const boardPipe = await run({ name: 'board, one pipeline', base: server.base, path: `/api/board?pipelineId=${fx.pipelineId}`, headers: sessionHeaders(control, gz) }, 60);
   const listQuery = 'state=live,suspended,isolated,accepted&sort=validFrom&dir=desc&pageSize=25';
-  await run({ name: 'permits list, filtered + sorted, page 1', base: server.base, path: `/api/permits?${listQuery}&page=1`, headers: sessionHeaders(authoriser) }, 60);
+  const list = await run({ name: 'permits list, filtered + sorted, page 1', base: server.base, path: `/api/permits?${listQuery}&page=1`, headers: sessionHeaders(authoriser) }, 60);
   await run({ name: 'permits list, closed, page 2000', base: server.base, path: '/api/permits?state=closed&sort=validFrom&dir=desc&pageSize=25&page=2000', headers: sessionHeaders(authoriser) }, 60);
   const pages = cycle(fx.pagePermitIds);
-  await run({ name: 'permit page', base: server.base, path: '/api/permits/', headers: sessionHeaders(authoriser), next: () => ({ method: 'GET', path: `/api/permits/${pages()}` }) }, 40);
+  const page = await run({ name: 'permit page', base: server.base, path: '/api/permits/', headers: sessionHeaders(authoriser), next: () => ({ method: 'GET', path: `/api/permits/${pages()}` }) }, 60);
+  const ratio = (r: LoadResult, floorRun: LoadResult, target: number) =>
+    figures.push(judge(`${r.name} / SELECT 1 floor: throughput`, r.rps / floorRun.rps, 'ratio', { op: '>=', value: target }, `${r.rps.toFixed(0)} vs ${floorRun.rps.toFixed(0)} req/s; ${(r.rps / bareHttp.rps).toFixed(3)} of bare node:http`));
+  ratio(me, select1, 0.25);
+  ratio(page, select1, 0.12);
+  ratio(list, select1, 0.12);
+  figures.push(judge('health / SELECT 1 floor: throughput', health.rps / select1.rps, 'ratio', undefined, `${health.rps.toFixed(0)} req/s`));
 
   const drafts = take(fx.drafts, 'draft permits');
   const submit = await run({
     name: 'transition: send for approval', base: server.base, path: '/api/permits', headers: sessionHeaders(lead), amount: counts.submits,
     next: () => ({ method: 'POST', path: `/api/permits/${drafts()}/transitions`, body: JSON.stringify({ event: 'submit', version: 1 }) }),
   });
-  figures.push(judge('transition (send for approval): p95', submit.non2xx || submit.errors ? null : submit.p95, 'ms', undefined, `${submit.rps.toFixed(0)} req/s; no target set`));
+  figures.push(judge('transition (send for approval): p95', submit.non2xx || submit.errors ? null : submit.p95, 'ms', { op: '<', value: 150 }, `${submit.rps.toFixed(0)} req/s`));
   const requested = take(fx.requested, 'requested permits');
   const approve = await run({
     name: 'transition: approve (signed: password check)', base: server.base, path: '/api/permits', headers: sessionHeaders(authoriser), amount: counts.approvals,
@@ -265,7 +315,7 @@ async function main() {
       body: JSON.stringify({ event: 'approve', version: 2, signedName: users.authoriserName, password: 'holdpoint-demo' }),
     }),
   });
-  figures.push(judge('transition (approve, signed): p95', approve.non2xx || approve.errors ? null : approve.p95, 'ms', undefined, `${approve.rps.toFixed(0)} req/s; no target set`));
+  figures.push(judge('transition (approve, signed): p95', approve.non2xx || approve.errors ? null : approve.p95, 'ms', undefined, `${approve.rps.toFixed(0)} req/s; the Argon2 password check is most of it, so no target`));
 
   const gasProbe = fx.gasPermitIds.length && fx.instrumentId ? await call(server.base, tech, 'POST', `/api/permits/${fx.gasPermitIds[0]}/gas-tests`, {}) : { status: 404, body: null };
   const gasBuilt = gasProbe.status === 400;
@@ -299,7 +349,9 @@ async function main() {
   figures.push(judge(`SSE fan-out to ${sseClients} screens: p95 delay`, fan.connected === fan.clients && !fan.missed ? percentile(fan.delays, 95) : null, 'ms', { op: '<', value: 1_000 }, `${fan.connected} connected, ${fan.missed} missed`));
   figures.push(judge(`SSE fan-out: until all ${sseClients} have it (worst round)`, worst, 'ms', undefined));
   const rssPeak = rss.peak();
-  figures.push(judge('server RSS, peak during the run', rssPeak, 'MB', { op: '<', value: 300 }, `${rssIdle.toFixed(0)} MB at start, ${rss.last().toFixed(0)} MB at the end`));
+  const endEach = rss.each();
+  figures.push(judge('server RSS per process after the whole bench', Math.max(...endEach.map((p) => p.mb)), 'MB', { op: '<', value: 200 }, `each process now: ${endEach.map((p) => `${p.mb.toFixed(0)} MB`).join(', ')} (the first is the cluster's primary when there is one)`));
+  figures.push(judge('server RSS per process, peak during the run', rssPeak, 'MB', undefined, `${rssIdle.toFixed(0)} MB at start`));
 
   // ---- The browser -------------------------------------------------------------------------------
   console.log('\n[bench] browser: navigation to the first rows of the live board (Chromium)');
@@ -347,7 +399,38 @@ async function main() {
     `${JSON.stringify({ startedAt, machine: { cores: cpus().length, node: process.version, loadAtStart, loadAtEnd }, settings: { connections, seconds, sseClients, counts }, dataset: { ...dataset, liveIsolations: fx.liveSteps, busiestPipelineIsolations: fx.pipelineSteps }, loads, sse: fan, browser: paint, figures }, null, 2)}\n`,
   );
   console.log(`[bench] written to ${file.slice(root.length + 1)}`);
+  writeDocsTable({ startedAt, loadAtStart, loadAtEnd, loads, figures, floors: { bare: bareHttp, select1 } });
+  if (cpuProfDir) console.log(`[bench] CPU profiles in ${cpuProfDir.slice(root.length + 1)}: \`node --import tsx scripts/bench/profile-top.ts ${cpuProfDir.slice(root.length + 1)}\` lists the top five by self time`);
   process.exitCode = failed ? 1 : 0;
+}
+
+/** Replaces the run in docs/performance.md (between its bench markers) with this one. */
+function writeDocsTable(run: { startedAt: Date; loadAtStart: number[]; loadAtEnd: number[]; loads: LoadResult[]; figures: Figure[]; floors: { bare: LoadResult; select1: LoadResult } }) {
+  const docs = join(root, 'docs', 'performance.md');
+  const text = readFileSync(docs, 'utf8');
+  const begin = '<!-- bench:begin -->';
+  const end = '<!-- bench:end -->';
+  const a = text.indexOf(begin);
+  const b = text.indexOf(end);
+  if (a < 0 || b < a) return console.log('[bench] docs/performance.md has no bench markers; table not written');
+  const ms = (v: number) => (Number.isFinite(v) ? `${v < 10 ? v.toFixed(1) : Math.round(v).toLocaleString('en-GB')} ms` : '—');
+  const fmt = (f: Figure) => (f.value === null ? '—' : f.unit === 'ratio' ? f.value.toFixed(3) : f.unit === 'ms' ? ms(f.value) : `${Math.round(f.value)} ${f.unit}`);
+  const { bare, select1 } = run.floors;
+  const lines = [
+    begin,
+    `Run of ${run.startedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC: ${cpus().length} cores, Node ${process.version}, load average ${run.loadAtStart.map((l) => l.toFixed(1)).join(' / ')} at the start and ${run.loadAtEnd.map((l) => l.toFixed(1)).join(' / ')} at the end, ${connections} connections, server processes: ${processes}. Written by \`npm run bench\`.`,
+    '',
+    '| run | p50 | p95 | p99 | req/s | ÷ bare node:http | ÷ SELECT 1 |',
+    '|---|---|---|---|---|---|---|',
+    ...run.loads.map((r) => `| ${r.name}${r.non2xx || r.errors ? ` (${r.non2xx} non-2xx, ${r.errors} errors)` : ''} | ${ms(r.p50)} | ${ms(r.p95)} | ${ms(r.p99)} | ${Math.round(r.rps).toLocaleString('en-GB')} | ${(r.rps / bare.rps).toFixed(3)} | ${(r.rps / select1.rps).toFixed(3)} |`),
+    '',
+    '| figure | value | target | |',
+    '|---|---|---|---|',
+    ...run.figures.map((f) => `| ${f.name}${f.note ? ` (${f.note})` : ''} | ${fmt(f)} | ${f.target ? `${f.target.op} ${f.unit === 'ratio' ? f.target.value : `${f.target.value} ${f.unit}`}` : ''} | ${f.verdict} |`),
+    end,
+  ];
+  writeFileSync(docs, text.slice(0, a) + lines.join('\n') + text.slice(b + end.length));
+  console.log('[bench] docs/performance.md: the run table is updated');
 }
 
 main().catch((err) => {

@@ -196,6 +196,8 @@ export async function buildScaleDataset(url: string, options: { factor?: number;
     ['contractor_lead_user_id', 'uuid[]'], ['requester_user_id', 'uuid[]'], ['authoriser_user_id', 'uuid[]'], ['holder_user_id', 'uuid[]'], ['fire_watch_minutes', 'int[]'],
     ['gas_test_window_minutes', 'int[]'], ['gas_test_interval_minutes', 'int[]'], ['hot_work_ended_at', 'timestamptz[]'], ['control_room_ack_at', 'timestamptz[]'],
     ['control_room_ack_by', 'uuid[]'], ['rejection_reason', 'text[]'], ['created_at', 'timestamptz[]'], ['updated_at', 'timestamptz[]'],
+    // A suspended permit records who stopped the work (migration 0140): here the failing gas test, so Holdpoint.
+    ['suspended_by_kind', 'text[]'], ['suspended_at', 'timestamptz[]'], ['suspension_reason', 'text[]'],
   ]);
   const steps = table(b, 'isolation_steps', [
     ['id', 'uuid[]'], ['tenant_id', 'uuid[]'], ['permit_id', 'uuid[]'], ['seq', 'int[]'], ['point_id', 'uuid[]'], ['kind', 'text[]'], ['condition', 'text[]'], ['status', 'text[]'],
@@ -364,6 +366,7 @@ export async function buildScaleDataset(url: string, options: { factor?: number;
       iso(o.validFrom), iso(o.validTo), contractor.id, lead.id, lead.id, o.cancelledAt !== null ? null : authoriser.id, o.accepted !== null ? lead.id : null,
       settings.fireWatchMinutes, settings.gasTestWindowMinutes, settings.gasTestIntervalMinutes, hotWorkEnded !== null ? iso(hotWorkEnded) : null,
       o.closed !== null ? iso(o.closed - 30 * 60_000) : null, o.closed !== null ? control.id : null, null, iso(o.created), iso(lastAt),
+      suspendedAt !== null ? 'system' : null, suspendedAt !== null ? iso(suspendedAt) : null, suspendedAt !== null ? 'failing gas test' : null,
     ]);
     for (const row of stepRows) steps.add(row);
     for (const row of gasRows) gas.add(row);

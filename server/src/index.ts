@@ -1,21 +1,18 @@
 import { createServer } from 'node:http';
-import { loadConfig, ConfigError } from './config/env';
+import cluster from 'node:cluster';
+import { availableParallelism } from 'node:os';
+import { loadConfig, ConfigError, type Config } from './config/env';
 import { createLogger } from './lib/logger';
 import { createPgPool, createSequelize } from './db/sequelize';
 import { migrateUp } from './db/migrator';
-import { createTransport } from './lib/mailer';
 import { systemClock } from './lib/clock';
-import { createApp } from './app';
 // Type only: the mailbox and its SMTP catcher (a development package) load on demand below, never in production.
 import type { DevMailbox } from './modules/dev-mail/dev-mailbox';
-import { startWorkers } from './workers';
 import type { AppDeps } from './deps';
-import { closeChangeFeed } from './lib/change-feed';
 
-async function main() {
-  let config;
+function configOrExit() {
   try {
-    config = loadConfig();
+    return loadConfig();
   } catch (err) {
     if (err instanceof ConfigError) {
       console.error(err.message);
@@ -23,6 +20,54 @@ async function main() {
     }
     throw err;
   }
+}
+
+/**
+ * SERVER_PROCESSES=auto (or a number): a primary runs the migrations once, then one server process per
+ * core, which share the port (node:cluster) and nothing in memory that another would need (sessions,
+ * access and the board's answers are in PostgreSQL or checked against it). A process that dies is
+ * started again. Still per process: the sign-in and signature attempt counters, and the development
+ * mailbox (so with DEV_MAILBOX=on one process runs).
+ */
+async function primary(config: Config, processes: number) {
+  const logger = createLogger(config.LOG_LEVEL);
+  const owner = createSequelize(config.DATABASE_OWNER_URL ?? config.DATABASE_URL, logger);
+  await migrateUp(owner);
+  await owner.close();
+  let stopping = false;
+  const fork = (index: number) => {
+    // Only the first process runs the background loops (mail, scheduler): they are safe in several, but need not be.
+    const worker = cluster.fork({ HP_MIGRATED: '1', WORKERS: index === 0 ? config.WORKERS : 'off' });
+    worker.on('exit', (code, signal) => {
+      if (stopping) return;
+      logger.warn({ code, signal, index }, 'a server process ended; starting another');
+      setTimeout(() => fork(index), 500);
+    });
+  };
+  for (let i = 0; i < processes; i++) fork(i);
+  logger.info({ processes }, 'server processes started');
+  const stop = () => {
+    stopping = true;
+    for (const w of Object.values(cluster.workers ?? {})) w?.process.kill('SIGTERM');
+    const check = setInterval(() => {
+      if (!Object.keys(cluster.workers ?? {}).length) {
+        clearInterval(check);
+        process.exit(0);
+      }
+    }, 50);
+  };
+  process.on('SIGINT', stop);
+  process.on('SIGTERM', stop);
+}
+
+async function main(config: Config) {
+  // Loaded here, not at the top: a cluster's primary only migrates and needs none of it.
+  const [{ createApp }, { createTransport }, { startWorkers }, { closeChangeFeed }] = await Promise.all([
+    import('./app'),
+    import('./lib/mailer'),
+    import('./workers'),
+    import('./lib/change-feed'),
+  ]);
   const logger = createLogger(config.LOG_LEVEL);
   let devMailbox: DevMailbox | null = null;
   let smtpUrl = config.SMTP_URL;
@@ -35,7 +80,9 @@ async function main() {
     logger.warn({ path: '/dev/mail' }, 'development mailbox is on (DEV_MAILBOX=on): mail is kept in memory, not sent; signed-in people read their own mail at /dev/mail');
   }
   const sequelize = createSequelize(config.DATABASE_URL, logger);
-  if (config.DATABASE_OWNER_URL) {
+  if (process.env.HP_MIGRATED === '1') {
+    // The cluster's primary has migrated.
+  } else if (config.DATABASE_OWNER_URL) {
     const owner = createSequelize(config.DATABASE_OWNER_URL, logger);
     await migrateUp(owner);
     await owner.close();
@@ -74,4 +121,10 @@ async function main() {
   process.on('unhandledRejection', (err) => logger.error({ err }, 'unhandled rejection'));
 }
 
-void main();
+const config = configOrExit();
+const processes = config.SERVER_PROCESSES === 'auto' ? availableParallelism() : config.SERVER_PROCESSES;
+if (cluster.isPrimary && processes > 1 && config.DEV_MAILBOX === 'on' && config.NODE_ENV !== 'production') {
+  console.warn('[server] the development mailbox keeps mail in one process: running one server process');
+  void main(config);
+} else if (cluster.isPrimary && processes > 1) void primary(config, processes);
+else void main(config);

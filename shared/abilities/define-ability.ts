@@ -16,6 +16,7 @@ export const subjects = [
   'Tenant', 'Organisation', 'User', 'Membership', 'Qualification', 'Invitation',
   'Pipeline', 'IsolationPoint', 'Lock', 'Tag',
   'Permit', 'IsolationStep', 'GasTest', 'Instrument', 'Check', 'Attachment', 'AuditEvent', 'Board', 'Calculator',
+  'IsolationCertificate',
   'all',
 ] as const;
 export type SubjectName = (typeof subjects)[number];
@@ -41,6 +42,9 @@ type Can = AbilityBuilder<AppAbility>['can'];
 
 const readAllInTenant: SubjectName[] = ['Tenant', 'Organisation', 'Pipeline', 'IsolationPoint', 'Lock', 'Tag', 'Instrument', 'Calculator'];
 
+/** Tenant-wide, for records that belong to the site rather than to one contractor (isolation certificates). */
+const tenantOf = (actor: Actor) => ({ tenantId: actor.tenantId });
+
 /** What a permit-scoped read looks like: tenant-wide for operator staff, own organisation's permits for contractors. */
 function permitScope(actor: Actor, m: ActorMembership) {
   return m.organisationKind === 'contractor'
@@ -57,25 +61,32 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
     can(['read', 'create', 'update'], ['Pipeline', 'IsolationPoint', 'Lock', 'Tag', 'Instrument'], t);
     can('read', ['Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment', 'AuditEvent', 'Board'], t);
     can('verify_chain', 'AuditEvent', t);
+    can('read', 'IsolationCertificate', t);
   },
   authoriser(can, a) {
     const t = { tenantId: a.tenantId };
     can(['read', 'create', 'update'], ['Pipeline', 'IsolationPoint', 'Lock', 'Tag', 'Instrument'], t);
     can('read', ['User', 'Membership', 'Qualification', 'AuditEvent', 'Board', 'IsolationStep', 'GasTest', 'Check', 'Attachment'], t);
     can(['read', 'create', 'update', 'request'], 'Permit', t);
-    can(['approve', 'reject', 'cancel', 'revalidate', 'suspend', 'resume', 'return_to_service', 'close', 'acknowledge'], 'Permit', t);
+    // Not 'acknowledge': only the control room acknowledges a return to service, which is what lets the permit close.
+    can(['approve', 'reject', 'cancel', 'revalidate', 'suspend', 'resume', 'return_to_service', 'close'], 'Permit', t);
     can('create', 'Attachment', t);
     can('verify_chain', 'AuditEvent', t);
     // Records the exception that lets someone else take off a lock whose owner is not on site.
     can('approve', 'IsolationStep', t);
+    // Isolation certificates (HSE HSG253): marks one long-term, re-checks it, returns it.
+    can(['read', 'update', 'record', 'close'], 'IsolationCertificate', t);
   },
   contractor_lead(can, a, m) {
     const scope = permitScope(a, m);
-    can(['read', 'request', 'accept', 'cancel', 'start_work', 'hand_back', 'handover', 'resume', 'sign_on'], 'Permit', scope);
+    // A lead may stop their own crew's work (and restart it, when it was they who stopped it: shared/permit/suspension.ts).
+    can(['read', 'request', 'accept', 'cancel', 'start_work', 'suspend', 'hand_back', 'handover', 'resume', 'sign_on'], 'Permit', scope);
     can(['create', 'update'], 'Permit', scope);
     can('read', ['IsolationStep', 'GasTest', 'Check', 'Attachment'], scope);
     can('create', 'Attachment', scope);
     can('record', 'Check', scope);
+    // A lockout-qualified person of a contractor re-checks a long-term isolation (the server checks the qualification).
+    can(['read', 'record'], 'IsolationCertificate', tenantOf(a));
     const ownOrganisation = { tenantId: a.tenantId, organisationId: m.organisationId };
     can('read', 'Membership', ownOrganisation);
   },
@@ -86,6 +97,7 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
     can(['apply', 'verify', 'remove'], 'IsolationStep', scope);
     can('record', 'Check', scope);
     can('create', 'Attachment', scope);
+    can(['read', 'record'], 'IsolationCertificate', tenantOf(a));
   },
   gas_tester(can, a, m) {
     const scope = permitScope(a, m);
@@ -94,17 +106,20 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
     can('create', 'GasTest', scope);
     can('record', 'Check', scope);
     can('create', 'Attachment', scope);
+    can(['read', 'record'], 'IsolationCertificate', tenantOf(a));
   },
   control_room(can, a) {
     const t = { tenantId: a.tenantId };
     can('read', ['Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment', 'Board', 'User'], t);
     can('acknowledge', ['IsolationStep', 'Permit'], t);
     can('suspend', 'Permit', t);
+    can('read', 'IsolationCertificate', t);
   },
   auditor(can, a) {
     const t = { tenantId: a.tenantId };
     can('read', ['User', 'Membership', 'Qualification', 'Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment', 'AuditEvent', 'Board'], t);
     can('verify_chain', 'AuditEvent', t);
+    can('read', 'IsolationCertificate', t);
   },
 };
 

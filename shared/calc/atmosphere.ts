@@ -120,7 +120,8 @@ export const PUBLISHED_LIMITS: Readonly<AtmosphereLimits> = deepFreeze({
   hotWorkLel: {
     max: 10,
     unit: '%LEL',
-    source: `${OSHA_CONFINED_SPACE}: flammable gas in excess of 10 % of its LFL, applied to hot work as the outer bound`,
+    // Not a hot-work limit: 1910.146 defines a hazardous atmosphere for confined-space entry. It only caps how far a tenant may raise the hot-work limit.
+    source: `Holdpoint's outer bound for a raised hot-work limit, taken from ${OSHA_CONFINED_SPACE} (10 % of the LFL is hazardous for confined-space entry); no published hot-work limit`,
   },
   h2s: {
     max: 10,
@@ -142,8 +143,8 @@ export const DEFAULT_ATMOSPHERE_LIMITS: Readonly<AtmosphereLimits> = deepFreeze(
     max: 0,
     unit: '%LEL',
     source:
-      'Operator practice: 0 %LEL before invasive hot work, stopping at any flammable reading; no single published ' +
-      'number. May be set up to 10 %LEL (OSHA 29 CFR 1910.146).',
+      'Common practice at the point of hot work: 0 %LEL, stopping at any flammable reading; no published figure. ' +
+      'A site may raise it only with a stated reason.',
   },
 } satisfies AtmosphereLimits);
 

@@ -2,7 +2,7 @@
  * When the fire watch after hot work may end.
  *
  * OSHA 29 CFR 1910.252(a)(2)(iii)(B) requires the watch for at least 30 minutes after welding or
- * cutting ends; NFPA 51B (2019 edition) asks for at least 1 hour, and the permit authorising
+ * cutting ends; NFPA 51B (2019 edition) §5.6.1.1 requires at least 1 hour ("shall"), and the permit authorising
  * individual may add up to 3 hours of fire monitoring. The default follows NFPA 51B, the stricter.
  */
 import { addMinutes } from 'date-fns';
@@ -23,7 +23,7 @@ export function fireWatchEnd(hotWorkEndedAt: Date, minutes: number = FIRE_WATCH_
     min: FIRE_WATCH_MIN_MINUTES,
     reason:
       'OSHA 29 CFR 1910.252(a)(2)(iii)(B) requires at least 30 minutes after welding or cutting ends; ' +
-      'NFPA 51B (2019) recommends 60.',
+      'NFPA 51B (2019 edition) requires 60.',
   });
   if (minutes > FIRE_WATCH_MAX_MINUTES) {
     throw new CalcInputError(

@@ -5,3 +5,4 @@ export * from './line-fill';
 export * from './mud-plug';
 export * from './atmosphere';
 export * from './fire-watch';
+export * from './plug-units';

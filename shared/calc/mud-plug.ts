@@ -4,9 +4,13 @@
  *
  * Every rule here is common practice, no published source:
  * - paste is bentonite in potable water, 50/50 up to 60/40 water to bentonite by weight;
- * - paste needed ≈ D³ / 16 lb, D the pipe diameter in inches, ± 10 % acceptable;
+ * - paste needed ≈ D³ / 16 lb, D the nominal pipe size in inches, ± 10 % acceptable; the rule
+ *   was tried on 6, 10 and 16 in pipe, so outside 6–16 in the screens show a caution;
  * - plug length = 1.5 × D;
- * - paste is rolled into balls about 3 in across before it is packed in.
+ * - paste is rolled into balls about 3 in across before it is packed in; in a bore under about
+ *   4 in such balls do not fit, and smaller balls or paste packed by hand are used instead;
+ * - the bentonite is weighed, never measured by volume: the powder's bulk density varies by
+ *   about 20 % with how it was packed and handled.
  * Water is taken at 8.33 lb per US gallon, the figure used in mud-weight formulas.
  * The tests cross-check D³/16 against the plug's volume times the density of the paste.
  */
@@ -25,6 +29,34 @@ export const WATER_LB_PER_US_GAL = 8.33;
 export const PLUG_LENGTH_PER_DIAMETER = 1.5;
 export const MUD_MASS_TOLERANCE = 0.1;
 export const MUD_BALL_DIAMETER_IN = 3;
+/** Below about this bore a 3-in ball does not go in; no ball count is offered. */
+export const MUD_BALL_MIN_BORE_IN = 4;
+/** Nominal sizes the D³/16 rule was tried on (common practice, no published source). */
+export const D3_16_TESTED_SIZES_IN = [6, 10, 16] as const;
+export const D3_16_TESTED_MIN_IN = 6;
+export const D3_16_TESTED_MAX_IN = 16;
+
+/** Which diameter D³/16 takes, said wherever the figure is shown. */
+export const D3_16_DIAMETER_NOTE =
+  'D³/16 takes D as the nominal pipe size in inches (the size the pipe is called). The paste fills the ' +
+  'bore, so the paste for the bore is shown beside it; on heavy-wall or small pipe the two differ.';
+
+export const SMALL_BORE_PLUG_ADVICE =
+  'The bore is under about 4 in, so 3-in balls will not go in. Roll smaller balls that go in easily, or ' +
+  'pack the paste in by hand a little at a time, tamping it down (common practice).';
+
+export const BENTONITE_WEIGH_NOTE =
+  'Weigh the bentonite; do not measure it by the bucket. The powder settles and fluffs up, so the same ' +
+  'bucket can hold about 20 % more or less from one bag to the next.';
+
+/**
+ * Largest weight of bentonite or of water an as-built record accepts, lb: twice the top of the
+ * ± 10 % band for the largest pipe any calculation accepts, so an overfilled plug in the biggest
+ * line can still be recorded (and warned about) while a slip of several digits is refused.
+ */
+export const AS_BUILT_MAX_LB = 2 * (MAX_PIPE_DIAMETER_IN ** 3 / 16) * (1 + MUD_MASS_TOLERANCE);
+/** Longest plug an as-built record accepts, in: well past 1.5 × the largest diameter. */
+export const AS_BUILT_MAX_LENGTH_IN = 1000;
 
 export interface MudPlugInput {
   /** Pipe diameter, inches: nominal or measured bore; the screen says which was used. */
@@ -40,7 +72,8 @@ export interface MudPlug {
   waterGal: number;
   plugLengthIn: number;
   mudLbRange: [min: number, max: number];
-  mudBalls: number;
+  /** Balls about 3 in across; null when D is under MUD_BALL_MIN_BORE_IN (see SMALL_BORE_PLUG_ADVICE). */
+  mudBalls: number | null;
 }
 
 export type PlugWarningCode =
@@ -99,7 +132,7 @@ export function mudPlug({ diameterIn, waterFraction = DEFAULT_WATER_FRACTION }: 
   const ballVolumeIn3 = (4 / 3) * Math.PI * (MUD_BALL_DIAMETER_IN / 2) ** 3;
   // The ratio reduces to D³/12, so an 18-in pipe needs exactly 486 balls; without the allowance
   // the float result 486.00000000000006 would round up to 487.
-  const mudBalls = Math.ceil(plugVolumeIn3(d) / ballVolumeIn3 - EPSILON);
+  const mudBalls = d < MUD_BALL_MIN_BORE_IN ? null : Math.ceil(plugVolumeIn3(d) / ballVolumeIn3 - EPSILON);
   return {
     mudLb,
     bentoniteLb: mudLb * (1 - water),
@@ -109,6 +142,21 @@ export function mudPlug({ diameterIn, waterFraction = DEFAULT_WATER_FRACTION }: 
     mudLbRange: [mudLb * (1 - MUD_MASS_TOLERANCE), mudLb * (1 + MUD_MASS_TOLERANCE)],
     mudBalls,
   };
+}
+
+/** True when a nominal size lies outside the 6–16 in the D³/16 rule was tried on. */
+export function outsideTestedSizes(nominalIn: number): boolean {
+  return nominalIn < D3_16_TESTED_MIN_IN - EPSILON || nominalIn > D3_16_TESTED_MAX_IN + EPSILON;
+}
+
+/** The caution shown beside a D³/16 figure for a pipe outside the sizes the rule was tried on. */
+export function testedSizesCaution(nominalIn: number): string | null {
+  if (!outsideTestedSizes(nominalIn)) return null;
+  return (
+    `The D³/16 rule was tried on 6, 10 and 16 in pipe (common practice, no published source); ` +
+    `${round(nominalIn, 3)} in is outside that. Treat the paste figure as a starting point, ` +
+    `follow the operator's procedure and let the gas readings decide.`
+  );
 }
 
 /**

@@ -2,7 +2,7 @@
  * Looks up a steel pipe's outside diameter, wall and inside diameter from the ASME B36.10M
  * table in ./pipe-table. ID = OD − 2 × wall.
  */
-import { PIPE_SCHEDULES, PIPE_TABLE, type PipeSchedule, type PipeTableRow } from './pipe-table';
+import { B36_SCHEDULES, PIPE_TABLE, type B36Schedule, type PipeTableRow } from './pipe-table';
 import { CalcInputError, requireNumber } from './units';
 
 export interface PipeDimensions {
@@ -14,7 +14,7 @@ export interface PipeDimensions {
 export interface PipeSizeOption extends PipeDimensions {
   nps: number;
   label: string;
-  schedule: PipeSchedule;
+  schedule: B36Schedule;
 }
 
 /**
@@ -26,23 +26,24 @@ export const MIN_PIPE_DIAMETER_IN = 0.1;
 export const MAX_PIPE_DIAMETER_IN = 60;
 
 /** Schedules may arrive as numbers from forms or older records; 40 and "40" mean the same wall. */
-export type PipeScheduleInput = PipeSchedule | 40 | 80;
+export type PipeScheduleInput = B36Schedule | number;
 
 // Sizes are binary fractions (0.5, 0.75, 1.25 …) and so compare exactly, but a size typed as
 // 1.2500000001 by a unit conversion should still find its row.
 const NPS_TOLERANCE = 1e-6;
 
-function scheduleLabel(schedule: PipeSchedule): string {
-  return schedule === 'STD' || schedule === 'XS' ? schedule : `Sch ${schedule}`;
+/** "STD", "XS", "XXS" as they are; numbered schedules as "Sch 40". */
+export function scheduleLabel(schedule: B36Schedule): string {
+  return /^\d+$/.test(schedule) ? `Sch ${schedule}` : schedule;
 }
 
-function toSchedule(schedule: unknown): PipeSchedule {
+function toSchedule(schedule: unknown): B36Schedule {
   const text = typeof schedule === 'number' ? String(schedule) : schedule;
-  const match = PIPE_SCHEDULES.find((s) => s === text);
+  const match = B36_SCHEDULES.find((s) => s === text);
   if (!match) {
     throw new CalcInputError(
       'schedule',
-      `Pipe schedule "${String(schedule)}" is not one Holdpoint knows; choose STD, 40, XS or 80.`,
+      `Pipe schedule "${String(schedule)}" is not one ASME B36.10M lists; choose ${B36_SCHEDULES.map(scheduleLabel).join(', ')}.`,
     );
   }
   return match;
@@ -56,7 +57,7 @@ function dimensionsOf(row: PipeTableRow, wallIn: number): PipeDimensions {
   return { odIn: row.odIn, wallIn, idIn: row.odIn - 2 * wallIn };
 }
 
-function sizesWithWall(schedule: PipeSchedule): readonly number[] {
+function sizesWithWall(schedule: B36Schedule): readonly number[] {
   return Object.freeze(PIPE_TABLE.filter((row) => row.wallIn[schedule] !== undefined).map((row) => row.nps));
 }
 
@@ -73,7 +74,7 @@ export function pipeDimensions(nps: number, schedule: PipeScheduleInput): PipeDi
   }
   const wallIn = row.wallIn[sch];
   if (wallIn === undefined) {
-    const offered = PIPE_SCHEDULES.filter((s) => row.wallIn[s] !== undefined).map(scheduleLabel);
+    const offered = B36_SCHEDULES.filter((s) => row.wallIn[s] !== undefined).map(scheduleLabel);
     throw new CalcInputError(
       'schedule',
       `${scheduleLabel(sch)} is not listed for NPS ${row.label} in ASME B36.10M; ` +
@@ -84,12 +85,9 @@ export function pipeDimensions(nps: number, schedule: PipeScheduleInput): PipeDi
 }
 
 /** Sizes that have a wall in each schedule, smallest first, for pickers. */
-export const PIPE_SIZES_BY_SCHEDULE: Readonly<Record<PipeSchedule, readonly number[]>> = {
-  STD: sizesWithWall('STD'),
-  '40': sizesWithWall('40'),
-  XS: sizesWithWall('XS'),
-  '80': sizesWithWall('80'),
-};
+export const PIPE_SIZES_BY_SCHEDULE: Readonly<Record<B36Schedule, readonly number[]>> = Object.freeze(
+  Object.fromEntries(B36_SCHEDULES.map((s) => [s, sizesWithWall(s)])) as Record<B36Schedule, readonly number[]>,
+);
 
 /** Every size listed in a schedule with its label and dimensions, smallest first, for pickers. */
 export function pipeSizeOptions(schedule: PipeScheduleInput): PipeSizeOption[] {

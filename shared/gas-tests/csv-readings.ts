@@ -5,7 +5,7 @@
  * and for the import, so both say the same.
  */
 import type { CsvParseResult } from '../csv/csv';
-import { CalcInputError, assessAtmosphere, type AssessOptions, type AtmosphereAssessment, type AtmosphereLimits } from '../calc';
+import { CalcInputError, assessAtmosphere, type AssessOptions, type AtmosphereAssessment, type AtmosphereLimits, type AtmosphereReadings } from '../calc';
 import { wallTimeToInstant } from '../time/zone';
 
 export const readingColumns = ['timestamp', 'o2', 'lel', 'h2s', 'co'] as const;
@@ -101,6 +101,8 @@ export interface ReadRowsOptions {
   now: Date;
   limits: AtmosphereLimits;
   assess: AssessOptions;
+  /** Judges a row instead of `assess` against `limits` (a log taken at a vent outlet has its own limit). */
+  judge?: (readings: AtmosphereReadings) => AtmosphereAssessment;
   /** Reasons the instrument may not be used at that time (empty when it may). */
   instrumentReasons?: (at: Date) => string[];
 }
@@ -148,7 +150,7 @@ export function readRows(csv: CsvParseResult, mapping: ColumnMapping, opts: Read
     let assessment: AtmosphereAssessment | null = null;
     if (!reasons.length) {
       try {
-        assessment = assessAtmosphere(readings, opts.limits, opts.assess);
+        assessment = opts.judge ? opts.judge(readings) : assessAtmosphere(readings, opts.limits, opts.assess);
       } catch (err) {
         if (!(err instanceof CalcInputError)) throw err;
         reasons.push(err.message);

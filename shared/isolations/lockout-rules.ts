@@ -14,9 +14,17 @@ import { isInPlace } from './step-rules';
 /** A lockout or tagout device: a personal lock or a danger tag on the step. */
 export const carriesDevice = (step: { lockId: string | null; tagId: string | null }) => step.lockId !== null || step.tagId !== null;
 
-/** Someone other than the person who put the lock or tag on may take it off only under the exception procedure. */
-export const removalNeedsException = (step: { lockId: string | null; tagId: string | null; appliedBy: string | null }, userId: string) =>
-  carriesDevice(step) && step.appliedBy !== userId;
+/**
+ * Someone other than the person who holds the lock or tag may take it off only under the exception
+ * procedure. The holder is whoever put it on, or whoever it was handed over to at a shift change
+ * (OSHA 29 CFR 1910.147(f)(4)): from then on the oncoming person's own lock is on the point.
+ */
+export const removalNeedsException = (step: { lockId: string | null; tagId: string | null; heldBy: string | null }, userId: string) =>
+  carriesDevice(step) && step.heldBy !== userId;
+
+/** Only the person holding a lock or tag hands it over at a shift change; a step without one has nothing to hand over. */
+export const mayHandOver = (step: { lockId: string | null; tagId: string | null; heldBy: string | null; status: StepStatus }, userId: string) =>
+  carriesDevice(step) && isInPlace(step.status) && step.heldBy === userId;
 
 interface OrderedStep {
   id: string;

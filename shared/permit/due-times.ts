@@ -5,16 +5,17 @@
  * - Gas test: repeat tests during live work, due `intervalMinutes` after the last passing test
  *   (`nextGasTestDue`, also behind the permit page, the permits list and the board). A live permit
  *   with no passing test at all is due since work started (or now) and counts as overdue.
- * - Vent and plug checks: during live work while the permit holds a vent open / a plug in place,
- *   due `intervalMinutes` after the last check of that kind, or after work last started when there
- *   is none yet. Common practice, no published source for the interval (tenant settings).
+ * - Vent and plug checks: whenever the isolations are signed in place (isolated, live, suspended)
+ *   while the permit holds a vent open / a plug in place, due `intervalMinutes` after the last check
+ *   of that kind, or after work last started (else the isolations were signed) when there is none
+ *   yet. Common practice, no published source for the interval (tenant settings).
  * - Fire watch: after hot work stops, a closing check is due when the watch may end
  *   (fireWatchEnd: NFPA 51B (2019) 60 min default, never below OSHA 29 CFR 1910.252(a)(2)(iii)(B)
  *   30 min). Once a fire-watch check is recorded at or after that time nothing more is due.
  */
 import { addMinutes, differenceInMinutes } from 'date-fns';
 import { FIRE_WATCH_MAX_MINUTES, FIRE_WATCH_MIN_MINUTES, fireWatchEnd } from '../calc/fire-watch';
-import { liveStates, workUnderWayStates, type PermitState, type WorkKind } from './states';
+import { isolationCheckStates, liveStates, workUnderWayStates, type PermitState, type WorkKind } from './states';
 
 export const timedCheckKinds = ['gas_test', 'vent', 'plug', 'fire_watch'] as const;
 export type TimedCheckKind = (typeof timedCheckKinds)[number];
@@ -31,6 +32,8 @@ export interface DueFacts {
   kinds: readonly WorkKind[];
   /** When work last started or resumed; null if the permit has never been live. */
   liveSince: Date | null;
+  /** When the isolations were last signed in place; null if never (vent and plug checks count from it before work starts). */
+  isolatedSince?: Date | null;
   gas: { lastPassAt: Date | null; intervalMinutes: number };
   vent: { lastAt: Date | null; intervalMinutes: number; open: number };
   plug: { lastAt: Date | null; intervalMinutes: number; inPlace: number };
@@ -66,8 +69,8 @@ export function nextGasTestDue(state: PermitState, lastPassAt: Date | null, inte
 
 function periodic(kind: 'vent' | 'plug', f: DueFacts, now: Date): DueTime {
   const facts = kind === 'vent' ? { ...f.vent, count: f.vent.open } : { ...f.plug, count: f.plug.inPlace };
-  if (!liveStates.includes(f.state) || facts.count === 0) return none(kind);
-  const base = facts.lastAt ?? f.liveSince ?? now;
+  if (!isolationCheckStates.includes(f.state) || facts.count === 0) return none(kind);
+  const base = facts.lastAt ?? f.liveSince ?? f.isolatedSince ?? now;
   return due(kind, addMinutes(base, facts.intervalMinutes), now);
 }
 

@@ -1,6 +1,9 @@
 import type { Action } from '../abilities/define-ability';
 import { readinessGaps, type IsolationReadiness } from '../isolations/readiness';
 import { permitStates, qualificationForKind, type PermitState, type WorkKind } from './states';
+import { fireWatchCloseGap, stopWorkGaps, type StopWorkFacts } from './stop-work';
+import { resumeNeedsAuthoriser, suspendedByLabels, type SuspendedByKind } from './suspension';
+import { formatInZone } from '../time/zone';
 
 export const permitEvents = [
   'submit',
@@ -124,6 +127,37 @@ export interface PermitFacts {
   hasExpiredFlag: boolean;
   /** Group lockout per person: how many personal locks are on the permit's lockbox; absent when the site locks per permit. */
   crewOnLockbox?: number | null;
+  /**
+   * The isolation certificate the permit works under (HSE HSG253, HSG250): null when none covers it.
+   * The server always gathers it; absent only where a caller of the pure rules has nothing to say about it.
+   */
+  certificate?: PermitCertificateFacts | null;
+  /** Failed vent and plug checks, plugs left overnight, gas verdicts per place and the fire watch's closing check (shared/permit/stop-work.ts). */
+  stopWork?: StopWorkFacts;
+  /** Everyone who wrote or changed the permit's content or isolation plan, the requester included (four eyes). */
+  editorUserIds?: string[];
+  /** The lead who holds the permit now (after a shift handover, the incoming lead). */
+  holderUserId?: string | null;
+  /** Who stopped the work on a suspended permit (shared/permit/suspension.ts). */
+  suspendedByKind?: SuspendedByKind | null;
+  /** The site's zone (IANA), so a time in a reason reads as the site's clock with the zone named. */
+  timeZone?: string;
+}
+
+export interface PermitCertificateFacts {
+  number: string;
+  state: 'live' | 'returned';
+  /** A failed re-check not yet cleared by a passing one. */
+  problem: string | null;
+}
+
+/** HSE HSG253, HSG250: work starts and resumes only under a live isolation certificate whose last re-check passed. */
+export function certificateGaps(certificate: PermitCertificateFacts | null | undefined): string[] {
+  if (certificate === undefined) return [];
+  if (certificate === null) return ['No isolation certificate covers this permit: work starts only under a live certificate, which the authoriser’s signature on the isolations issues.'];
+  if (certificate.state !== 'live') return [`Isolation certificate ${certificate.number} has been returned: work starts only under a live certificate.`];
+  if (certificate.problem) return [`Isolation certificate ${certificate.number} failed its last re-check (${certificate.problem}). Put it right and record a passing re-check first.`];
+  return [];
 }
 
 export interface ActorFacts {
@@ -159,6 +193,9 @@ export function decide(event: PermitEvent, facts: PermitFacts, actor: ActorFacts
       break;
     case 'approve':
       if (actor.userId === facts.requesterUserId) reasons.push('You requested this permit, so someone else must approve it (two-person rule).');
+      // HSE HSG250: the issuer checks work someone else planned; an authoriser who changed the permit or its plan is no longer that someone else.
+      else if (facts.editorUserIds?.includes(actor.userId))
+        reasons.push('You wrote or changed this permit or its isolation plan, so another authoriser must approve it (four-eyes rule).');
       if (facts.validTo < now) reasons.push('The validity window has already ended; change it before approving.');
       if (facts.conflicts.length) reasons.push(`The plan would operate points another permit holds in place: ${facts.conflicts.join('; ')}.`);
       break;
@@ -176,9 +213,17 @@ export function decide(event: PermitEvent, facts: PermitFacts, actor: ActorFacts
       break;
     case 'start_work':
     case 'resume':
-      // OSHA 29 CFR 1910.147(f)(3)(ii)(D): each person working puts a personal lock on the group lockbox when they begin.
-      if (event === 'start_work' && facts.crewOnLockbox === 0)
+      // Common practice (HSE HSG250): work stopped by the control room, an authoriser or Holdpoint itself restarts only on an authoriser's re-validation, with a reason.
+      if (event === 'resume' && resumeNeedsAuthoriser(facts.suspendedByKind)) {
+        if (!actor.roles.includes('authoriser'))
+          reasons.push(`This permit was suspended by ${suspendedByLabels[facts.suspendedByKind ?? 'system']}: only an authoriser can re-validate it and let work resume.`);
+        else if (!(input.reason && input.reason.trim().length >= 3)) reasons.push('Give a reason in words: what was checked before work resumes.');
+      }
+      // OSHA 29 CFR 1910.147(f)(3)(ii)(D): each person working puts a personal lock on the group lockbox when they begin;
+      // (f)(4): the last lock may come off a suspended permit's box, so resuming needs a lock on it again.
+      if (facts.crewOnLockbox === 0)
         reasons.push('Nobody has signed on to the lockbox: each person working puts a personal lock on it first.');
+      reasons.push(...certificateGaps(facts.certificate));
       reasons.push(...isolationGaps(facts));
       if (!windowOpen) reasons.push(now < facts.validFrom ? 'The permit is not valid yet.' : 'The validity window has ended; the authoriser must re-validate it.');
       if (!facts.gas.lastPassAt) reasons.push('Record a passing gas test first.');
@@ -196,18 +241,36 @@ export function decide(event: PermitEvent, facts: PermitFacts, actor: ActorFacts
         if (open.length) reasons.push(`Confirm the required checklist items: ${open.map((c) => c.label).join('; ')}.`);
       }
       if (facts.isolation.plugWarningsUnacknowledged) reasons.push(`${facts.isolation.plugWarningsUnacknowledged} plug record(s) have warnings the authoriser must acknowledge.`);
+      // Stop-work conditions (shared/permit/stop-work.ts); the gas reasons above already cover "no pass at all", "too old" and "the latest failed".
+      if (facts.stopWork) {
+        const { lastPassAt, lastFailAt, windowMinutes } = facts.gas;
+        const tooOld = !lastPassAt || now.getTime() - lastPassAt.getTime() > windowMinutes * 60_000;
+        const latestFailed = Boolean(lastPassAt && lastFailAt && lastFailAt >= lastPassAt);
+        reasons.push(...stopWorkGaps(facts.stopWork, windowMinutes, now, { skipGasFail: !lastPassAt || latestFailed, skipGasAge: tooOld }));
+      }
       break;
     case 'hand_back':
+      // HSE HSG250: the person who holds the permit now hands it back; after a shift handover that is the incoming lead.
+      if ((facts.holderUserId ?? facts.contractorLeadUserId) && (facts.holderUserId ?? facts.contractorLeadUserId) !== actor.userId)
+        reasons.push('Only the lead who holds this permit now can hand it back. After a shift handover, that is the incoming lead.');
       // The fire watch runs from when hot work stopped; without that record it has not started.
       if (facts.kinds.includes('hot_work') && !facts.fireWatchEndsAt) reasons.push('Record that hot work has stopped; the fire watch must run its full time before hand-back.');
       else if (facts.fireWatchEndsAt && facts.fireWatchEndsAt > now)
-        reasons.push(`The fire watch runs until ${facts.fireWatchEndsAt.toISOString()} (${minutes(facts.fireWatchEndsAt.getTime() - now.getTime())} minutes more).`);
+        reasons.push(`The fire watch runs until ${formatInZone(facts.fireWatchEndsAt, facts.timeZone ?? 'UTC')} (${minutes(facts.fireWatchEndsAt.getTime() - now.getTime())} minutes more).`);
+      // NFPA 51B (2019 edition): the watch ends with the fire watcher's check that the area is clear and nothing smoulders.
+      if (facts.stopWork) {
+        const closing = fireWatchCloseGap(facts.fireWatchEndsAt, facts.stopWork.fireWatchClearAt, now, facts.stopWork.timeZone);
+        if (closing) reasons.push(closing);
+      }
       break;
     case 'return_to_service':
       if (facts.isolation.stillApplied) reasons.push(`${facts.isolation.stillApplied} isolation(s) of this permit are still applied; remove them first.`);
       if (facts.isolation.ventsOpen) reasons.push(`${facts.isolation.ventsOpen} vent(s) are still open.`);
       if (facts.isolation.plugsInPlace) reasons.push(`${facts.isolation.plugsInPlace} plug(s) are still in place or not recorded as removed or displaced.`);
       if (!facts.walkdownComplete) reasons.push('Complete the walk-down checklist.');
+      break;
+    case 'acknowledge_return':
+      if (!actor.roles.includes('control_room')) reasons.push('Only the control room acknowledges that the line is back in service.');
       break;
     case 'close':
       if (!facts.controlRoomAcknowledged) reasons.push('The control room has not acknowledged the return to service yet.');

@@ -94,8 +94,10 @@ export const editableStates: readonly PermitState[] = ['draft'];
 export const workOpenStates: readonly PermitState[] = ['accepted', 'isolated', 'live', 'suspended'];
 /** Work has started and not been handed back: hot work can stop, the fire watch runs, shifts hand over, a gas test is a repeat test. */
 export const workUnderWayStates: readonly PermitState[] = ['live', 'suspended'];
-/** Work is going on: repeat gas tests and vent and plug checks fall due, and a failing test suspends the permit. */
+/** Work is going on: repeat gas tests fall due, and a failing test or check suspends the permit. */
 export const liveStates: readonly PermitState[] = ['live'];
+/** The isolations are signed in place and not handed back: vent and plug checks fall due whether the work is going on or stopped. */
+export const isolationCheckStates: readonly PermitState[] = ['isolated', 'live', 'suspended'];
 /** Before the isolations are signed in place (an expired permit may go back to one of these when re-validated). */
 export const beforeIsolatedStates: readonly PermitState[] = ['draft', 'requested', 'approved', 'accepted', 'expired'];
 /** Sent for approval and not yet handed back: another permit's work on the same stretch of line is flagged to both authorisers. */

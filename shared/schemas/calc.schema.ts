@@ -6,7 +6,7 @@ import {
   MIN_PIPE_DIAMETER_IN,
   MM_PER_IN,
   M_PER_FT,
-  PIPE_SCHEDULES,
+  B36_SCHEDULES,
   WATER_FRACTION_MAX,
   WATER_FRACTION_MIN,
 } from '../calc';
@@ -85,7 +85,7 @@ export type MudPlugQuery = z.infer<typeof mudPlugQuerySchema>;
 export const scheduleField = (name: string) =>
   z.preprocess(
     (v) => (typeof v === 'string' ? v.trim().toUpperCase().replace(/^SCH\s*/, '') : typeof v === 'number' ? String(v) : v),
-    z.enum(PIPE_SCHEDULES, { error: () => `${name} must be one of STD, 40, XS or 80.` }),
+    z.enum(B36_SCHEDULES, { error: () => `${name} must be one of ${B36_SCHEDULES.join(', ')}.` }),
   );
 
 export const pipeQuerySchema = z.strictObject({
@@ -163,7 +163,7 @@ export const mudPlugFormSchema = z
     pipelineId: z.string(),
     nominalIn: z.string(),
     nps: z.string(),
-    schedule: z.enum(PIPE_SCHEDULES),
+    schedule: z.enum(B36_SCHEDULES),
     measured: z.string(),
     measuredUnit: z.enum(['in', 'mm']),
     ratio: z.enum([...WATER_FRACTION_CHOICES, 'custom']),

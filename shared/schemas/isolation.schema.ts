@@ -1,5 +1,8 @@
 import { z } from 'zod';
 import { gaugeUnits } from '../calc/pressure';
+import { AS_BUILT_MAX_LB, AS_BUILT_MAX_LENGTH_IN } from '../calc/mud-plug';
+import { MAX_PIPE_DIAMETER_IN, MIN_PIPE_DIAMETER_IN } from '../calc/pipe-dimensions';
+import { KG_PER_LB } from '../calc/units';
 import { boardPermitStates } from '../permit/states';
 import { isoDateTimeField, requiredText, textField, uuidSchema } from './common.schema';
 
@@ -46,7 +49,12 @@ export const planStepSchema = z
     tempLabel: textField(60, 'Label').optional(),
     tempPosition: position.optional(),
     kind: z.enum(stepKinds, { message: 'Unknown kind of step.' }),
-    plugDiameterIn: z.number().positive().max(60).optional(),
+    // The same bounds as every calculation, so a planned plug can always be sized and its as-built checked.
+    plugDiameterIn: z
+      .number({ message: 'Give the pipe diameter the plug fills, in inches.' })
+      .min(MIN_PIPE_DIAMETER_IN, `The plug diameter must be at least ${MIN_PIPE_DIAMETER_IN} in.`)
+      .max(MAX_PIPE_DIAMETER_IN, `The plug diameter must be at most ${MAX_PIPE_DIAMETER_IN} in; check it is in inches.`)
+      .optional(),
   })
   .refine((s) => s.pointId || (s.tempLabel && s.tempPosition !== undefined), { message: 'Pick a point from the register, or give a label and position for a temporary one.', path: ['pointId'] });
 export type PlanStepInput = z.infer<typeof planStepSchema>;
@@ -74,10 +82,23 @@ export const proposePlanQuerySchema = z
 
 const isoDateTime = isoDateTimeField();
 
+// The cap follows the largest pipe the calculator accepts (AS_BUILT_MAX_LB), so any plug it sizes can be recorded.
+const asBuiltWeight = (required: string, what: string) =>
+  z
+    .number({ message: required })
+    .positive(`The ${what} must be more than 0.`)
+    .max(
+      AS_BUILT_MAX_LB,
+      `The ${what} must be at most ${AS_BUILT_MAX_LB.toLocaleString('en-US')} lb (${Math.round(AS_BUILT_MAX_LB * KG_PER_LB).toLocaleString('en-US')} kg), more than any plug needs; check the figure and the unit.`,
+    );
+
 export const asBuiltPlugSchema = z.strictObject({
-  bentoniteLb: z.number({ message: 'Enter the bentonite weighed, in pounds.' }).positive().max(5000),
-  waterLb: z.number({ message: 'Enter the water measured, in pounds.' }).positive().max(5000),
-  lengthIn: z.number({ message: 'Enter the plug length built, in inches.' }).positive().max(1000),
+  bentoniteLb: asBuiltWeight('Enter the bentonite weighed.', 'bentonite'),
+  waterLb: asBuiltWeight('Enter the water used.', 'water'),
+  lengthIn: z
+    .number({ message: 'Enter the plug length built, in inches.' })
+    .positive('The plug length must be more than 0.')
+    .max(AS_BUILT_MAX_LENGTH_IN, `The plug length must be at most ${AS_BUILT_MAX_LENGTH_IN} in; check the figure and the unit.`),
   builtAt: isoDateTime.optional(),
 });
 export type AsBuiltPlug = z.infer<typeof asBuiltPlugSchema>;
@@ -135,7 +156,7 @@ export type VerifyStepInput = z.infer<typeof verifyStepInputSchema>;
 
 export const removeStepInputSchema = z.strictObject({
   note: textField(1000, 'Note').optional(),
-  plugOutcome: z.enum(['removed', 'displaced_by_product']).optional(),
+  plugOutcome: z.enum(['removed', 'displaced_by_product'], { message: 'Say whether the plug was removed or left to be displaced by product.' }).optional(),
   outOfOrderReason: textField(1000, 'Reason').optional(),
   /** The remover's signature, needed when they take off someone else's lock under a recorded exception. */
   password: z.string().max(256).optional(),

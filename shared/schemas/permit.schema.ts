@@ -21,7 +21,7 @@ const permitFields = {
   validTo: isoDateTime,
   contractorOrganisationId: uuidSchema,
   contractorLeadUserId: uuidSchema.optional().nullable(),
-  fireWatchMinutes: z.coerce.number().int().min(30, 'Fire watch cannot be shorter than 30 minutes (OSHA 29 CFR 1910.252).').max(480).default(60),
+  fireWatchMinutes: z.coerce.number().int().min(30, 'A fire watch is at least 30 minutes (OSHA 29 CFR 1910.252(a)(2)(iii)(B)); NFPA 51B (2019 edition) requires 60 unless the site chose the OSHA half hour.').max(480).default(60),
   fireWatchPerson: textField(120, 'Fire watch').optional(),
   gasTestWindowMinutes: z.coerce.number().int().min(5).max(240).optional(),
   gasTestIntervalMinutes: z.coerce.number().int().min(5).max(480).optional(),

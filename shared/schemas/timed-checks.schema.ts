@@ -13,8 +13,8 @@ export const checkKinds = ['vent', 'plug', 'fire_watch'] as const;
 export type CheckKind = (typeof checkKinds)[number];
 export const checkKindLabels: Record<CheckKind, string> = { vent: 'Vent check', plug: 'Plug check', fire_watch: 'Fire watch' };
 
-export const plugFaces = ['intact', 'cracked', 'shrunk'] as const;
-export const plugFaceLabels: Record<(typeof plugFaces)[number], string> = { intact: 'Face intact', cracked: 'Cracked', shrunk: 'Shrunk from the pipe wall' };
+export const plugFaces = ['intact', 'cracked', 'shrunk', 'moved'] as const;
+export const plugFaceLabels: Record<(typeof plugFaces)[number], string> = { intact: 'Face intact', cracked: 'Cracked', shrunk: 'Shrunk from the pipe wall', moved: 'Moved along the pipe' };
 export const pressureUnits = ['psig', 'kPa', 'inH2O'] as const;
 export const fireWatchObservations = ['clear', 'hot_spot'] as const;
 export const fireWatchObservationLabels: Record<(typeof fireWatchObservations)[number], string> = { clear: 'Area clear, nothing smouldering', hot_spot: 'Hot spot or smouldering found' };

@@ -1,4 +1,4 @@
-import type { AtmosphereAssessment, MudPlug, PipeSchedule, PipeSizeOption } from '../calc';
+import type { AtmosphereAssessment, B36Schedule, MudPlug, PipeSizeOption } from '../calc';
 
 // What the calculator API answers, written once for the server and the client.
 
@@ -12,7 +12,7 @@ export interface MudPlugResponse extends MudPlug {
 /** GET /api/calc/pipe-sizes. */
 export interface PipeSizesResponse {
   source: string;
-  schedules: { schedule: PipeSchedule; label: string; sizes: PipeSizeOption[] }[];
+  schedules: { schedule: B36Schedule; label: string; sizes: PipeSizeOption[] }[];
 }
 
 /** POST /api/calc/atmosphere. */

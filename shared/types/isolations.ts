@@ -66,6 +66,11 @@ export interface IsolationStep<Time extends Moment = string> {
   exceptionAuthoriserName: string | null;
   /** Taken off by someone other than its applier, under that record. */
   removedUnderException: boolean;
+  /** Who holds the lock or tag now: the applier, or whoever it was last handed over to at a shift change. */
+  heldBy: string | null;
+  heldByName: string | null;
+  /** When it was last handed over at a shift change (null: never). */
+  handedOverAt: Time | null;
 }
 
 /** GET and PUT /api/permits/:id/isolations. */

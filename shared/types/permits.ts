@@ -1,5 +1,6 @@
 import type { PermitState, WorkKind } from '../permit/states';
 import type { PermitEvent } from '../permit/state-machine';
+import type { SuspendedByKind } from '../permit/suspension';
 import type { Moment } from './moment';
 import type { PermitLockbox } from './crew';
 
@@ -78,6 +79,11 @@ export interface PermitRecord<Time extends Moment = string> {
   expiredFlag: boolean;
   createdAt: Time;
   updatedAt: Time;
+  /** While suspended: who stopped the work (a person's name, or null when Holdpoint did), when and why. */
+  suspendedByKind: SuspendedByKind | null;
+  suspendedByName: string | null;
+  suspendedAt: Time | null;
+  suspensionReason: string | null;
 }
 
 /** An action on the permit page, with whether this caller may take it now and why not. */

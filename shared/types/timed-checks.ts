@@ -1,6 +1,7 @@
 import type { TimedCheckKind } from '../permit/due-times';
 import type { PermitState } from '../permit/states';
 import type { CheckKind } from '../schemas/timed-checks.schema';
+import type { GasTestPlace } from '../schemas/gas-tests.schema';
 import type { PermitLimitsView } from './gas-tests';
 import type { Moment } from './moment';
 
@@ -65,4 +66,16 @@ export interface PermitRegime extends PermitLimitsView {
   nextDue: DueTimeView | null;
   requireDailyBumpTest: boolean;
   timeZone: string;
+  /** The stop-work rules as they stand on this permit (shared/permit/stop-work.ts). */
+  stopWork: StopWorkView;
+}
+
+/** Gas verdicts per place, unresolved failed checks and what stops work starting or resuming now. */
+export interface StopWorkView {
+  places: { place: GasTestPlace; label: string; required: boolean; latest: 'pass' | 'fail' | null; lastPassAt: string | null; lastFailAt: string | null }[];
+  failedChecks: string[];
+  /** Why work may not start or resume now under the stop-work rules; empty when none applies. */
+  blockers: string[];
+  fireWatchBasis: 'nfpa_51b_2019' | 'osha_half_hour';
+  ventOutletLelPct: number;
 }

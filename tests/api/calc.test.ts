@@ -1,6 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { MUD_PLUG_CAUTION } from '@shared/calc';
+import { QueryTypes } from 'sequelize';
+import { AS_BUILT_MAX_LB, MAX_PIPE_DIAMETER_IN, MUD_PLUG_CAUTION, mudPlug, plugUnits } from '@shared/calc';
 import { startTestServer, type ApiClient, type TestServer } from '../fixtures/test-server';
+import { demoIds } from '../fixtures/permit-fixtures';
+import { draftWithPlan, expectOk, signInCrew, steps, tempPlan, toAccepted, type Crew } from '../fixtures/permit-journey';
 
 let srv: TestServer;
 let tech: ApiClient;
@@ -96,7 +99,7 @@ describe('GET /api/calc/pipe', () => {
 
   it.each([
     ['an NPS that is not a standard size', 'nps=11&schedule=40', 'nps'],
-    ['an unknown schedule', 'nps=10&schedule=XXS', 'schedule'],
+    ['an unknown schedule', 'nps=10&schedule=5', 'schedule'],
     ['no schedule', 'nps=10', 'schedule'],
     ['a negative NPS', 'nps=-4&schedule=40', 'nps'],
     ['no NPS', 'schedule=40', 'nps'],
@@ -115,6 +118,24 @@ describe('GET /api/calc/pipe-sizes', () => {
     expect(sizes('40')).toContain(24);
     expect(sizes('STD')).toContain(36);
     expect(sizes('80')).not.toContain(26);
+  });
+
+  it('finding 17: when the sizes are listed, then every B36.10M schedule is offered, NPS 1/8 to 48 (STD and XS), XXS to NPS 12', async () => {
+    const res = await tech.get('/api/calc/pipe-sizes');
+    expect(res.status).toBe(200);
+    expect(res.body.schedules.map((s: { label: string }) => s.label)).toEqual([
+      'Sch 10', 'Sch 20', 'Sch 30', 'STD', 'Sch 40', 'Sch 60', 'XS', 'Sch 80', 'Sch 100', 'Sch 120', 'Sch 140', 'Sch 160', 'XXS',
+    ]);
+    const sizes = (schedule: string) => res.body.schedules.find((s: { schedule: string }) => s.schedule === schedule).sizes.map((o: { nps: number }) => o.nps);
+    expect(sizes('STD').at(0)).toBe(0.125);
+    expect(sizes('STD').at(-1)).toBe(48);
+    expect(sizes('XXS').at(-1)).toBe(12);
+  });
+
+  it('finding 17: when NPS 10 XXS is asked, then OD 10.750, wall 1.000 and bore 8.750 in (ASME B36.10M)', async () => {
+    const res = await tech.get('/api/calc/pipe?nps=10&schedule=xxs');
+    expect(res.status).toBe(200);
+    expect(res.body).toEqual({ odIn: 10.75, wallIn: 1, idIn: expect.closeTo(8.75, 9) });
   });
 });
 
@@ -203,8 +224,10 @@ describe('POST /api/calc/atmosphere', () => {
     });
 
     it('when the tenant allows 5 %LEL for hot work and holds H₂S to 5 ppm, then 4 %LEL passes and 6 ppm H₂S fails, each citing the tenant', async () => {
-      await setSettings('bramblecote', { hotWorkLelPct: 5, atmosphereLimits: { h2s: { max: 5 } } });
+      // Issue 17: the hot-work limit is raised above 0 %LEL only with a stated reason, which the source then carries.
+      await setSettings('bramblecote', { hotWorkLelPct: 5, hotWorkLelReason: 'Operator standard for cold-cut pipe.', atmosphereLimits: { h2s: { max: 5 } } });
       const res = await tech.post('/api/calc/atmosphere', { readings: { o2Pct: 20.9, lelPct: 4, h2sPpm: 6 }, hotWork: true });
+      expect(res.body.gases.lel.source).toContain('reason given: Operator standard for cold-cut pipe.');
       expect(res.body.gases.lel.verdict).toBe('pass');
       expect(res.body.gases.lel.limit.max).toBe(5);
       expect(res.body.gases.lel.source).toMatch(/^Tenant policy/);
@@ -261,5 +284,53 @@ describe('who may use the calculator', () => {
     const client = await srv.signIn(email);
     for (const path of routes) expect((await client.get(path)).status).toBe(200);
     expect((await client.post('/api/calc/atmosphere', { readings: { o2Pct: 20.9, lelPct: 0 } })).status).toBe(200);
+  });
+});
+
+// Finding 17: the as-built record takes any plug the calculator sizes (up to the 60-in limit of
+// every calculation) and keeps weights in lb, which a metric tenant types and reads in kg.
+// D³/16 lb of paste ± 10 %, 1.5 × D long: common practice, no published source; 1 lb = 0.45359237 kg (exact).
+describe('finding 17: plug as built, the cap and the units', () => {
+  let crew: Crew;
+  let permitId = '';
+  let plugId = '';
+  const apply = (asBuilt: Record<string, unknown>) => crew.tech.post(`/api/permits/${permitId}/isolations/${plugId}/apply`, { asBuilt });
+
+  beforeAll(async () => {
+    crew = await signInCrew(srv);
+    const ids = await demoIds(srv);
+    const [valve, vent, plug] = tempPlan;
+    // The plug first in the plan, so applying it is in the plan's order.
+    permitId = await draftWithPlan(srv, crew, ids, {}, crew.lead, [{ ...plug, plugDiameterIn: MAX_PIPE_DIAMETER_IN }, vent, valve]);
+    await toAccepted(crew, permitId);
+    plugId = (await steps(crew.tech, permitId)).find((s) => s.kind === 'plug')!.id;
+  });
+
+  it('when a weight is over the cap, then 400 in plain words naming the field, and the step stays planned with nothing recorded', async () => {
+    const res = await apply({ bentoniteLb: AS_BUILT_MAX_LB + 1, waterLb: 8100, lengthIn: 90 });
+    expectRefused(res, 'asBuilt.bentoniteLb');
+    expect(res.body.error.details.find((d: { path: string }) => d.path === 'asBuilt.bentoniteLb').message).toMatch(/at most 29,700 lb \(13,472 kg\), more than any plug needs; check the figure and the unit/);
+    const [row] = await srv.deps.sequelize.query<{ status: string; plug_as_built: unknown }>(`SELECT status, plug_as_built FROM isolation_steps WHERE id = :id`, {
+      replacements: { id: plugId },
+      type: QueryTypes.SELECT,
+    });
+    expect(row).toEqual({ status: 'planned', plug_as_built: null });
+  });
+
+  it('when the heaviest paste the calculator allows for a 60-in pipe is recorded, weighed in kg by a metric tenant, then it is accepted, kept in lb and reads back in kg', async () => {
+    // 60³/16 = 13,500 lb; the band tops out at 14,850 lb; at 60/40 that is 8,910 lb of water and 5,940 lb of bentonite.
+    const target = mudPlug({ diameterIn: MAX_PIPE_DIAMETER_IN, waterFraction: 0.6 });
+    const metric = plugUnits(true);
+    const typedKg = { bentonite: 2694.34, water: 4041.4 };
+    const asBuilt = { bentoniteLb: metric.toLb(typedKg.bentonite)!, waterLb: metric.toLb(typedKg.water)!, lengthIn: target.plugLengthIn };
+    expect(asBuilt.bentoniteLb + asBuilt.waterLb).toBeLessThanOrEqual(target.mudLbRange[1]);
+    expect(asBuilt.bentoniteLb).toBeGreaterThan(5000); // refused by the old 5,000 lb cap
+    const step = await expectOk(await apply(asBuilt));
+    expect(step).toMatchObject({ status: 'applied', plugWarnings: [] });
+    const stored = (step as unknown as { plugAsBuilt: { bentoniteLb: number; waterLb: number } }).plugAsBuilt;
+    expect(stored.bentoniteLb).toBeCloseTo(asBuilt.bentoniteLb, 6);
+    expect(metric.mass(stored.bentoniteLb)).toBe('2694.34 kg');
+    // Water also as a volume: 8,909.76 lb ÷ 8.33 lb/US gal × 3.785411784 L/US gal = 4,048.9 L.
+    expect(metric.water(stored.waterLb)).toBe('4041.4 kg (4048.9 L)');
   });
 });

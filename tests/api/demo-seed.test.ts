@@ -8,6 +8,7 @@ import { verifyChain } from '../../server/src/modules/audit/audit.service';
 describe('the demo scenario that npm start seeds', () => {
   let db: Awaited<ReturnType<typeof createTestDatabase>>;
   let sequelize: ReturnType<typeof createSequelize>;
+  let seededBy = 0;
   const states = async () =>
     sequelize.query<{ job_reference: string; state: string }>(`SELECT job_reference, state FROM permits WHERE job_reference LIKE 'BM-DEMO-%' ORDER BY job_reference`, { type: QueryTypes.SELECT });
 
@@ -15,13 +16,14 @@ describe('the demo scenario that npm start seeds', () => {
     db = await createTestDatabase();
     sequelize = createSequelize(db.url);
     await seedDemo(sequelize, { permits: true });
+    seededBy = Date.now();
   }, 120_000);
   afterAll(async () => {
     await sequelize.close();
     await db.drop();
   });
 
-  it('when seeded, then Bramblecote has one permit at every stage of the job', async () => {
+  it('when seeded, then Bramblecote has one permit at every stage of the job (and one relying on another’s isolation certificate)', async () => {
     const byRef = Object.fromEntries((await states()).map((r) => [r.job_reference, r.state]));
     expect(byRef).toEqual({
       'BM-DEMO-0411': 'returned_to_service',
@@ -30,6 +32,7 @@ describe('the demo scenario that npm start seeds', () => {
       'BM-DEMO-0820': 'suspended',
       'BM-DEMO-3100': 'approved',
       'BM-DEMO-2530': 'requested',
+      'BM-DEMO-1840': 'requested',
     });
   });
 
@@ -63,6 +66,22 @@ describe('the demo scenario that npm start seeds', () => {
     expect(rows).toEqual(['BM-DEMO-0411', 'BM-DEMO-0820', 'BM-DEMO-1260', 'BM-DEMO-1730'].map((job_reference) => ({ job_reference, proved: true, signed: true })));
   });
 
+  // HSE HSG253, HSG250 (common practice): a certificate two permits work under, and a long-term isolation with its re-check due.
+  it('when seeded, then one isolation certificate is shared by two permits and one long-term isolation has a re-check due', async () => {
+    const shared = await sequelize.query<{ permits: string[] }>(
+      `SELECT array_agg(p.job_reference ORDER BY p.job_reference) AS permits FROM certificate_permits cp JOIN permits p ON p.id = cp.permit_id
+       JOIN isolation_certificates c ON c.id = cp.certificate_id WHERE c.state = 'live' AND cp.released_at IS NULL GROUP BY c.id HAVING count(*) > 1`,
+      { type: QueryTypes.SELECT },
+    );
+    expect(shared.map((r) => r.permits)).toEqual([['BM-DEMO-1730', 'BM-DEMO-1840']]);
+    const longTerm = await sequelize.query<{ job_reference: string; due: Date }>(
+      `SELECT p.job_reference, c.next_recheck_due AS due FROM isolation_certificates c JOIN permits p ON p.id = c.issued_for_permit_id WHERE c.long_term AND c.state = 'live'`,
+      { type: QueryTypes.SELECT },
+    );
+    expect(longTerm.map((r) => r.job_reference)).toEqual(['BM-DEMO-1260']);
+    expect(new Date(longTerm[0].due).getTime()).toBeGreaterThan(Date.now());
+  });
+
   it('when seeded, then the live permit has a gas test overdue and the suspended one a failing reading', async () => {
     const [live] = await sequelize.query<{ last: Date; interval: number }>(
       `SELECT max(g.tested_at) AS last, p.gas_test_interval_minutes AS interval FROM gas_tests g JOIN permits p ON p.id = g.permit_id
@@ -74,12 +93,36 @@ describe('the demo scenario that npm start seeds', () => {
     expect(fails).toHaveLength(1);
   });
 
+  // Planned moments (a validity window, an expiry, a due date, a retry) may lie ahead; what happened may not.
+  const plannedColumns = ['valid_from', 'valid_to', 'expires_on', 'expires_at', 'calibration_due_on', 'due_at', 'next_attempt_at', 'expire', 'next_recheck_due', 'recheck_alerted_due'];
+  it('issue 17: when seeded, then no recorded moment of any seeded tenant lies after the seed ran', async () => {
+    const columns = await sequelize.query<{ table_name: string; column_name: string }>(
+      `SELECT c.table_name, c.column_name FROM information_schema.columns c
+       JOIN information_schema.tables t ON t.table_schema = c.table_schema AND t.table_name = c.table_name AND t.table_type = 'BASE TABLE'
+       WHERE c.table_schema = 'public' AND c.data_type IN ('timestamp with time zone', 'timestamp without time zone', 'date')
+         AND EXISTS (SELECT 1 FROM information_schema.columns k WHERE k.table_schema = 'public' AND k.table_name = c.table_name AND k.column_name = 'tenant_id')
+         AND c.column_name NOT IN (:planned)
+       ORDER BY 1, 2`,
+      { replacements: { planned: plannedColumns }, type: QueryTypes.SELECT },
+    );
+    expect(columns.length).toBeGreaterThan(20);
+    const future: string[] = [];
+    for (const { table_name, column_name } of columns) {
+      const [row] = await sequelize.query<{ n: number; latest: Date | null }>(
+        `SELECT count(*)::int AS n, max("${column_name}")::timestamptz AS latest FROM "${table_name}" WHERE "${column_name}" > :by`,
+        { replacements: { by: new Date(seededBy) }, type: QueryTypes.SELECT },
+      );
+      if (row.n) future.push(`${table_name}.${column_name}: ${row.n} rows, latest ${new Date(row.latest!).toISOString()}`);
+    }
+    expect(future).toEqual([]);
+  });
+
   it('when seeded twice, then nothing is duplicated and the audit chain still verifies', async () => {
     const before = await sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM audit_events`, { type: QueryTypes.SELECT });
     await seedDemo(sequelize, { permits: true });
     const after = await sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM audit_events`, { type: QueryTypes.SELECT });
     expect(after[0].n).toBe(before[0].n);
-    expect(await states()).toHaveLength(6);
+    expect(await states()).toHaveLength(7);
     const [tenant] = await sequelize.query<{ id: string }>(`SELECT id FROM tenants WHERE slug = 'bramblecote'`, { type: QueryTypes.SELECT });
     expect(await verifyChain(sequelize, tenant.id)).toMatchObject({ ok: true });
   });

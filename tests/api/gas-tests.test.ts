@@ -7,7 +7,7 @@ import { hashPassword } from '../../server/src/lib/passwords';
 import { runScheduler } from '../../server/src/modules/gas-tests/scheduler';
 import { startTestServer, type ApiClient, type TestServer } from '../fixtures/test-server';
 import { demoIds, sign, transition, users } from '../fixtures/permit-fixtures';
-import { applyAndVerifyAll, confirmChecklist, draftWithPlan, expectOk, signInCrew, toAccepted, type Crew, type Ids } from '../fixtures/permit-journey';
+import { applyAndVerifyAll, confirmChecklist, draftWithPlan, expectOk, reasonsOf, signInCrew, toAccepted, type Crew, type Ids } from '../fixtures/permit-journey';
 
 describe('gas tests, timed checks and handover through the API', () => {
   let srv: TestServer;
@@ -101,6 +101,9 @@ describe('gas tests, timed checks and handover through the API', () => {
     expect(body.permitState).toBe('isolated');
     expect((body.assessment as { hotWork: boolean }).hotWork).toBe(true);
     expect((body.test as { instrument: { serial: string } }).instrument.serial).toBe('FG4-20731');
+    // Issue 17, gas verdicts per place: the work area alone no longer starts the work; the pipe beyond the plug is tested too.
+    expect(reasonsOf(await transition(crew.lead, permitId, 'start_work'))).toContain('Record a passing gas test inside the pipe, downstream of the plug, within 30 minutes of starting.');
+    await expectOk(await gasTest(crew.tech, clean, { place: 'inside_pipe_downstream', purpose: 'before_work' }), 201);
     expect((await expectOk(await transition(crew.lead, permitId, 'start_work'))).state).toBe('live');
     const regime = await expectOk(await crew.lead.get(`/api/permits/${permitId}/regime`));
     const gas = (regime.due as { kind: string; dueAt: string; overdue: boolean }[]).find((d) => d.kind === 'gas_test')!;
@@ -122,10 +125,16 @@ describe('gas tests, timed checks and handover through the API', () => {
     const overdue = mails.filter((m) => m.subject.startsWith(`${permitNumber} repeat gas test overdue`));
     expect(overdue.map((m) => m.to).sort()).toEqual([users.authoriser, users.lead].sort());
     expect(overdue[0].body).toContain('was due at');
+    // Issue 17: the due time in the site's clock and calendar with the zone named, never a machine date.
+    expect(overdue[0].body).toMatch(/was due at \d{1,2} [A-Z][a-z]{2} \d{4}, \d{2}:\d{2} C[SD]T and/);
     const events = await q<{ reason: string }>(`SELECT reason FROM audit_events WHERE permit_id = :permitId AND action = 'check_overdue' AND data->>'check' = 'gas_test'`, { permitId });
     expect(events).toHaveLength(1);
-    const regime = await expectOk(await crew.control.get(`/api/permits/${permitId}/regime`));
-    expect((regime.due as { kind: string; overdue: boolean }[]).find((d) => d.kind === 'gas_test')!.overdue).toBe(true);
+    // Issue 17: live hot work no longer carries on with its gas test overdue; past the site's grace (none by default) Holdpoint suspends it.
+    expect((await expectOk(await crew.control.get(`/api/permits/${permitId}`))).state).toBe('suspended');
+    await bump();
+    await expectOk(await gasTest(crew.tech), 201);
+    await expectOk(await gasTest(crew.tech, clean, { place: 'inside_pipe_downstream' }), 201);
+    expect((await expectOk(await transition(crew.authoriser, permitId, 'resume', { reason: 'Atmosphere tested again at both places.' }))).state).toBe('live');
   });
 
   it('when the vent and plug checks are recorded, then a problem needs the action taken and is mailed; a clean vent check clears its due time', async () => {
@@ -144,6 +153,11 @@ describe('gas tests, timed checks and handover through the API', () => {
     expect((await crew.auditor.post(`/api/permits/${permitId}/checks`, { kind: 'vent', checkedAt: now(), vapourAwayFromWork: true, pressureBuilding: false })).status).toBe(403);
     const list = await expectOk(await crew.control.get(`/api/permits/${permitId}/checks?kind=plug`));
     expect(list.total).toBe(1);
+    // Issue 17: the cracked plug stopped the live work at once; a later passing check of the plug and an authoriser's re-validation start it again.
+    expect(plug.permitState).toBe('suspended');
+    srv.clock.advanceMinutes(1);
+    await expectOk(await crew.tech.post(`/api/permits/${permitId}/checks`, { kind: 'plug', checkedAt: now(), face: 'intact' }), 201);
+    expect((await expectOk(await transition(crew.authoriser, permitId, 'resume', { reason: 'Plug packed and checked again.' }))).state).toBe('live');
   });
 
   it('when a monitor log has a bad row, then the preview lists it with reasons and the import writes nothing; a clean log imports as one series', async () => {
@@ -184,7 +198,7 @@ describe('gas tests, timed checks and handover through the API', () => {
     expect(again.body.error.message).toContain('nothing was imported');
   });
 
-  it('when a live reading is above the hot-work LEL limit, then the permit is suspended with the reading in the audit reason; resume needs a new pass', async () => {
+  it('when a live reading is above the hot-work LEL limit, then the permit is suspended with the reading in the audit reason; resume needs a new pass and an authoriser', async () => {
     await bump();
     const failed = await expectOk(await gasTest(crew.tech, { o2Pct: 20.8, lelPct: 12, h2sPpm: 0, coPpm: 2 }), 201);
     expect(failed.verdict).toBe('fail');
@@ -202,13 +216,18 @@ describe('gas tests, timed checks and handover through the API', () => {
     expect(refused.body.error.details.map((d: { message: string }) => d.message)).toContain('The latest gas test failed; record a passing test first.');
     srv.clock.advanceMinutes(1);
     expect((await expectOk(await gasTest(crew.tech), 201)).permitState).toBe('suspended');
-    expect((await expectOk(await transition(crew.lead, permitId, 'resume'))).state).toBe('live');
+    // Issue 17: a permit Holdpoint suspended resumes only on an authoriser's re-validation, with a reason.
+    expect((await expectOk(await transition(crew.authoriser, permitId, 'resume', { reason: 'Vapour source sealed; retest clear' }))).state).toBe('live');
   });
 
   it('when the outgoing lead signs a handover and the incoming lead accepts it, then the permit names the new holder', async () => {
     const hash = await hashPassword('holdpoint-demo');
     const [incoming] = await q<{ id: string }>(`INSERT INTO users (email, name, password_hash) VALUES ('night.lead@oxbow-repair.example', 'Ines Marwood', :hash) RETURNING id`, { hash });
     await srv.deps.sequelize.query(`INSERT INTO memberships (tenant_id, organisation_id, user_id, role) VALUES (:t, :org, :u, 'contractor_lead')`, { replacements: { t: ids.tenantId, org: ids.oxbowId, u: incoming.id } });
+    // Issue 17: a handover goes only to a lead holding the in-date qualification the work needs.
+    await srv.deps.sequelize.query(`INSERT INTO qualifications (tenant_id, user_id, kind, issued_on, expires_on) VALUES (:t, :u, 'hot_work_holder', current_date - 400, current_date + 400)`, {
+      replacements: { t: ids.tenantId, u: incoming.id },
+    });
     const night = await srv.signIn('night.lead@oxbow-repair.example');
     expect((await crew.lead.get(`/api/permits/${permitId}`)).body.holderName).toBe('Rory Kilbride');
 

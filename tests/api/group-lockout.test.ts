@@ -4,7 +4,10 @@
 //   device to the group lockout device, group lockbox, or comparable mechanism when he or she begins work,
 //   and shall remove those devices when he or she stops working on the machine or equipment being serviced
 //   or maintained."
-// - OSHA 29 CFR 1910.147(e)(3): each lockout device is removed by the employee who applied it.
+// - OSHA 29 CFR 1910.147(e)(3): each lockout device is removed by the employee who applied it; (e)(3)(i)–(iii)
+//   the exception when that employee is not at the facility (personal locks on the box included).
+// - OSHA 29 CFR 1910.147(f)(4): shift or personnel changes keep lockout protection continuous, with an
+//   orderly transfer between off-going and oncoming employees.
 import { QueryTypes } from 'sequelize';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { PermitLockbox } from '@shared/types/crew';
@@ -150,5 +153,97 @@ describe('group lockout per person: a personal lock each on the permit lockbox',
     } finally {
       await setGroupLockout('per_person');
     }
+  });
+
+  const userIdOf = async (email: string) => (await q<{ id: string }>(`SELECT id FROM users WHERE email = :email`, { email }))[0].id;
+  const demoPassword = 'holdpoint-demo';
+
+  /** A permit with work under way and the technician Sam Ferrand's personal lock on its box. */
+  async function liveWithTech(title: string, lock: string) {
+    const id = await isolatedPermit(title);
+    await expectOk(await signOn(crew.tech, id, lock));
+    await expectOk(await transition(crew.lead, id, 'start_work'));
+    return id;
+  }
+
+  it('issue 16 GL-7 (OSHA 29 CFR 1910.147(f)(4)): when the off-going person hands over to the oncoming one, both signing, then one lock comes off as the other goes on, with no moment the box is empty', async () => {
+    const id = await liveWithTech('Group lockout shift change', 'PL-701');
+    // (The second technician's lockout qualification was let lapse above: the lead takes over.)
+    const box = await expectOk(
+      await crew.tech.post(`/api/permits/${id}/crew/hand-over`, {
+        personalLockNumber: 'PL-702', password: demoPassword, signedName: 'Sam Ferrand', oncoming: { email: users.lead, ...sign(users.lead) },
+      }),
+    );
+    expect(box.crewOn).toEqual([expect.objectContaining({ name: 'Rory Kilbride', personalLockNumber: 'PL-702' })]);
+    const rows = await q<{ lock: string; on: Date; off: Date | null }>(
+      `SELECT personal_lock_number AS lock, signed_on_at AS on, signed_off_at AS off FROM permit_crew_members WHERE permit_id = :id ORDER BY signed_on_at, personal_lock_number`,
+      { id },
+    );
+    // The old lock's "off" is the new lock's "on": the box never stood empty while work was live.
+    expect(rows.map((r) => r.lock)).toEqual(['PL-701', 'PL-702']);
+    expect(rows[0].off?.getTime()).toBe(rows[1].on.getTime());
+    const [transfer] = await q<Record<string, unknown>>(`SELECT kind, old_lock_number, new_lock_number, from_signed_name, to_signed_name FROM lock_transfers WHERE permit_id = :id`, { id });
+    expect(transfer).toEqual({ kind: 'lockbox', old_lock_number: 'PL-701', new_lock_number: 'PL-702', from_signed_name: 'Sam Ferrand', to_signed_name: 'Rory Kilbride' });
+    const [event] = await q<{ actor_name: string }>(`SELECT actor_name FROM audit_events WHERE permit_id = :id AND action = 'crew_lock_handed_over'`, { id });
+    expect(event.actor_name).toBe('Sam Ferrand');
+    // A wrong signature of the oncoming person changes nothing.
+    const refused = await crew.lead.post(`/api/permits/${id}/crew/hand-over`, {
+      personalLockNumber: 'PL-703', ...sign(users.lead), oncoming: { email: users.tech, password: 'wrong-password', signedName: 'Sam Ferrand' },
+    });
+    expect(refused.status).toBe(400);
+    expect(refused.body.error.details.map((d: { path: string }) => d.path)).toEqual(['oncoming.password']);
+    expect((await lockboxOf(id)).crewOn.map((c) => c.personalLockNumber)).toEqual(['PL-702']);
+  });
+
+  it('issue 16 GL-8 (OSHA 29 CFR 1910.147(f)(4)): when the last person on the box signs off while work is live, then it is refused, pointing to the handover; once the work is suspended they sign off, and work resumes only with a lock on the box again', async () => {
+    const id = await liveWithTech('Group lockout last lock', 'PL-801');
+    const gap = await signOff(crew.tech, id);
+    expect(gap.status, JSON.stringify(gap.body)).toBe(422);
+    expect(gap.body.error.message).toMatch(/last personal lock on the lockbox and work is still going on\. Hand over your lock/);
+    expect((await lockboxOf(id)).crewOn.map((c) => c.personalLockNumber)).toEqual(['PL-801']);
+    // With another person still on, the first may go.
+    await expectOk(await signOn(crew.lead, id, 'PL-802'));
+    await expectOk(await signOff(crew.tech, id));
+    // Once the work is stopped (suspended), the last lock may come off; work then resumes only with a lock on the box again.
+    await expectOk(await transition(crew.authoriser, id, 'suspend', { reason: 'Shift ends; nobody on the job overnight.' }));
+    await expectOk(await signOff(crew.lead, id));
+    expect(reasonsOf(await transition(crew.authoriser, id, 'resume', { reason: 'Checked the site before the morning shift.' }))).toContain(nobodyOn);
+  });
+
+  it('issue 16 GL-9 (OSHA 29 CFR 1910.147(e)(3)(i)-(iii)): when a crew member left with their personal lock on the box, then it comes off only after an authoriser records the exception, by a third person who signs, and the owner is mailed', async () => {
+    const id = await isolatedPermit('Group lockout absent member');
+    await expectOk(await signOn(crew.lead, id, 'PL-901'));
+    const absentId = ids.leadUserId;
+    const removeUrl = `/api/permits/${id}/crew/${absentId}/remove`;
+    const early = await crew.tech.post(removeUrl, { password: demoPassword, signedName: 'Sam Ferrand' });
+    expect(early.status).toBe(422);
+    expect(early.body.error.message).toMatch(/Rory Kilbride put personal lock PL-901 on the lockbox, so only Rory Kilbride may take it off/);
+    const exceptionBody = {
+      absenceCheck: 'Not on the gate log; site radio unanswered.',
+      contactAttempts: [{ how: 'Phoned his mobile', at: srv.clock.now().toISOString() }],
+      informPlan: 'Told at the gate before his next shift.',
+      ...sign(users.authoriser),
+    };
+    expect((await crew.tech.post(`/api/permits/${id}/crew/${absentId}/removal-exception`, { ...exceptionBody, password: demoPassword, signedName: 'Sam Ferrand' })).status).toBe(403);
+    await expectOk(await crew.authoriser.post(`/api/permits/${id}/crew/${absentId}/removal-exception`, exceptionBody), 201);
+    expect((await crew.authoriser.post(`/api/permits/${id}/crew/${absentId}/removal-exception`, exceptionBody)).status).toBe(409);
+    const unsigned = await crew.tech.post(removeUrl, { password: 'wrong-password', signedName: 'Sam Ferrand' });
+    expect(unsigned.status).toBe(400);
+    const box = await expectOk(await crew.tech.post(removeUrl, { password: demoPassword, signedName: 'Sam Ferrand' }));
+    expect(box.crewOn).toEqual([]);
+    const [row] = await q<{ remover: string; signed_off_by: string }>(
+      `SELECT e.remover_signed_name AS remover, c.signed_off_by::text FROM lock_removal_exceptions e JOIN permit_crew_members c ON c.id = e.crew_member_id WHERE c.permit_id = :id`,
+      { id },
+    );
+    expect(row).toEqual({ remover: 'Sam Ferrand', signed_off_by: await userIdOf(users.tech) });
+    const [mail] = await q<{ subject: string }>(`SELECT subject FROM mail_outbox WHERE subject LIKE 'Your personal lock PL-901%'`);
+    expect(mail.subject).toMatch(/was taken off while you were away/);
+    // The database refuses anyone signing off someone else's personal lock without such a record.
+    await expectOk(await signOn(crew.lead, id, 'PL-902'));
+    await expect(
+      srv.deps.sequelize.query(`UPDATE permit_crew_members SET signed_off_at = now(), signed_off_by = :by WHERE permit_id = :id AND personal_lock_number = 'PL-902'`, {
+        replacements: { id, by: await userIdOf(users.tech) },
+      }),
+    ).rejects.toThrow(/recorded exception/);
   });
 });

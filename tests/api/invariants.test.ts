@@ -28,16 +28,17 @@ const mayFire: Partial<Record<PermitEvent, Who[]>> = {
   accept: ['lead'],
   confirm_isolated: authorisers,
   start_work: ['lead'],
-  suspend: [...authorisers, 'control'],
+  suspend: [...authorisers, 'control', 'lead'],
   resume: [...authorisers, 'lead'],
   hand_back: ['lead'],
   return_to_service: authorisers,
-  acknowledge_return: [...authorisers, 'control'],
+  // Issue 17: only the control room acknowledges a return to service.
+  acknowledge_return: ['control'],
   close: authorisers,
   cancel: [...authorisers, 'lead'],
   revalidate: authorisers,
   // Holdpoint's own event; people with the suspend right get past the role check and are then refused.
-  expire: [...authorisers, 'control'],
+  expire: [...authorisers, 'control', 'lead'],
 };
 
 /** States in which a permit that has a step on a point still needs that point isolated (isolation-steps.service.ts). */
@@ -127,6 +128,8 @@ describe('invariants under random sequences of actions', () => {
     return {
       ...(signedEvents.includes(event) ? sign(users[who]) : {}),
       ...(reasonedEvents.includes(event) ? { reason: 'Stopped by the test crew.' } : {}),
+      // Resuming work someone other than the lead stopped is an authoriser's re-validation, with a reason (issue 17).
+      ...(event === 'resume' ? { reason: 'Cause cleared and checked by the test crew.' } : {}),
       ...(event === 'revalidate' ? { validTo: new Date(srv.clock.now().getTime() + 6 * 3_600_000).toISOString() } : {}),
     };
   }
@@ -219,13 +222,21 @@ describe('invariants under random sequences of actions', () => {
   async function gasTest(permitId: string, verdict: 'pass' | 'fail', who: Who): Promise<Outcome> {
     // NIOSH/OSHA confined-space practice: oxygen below 19.5 %vol is unsafe, so 17.5 % fails under any regime.
     const readings = verdict === 'pass' ? { o2Pct: 20.9, lelPct: 0, h2sPpm: 0, coPpm: 1 } : { o2Pct: 17.5, lelPct: 14, h2sPpm: 0, coPpm: 3 };
-    const res = answer(
-      await crew[who].post(`/api/permits/${permitId}/gas-tests`, { instrumentId, place: 'work_area', testedAt: srv.clock.now().toISOString(), readings }),
-      `${who} gas test (${verdict})`,
-    );
+    // Issue 17, gas verdicts per place: a pass is taken inside the pipe on each side and at the work area; a fail at one place.
+    const places = verdict === 'pass' ? ['inside_pipe_upstream', 'inside_pipe_downstream', 'work_area'] : ['inside_pipe_downstream'];
+    let res!: Awaited<ReturnType<Crew['tech']['post']>>;
+    for (const place of places)
+      res = answer(await crew[who].post(`/api/permits/${permitId}/gas-tests`, { instrumentId, place, testedAt: srv.clock.now().toISOString(), readings }), `${who} gas test (${verdict}, ${place})`);
     if (who !== 'tech') expect(res.status, `${who} is not a gas tester`).toBe(403);
     if (res.status === 201) expect(res.body.verdict).toBe(verdict);
     return { permitId, status: res.status, transitioned: false, sideEffect: (from, to) => res.status === 201 && res.body.suspended === true && from === 'live' && to === 'suspended' };
+  }
+
+  /** A plug check of every plug of the permit (issue 17): a cracked plug on live work suspends the permit at once. */
+  async function plugCheck(permitId: string, ok: boolean, who: Who): Promise<Outcome> {
+    const body = ok ? { face: 'intact' } : { face: 'cracked', actionTaken: 'Crew withdrawn; plug to be rebuilt.' };
+    const res = answer(await crew[who].post(`/api/permits/${permitId}/checks`, { kind: 'plug', checkedAt: srv.clock.now().toISOString(), ...body }), `${who} plug check (${ok ? 'intact' : 'cracked'})`);
+    return { permitId, status: res.status, transitioned: false, sideEffect: (from, to) => res.status === 201 && !ok && from === 'live' && to === 'suspended' };
   }
 
   /** Confirms one item of a list: the first required one still open, or else the first. */
@@ -294,7 +305,7 @@ describe('invariants under random sequences of actions', () => {
       case 'live':
         return pick % 3 === 0 ? gasTest(permitId, 'pass', 'tech') : fire(permitId, 'hand_back', 'lead');
       case 'suspended':
-        return pick % 2 === 0 ? gasTest(permitId, 'pass', 'tech') : fire(permitId, 'resume', 'lead');
+        return pick % 2 === 0 ? gasTest(permitId, 'pass', 'tech') : fire(permitId, 'resume', pick % 4 === 1 ? 'lead' : authorisers[pick % 2]);
       case 'work_complete': {
         const still = await onBox(permitId);
         if (still.length) return crewLock(permitId, whoIs(still[0].user_id), false);
@@ -496,6 +507,52 @@ describe('invariants under random sequences of actions', () => {
     );
     expect(openedWhileLocked, 'isolations removed while a personal lock was on the lockbox').toEqual([]);
 
+    // 10. Four eyes on content (issue 17, HSE HSG250): no permit approved by anyone who wrote or changed it or its isolation plan.
+    const approvedByEditor = await q<{ number: string }>(
+      `SELECT p.number FROM permits p JOIN permit_editors e ON e.tenant_id = p.tenant_id AND e.permit_id = p.id AND e.user_id = p.authoriser_user_id
+       WHERE p.tenant_id = :tenantId AND p.id IN (:created)`,
+      { created },
+    );
+    expect(approvedByEditor, 'permits approved by one of their editors').toEqual([]);
+
+    // 11. No close without the control room's acknowledgement of the return to service (issue 17), given before the close.
+    const closedUnacknowledged = await q<{ number: string }>(
+      `SELECT p.number FROM permits p JOIN audit_events c ON c.tenant_id = p.tenant_id AND c.permit_id = p.id AND c.action = 'close'
+       WHERE p.tenant_id = :tenantId AND p.id IN (:created)
+         AND (p.control_room_ack_at IS NULL OR NOT EXISTS (
+           SELECT 1 FROM audit_events a JOIN memberships m ON m.tenant_id = a.tenant_id AND m.user_id = a.actor_user_id AND m.role = 'control_room'
+           WHERE a.tenant_id = p.tenant_id AND a.permit_id = p.id AND a.action = 'acknowledge_return' AND a.seq < c.seq))`,
+      { created },
+    );
+    expect(closedUnacknowledged, 'permits closed without the control room acknowledging the return to service').toEqual([]);
+
+    // 12. No live permit without a live isolation certificate covering it (HSE HSG253, HSG250, common practice):
+    //     one it relies on now, on its pipeline, whose section holds the whole work range, with no failed re-check open.
+    const uncovered = await q<{ number: string }>(
+      `SELECT p.number FROM permits p
+       WHERE p.tenant_id = :tenantId AND p.id IN (:created) AND p.state = 'live' AND NOT EXISTS (
+         SELECT 1 FROM certificate_permits cp JOIN isolation_certificates c ON c.tenant_id = cp.tenant_id AND c.id = cp.certificate_id
+         WHERE cp.tenant_id = p.tenant_id AND cp.permit_id = p.id AND cp.released_at IS NULL AND c.state = 'live' AND c.problem IS NULL
+           AND c.pipeline_id = p.pipeline_id AND c.from_position <= p.from_position AND c.to_position >= p.to_position)`,
+      { created },
+    );
+    expect(uncovered, 'live permits without a live isolation certificate covering them').toEqual([]);
+
+    // 13. Stop-work (issue 17): no live permit with an unresolved failed vent or plug check, one not followed by a
+    //     passing check of the same vent or plug (or of all of them) while it is still in place.
+    const liveOverFailedCheck = await q<{ number: string }>(
+      `SELECT DISTINCT p.number FROM permits p
+       JOIN permit_checks c ON c.tenant_id = p.tenant_id AND c.permit_id = p.id AND c.kind IN ('vent', 'plug') AND NOT c.ok
+       LEFT JOIN isolation_steps s ON s.tenant_id = c.tenant_id AND s.id = c.isolation_step_id
+       WHERE p.tenant_id = :tenantId AND p.id IN (:created) AND p.state = 'live'
+         AND (c.isolation_step_id IS NULL OR s.status IN ('applied', 'verified'))
+         AND EXISTS (SELECT 1 FROM isolation_steps x WHERE x.tenant_id = c.tenant_id AND x.permit_id = c.permit_id AND x.kind = c.kind AND x.status IN ('applied', 'verified'))
+         AND NOT EXISTS (SELECT 1 FROM permit_checks l WHERE l.tenant_id = c.tenant_id AND l.permit_id = c.permit_id AND l.kind = c.kind AND l.ok
+                           AND (l.isolation_step_id IS NULL OR l.isolation_step_id = c.isolation_step_id) AND l.checked_at > c.checked_at)`,
+      { created },
+    );
+    expect(liveOverFailedCheck, 'live permits with an unresolved failed vent or plug check').toEqual([]);
+
     model.states = real.permits.map((id) => real.states.get(id)!);
     model.steps = await Promise.all(real.permits.map(async (id) => (await stepsOf(id)).map((s) => s.status)));
 
@@ -617,6 +674,17 @@ describe('invariants under random sequences of actions', () => {
       return `${this.who} gas test ${this.verdict}`;
     }
   }
+  class PlugCheck extends Action {
+    constructor(permit: number, minutes: number, readonly ok: boolean, readonly who: Who) {
+      super(permit, minutes);
+    }
+    act(real: Real) {
+      return plugCheck(real.permits[this.permit], this.ok, this.who);
+    }
+    describe() {
+      return `${this.who} plug check ${this.ok ? 'intact' : 'cracked'}`;
+    }
+  }
   class Confirm extends Action {
     constructor(permit: number, minutes: number, readonly list: 'checklist' | 'walkdown', readonly who: Who) {
       super(permit, minutes);
@@ -638,6 +706,22 @@ describe('invariants under random sequences of actions', () => {
     }
     describe() {
       return `${this.who} sign ${this.on ? 'on to' : 'off'} the lockbox`;
+    }
+  }
+
+  /** Someone rewrites the scope of a draft (a sent-back permit is a draft): they become one of its editors (invariant 10). */
+  class EditDraft extends Action {
+    constructor(permit: number, minutes: number, readonly who: Who) {
+      super(permit, minutes);
+    }
+    async act(real: Real) {
+      const id = real.permits[this.permit];
+      const current = await crew[this.who].get(`/api/permits/${id}`);
+      const res = answer(await crew[this.who].patch(`/api/permits/${id}`, { version: current.body.version, scope: `Scope rewritten by ${this.who}` }), `${this.who} edit the draft`);
+      return { permitId: id, status: res.status, transitioned: false };
+    }
+    describe() {
+      return `${this.who} edit the draft`;
     }
   }
 
@@ -675,6 +759,8 @@ describe('invariants under random sequences of actions', () => {
     { weight: 2, arbitrary: fc.tuple(permitArb, minutesArb, fc.constantFrom('pass', 'fail') as fc.Arbitrary<'pass' | 'fail'>, fc.oneof({ weight: 3, arbitrary: fc.constant<Who>('tech') }, { weight: 1, arbitrary: whoArb })).map(([p, m, v, w]) => new GasTest(p, m, v, w)) },
     { weight: 1, arbitrary: fc.tuple(permitArb, minutesArb, fc.constantFrom('checklist', 'walkdown') as fc.Arbitrary<'checklist' | 'walkdown'>, whoArb).map(([p, m, l, w]) => new Confirm(p, m, l, w)) },
     { weight: 2, arbitrary: fc.tuple(permitArb, minutesArb, whoArb, fc.boolean()).map(([p, m, w, on]) => new CrewLock(p, m, w, on)) },
+    { weight: 1, arbitrary: fc.tuple(permitArb, minutesArb, fc.constantFrom<Who>('lead', ...authorisers)).map(([p, m, w]) => new EditDraft(p, m, w)) },
+    { weight: 1, arbitrary: fc.tuple(permitArb, minutesArb, fc.boolean(), fc.oneof({ weight: 3, arbitrary: fc.constantFrom<Who>(...technicians) }, { weight: 1, arbitrary: whoArb })).map(([p, m, ok, w]) => new PlugCheck(p, m, ok, w)) },
   ].map((c) => ({ weight: c.weight, arbitrary: c.arbitrary as fc.Arbitrary<fc.AsyncCommand<Model, Real>> }));
   const commands = [fc.oneof(...weighted)];
 
@@ -736,6 +822,8 @@ describe('invariants under random sequences of actions', () => {
     // A new passing test a minute later clears it.
     srv.clock.advanceMinutes(1);
     expect((await crew.tech.post(`/api/permits/${id}/gas-tests`, { instrumentId, place: 'work_area', testedAt: srv.clock.now().toISOString(), readings: { o2Pct: 20.9, lelPct: 0, h2sPpm: 0, coPpm: 1 } })).status).toBe(201);
+    // Issue 17, gas verdicts per place: the pipe beyond the test plan's plug is tested too.
+    expect((await crew.tech.post(`/api/permits/${id}/gas-tests`, { instrumentId, place: 'inside_pipe_downstream', testedAt: srv.clock.now().toISOString(), readings: { o2Pct: 20.9, lelPct: 0, h2sPpm: 0, coPpm: 1 } })).status).toBe(201);
     expect((await crew.tech.post(`/api/permits/${id}/crew/sign-on`, { personalLockNumber: 'PL-tech' })).status).toBe(200);
     expect((await transition(crew.lead, id, 'start_work')).status).toBe(200);
   });

@@ -172,8 +172,9 @@ describe('isolations through the API, as the demo users', () => {
   /** No gas-test API yet: a passing test goes straight into gas_tests, timed by the test clock. */
   async function passingGasTest(p: Permit) {
     await srv.deps.sequelize.query(
+      // Issue 17, gas verdicts per place: a pass inside the pipe on each side and at the work area.
       `INSERT INTO gas_tests (tenant_id, permit_id, tester_user_id, place, tested_at, readings, verdict)
-       VALUES (:tenantId, :permitId, :tester, 'work_area', :now, CAST('{}' AS jsonb), 'pass')`,
+       SELECT :tenantId, :permitId, :tester, place, :now, CAST('{}' AS jsonb), 'pass' FROM unnest(ARRAY['inside_pipe_upstream', 'inside_pipe_downstream', 'work_area']) AS place`,
       { replacements: { tenantId: ids.tenantId, permitId: p.id, tester: techUserId, now: srv.clock.now() } },
     );
   }
@@ -457,6 +458,9 @@ describe('isolations through the API, as the demo users', () => {
     expect(watching.body.error.message).toMatch(/fire watch runs until/);
     // NFPA 51B (2019): fire watch at least 1 hour after hot work ends; the permit asks 60 minutes.
     srv.clock.advanceMinutes(31);
+    // Issue 17: the watch ends with the fire watcher's closing check, area clear and nothing smouldering.
+    expect((await transition(lead, F.id, 'hand_back', sign(users.lead))).body.error.message).toMatch(/^Record the fire watch closing check/);
+    expect((await tech.post(`/api/permits/${F.id}/checks`, { kind: 'fire_watch', checkedAt: srv.clock.now().toISOString(), observation: 'clear' })).status).toBe(201);
     const handed = await transition(lead, F.id, 'hand_back', sign(users.lead));
     expect(handed.status, JSON.stringify(handed.body)).toBe(200);
   });

@@ -143,10 +143,11 @@ describe('permit guards through the API', () => {
     expect((await expectOk(await transition(crew.lead, id, 'start_work'))).state).toBe('live');
   });
 
-  it('when the control room suspends without a reason, then 422; with one, the permit is suspended and can resume', async () => {
+  it('when the control room suspends without a reason, then 422; with one, the permit is suspended and an authoriser resumes it with a reason', async () => {
     expect(reasonsOf(await transition(crew.control, id, 'suspend'))).toEqual(['Give a reason in words.']);
     await expectOk(await transition(crew.control, id, 'suspend', { reason: 'Thunderstorm within ten miles' }));
-    expect((await expectOk(await transition(crew.lead, id, 'resume'))).state).toBe('live');
+    // Issue 17: work the control room stopped restarts only on an authoriser's re-validation.
+    expect((await expectOk(await transition(crew.authoriser, id, 'resume', { reason: 'Storm has passed; area checked' }))).state).toBe('live');
   });
 
   it('when hot work was never recorded as stopped, then hand-back is refused; once recorded, it waits for the fire watch', async () => {
@@ -160,13 +161,15 @@ describe('permit guards through the API', () => {
 
   it('when work is suspended and resumed after hot work stopped, then the stop must be recorded again (hot work may have restarted)', async () => {
     await expectOk(await transition(crew.control, id, 'suspend', { reason: 'Gas detector alarm at the pit' }));
-    await expectOk(await transition(crew.lead, id, 'resume'));
+    await expectOk(await transition(crew.authoriser, id, 'resume', { reason: 'Detector fault found; retest clear' }));
     expect(reasonsOf(await transition(crew.lead, id, 'hand_back', sign(users.lead)))[0]).toMatch(/^Record that hot work has stopped;/);
     await expectOk(await crew.lead.post(`/api/permits/${id}/hot-work-stopped`));
   });
 
   it('when the fire watch has run its 61 minutes, then the lead hands back with a signature', async () => {
     srv.clock.advanceMinutes(61);
+    // Issue 17: the watch ends with the fire watcher's closing check (NFPA 51B, 2019 edition).
+    await expectOk(await crew.tech.post(`/api/permits/${id}/checks`, { kind: 'fire_watch', checkedAt: srv.clock.now().toISOString(), observation: 'clear' }), 201);
     const res = await expectOk(await transition(crew.lead, id, 'hand_back', sign(users.lead)));
     expect(res.state).toBe('work_complete');
   });

@@ -12,7 +12,7 @@ import { DEMO_PASSWORD, startTestServer, type ApiClient, type TestServer } from 
 import { readAnswer, registeredApiRoutes } from '../fixtures/registered-routes';
 import {
   instrumentBody, inventoryBody, monitorOf, onePixelPng, permitBody, pipelineBody, pointBody, sampleAttachment, sampleHandover, sampleHeldPermit, sampleInstrument,
-  sampleCrewOn, sampleInventory, sampleLockedStep, sampleMembership, samplePermit, samplePipeline, samplePoint, sampleProving, sampleStep, tokenFor,
+  sampleAbsentCrew, sampleCrewHandOver, sampleCertificate, certificateLinkBody, sampleCrewOn, sampleHeldStep, sampleInventory, sampleLockedStep, sampleMembership, samplePermit, samplePipeline, samplePoint, sampleProving, sampleStep, tokenFor,
   type Keepers, type MatrixContext, type SampleFactory, type SampleRecord, type TenantIds,
 } from '../fixtures/matrix-samples';
 
@@ -213,6 +213,48 @@ const routes: RouteCase[] = [
   // group lockout per person: the permit's lockbox (both demo tenants are set to per_person in beforeAll)
   { method: 'POST', path: '/api/permits/:id/crew/sign-on', access: onRecord('sign_on', 'Permit', samplePermit('isolated')), body: () => ({ personalLockNumber: 'MX-PL-2' }) },
   { method: 'POST', path: '/api/permits/:id/crew/sign-off', access: onRecord('read', 'Permit', sampleCrewOn), body: () => ({}) },
+  // shift change (lock by lock and on the lockbox) and the absent crew member's personal lock (issue 16)
+  {
+    method: 'POST',
+    path: '/api/permits/:id/isolations/:stepId/transfer',
+    access: onRecord('read', 'IsolationStep', sampleHeldStep, 'Permit'),
+    body: (c, s) => ({ lockId: s?.extra?.lockId, ...signature(c), oncoming: { email: (s?.extra?.oncoming as { email: string }).email, signedName: 'Matrix Oncoming', password: DEMO_PASSWORD } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/permits/:id/crew/hand-over',
+    access: onRecord('read', 'Permit', sampleCrewHandOver),
+    body: (c, s) => ({ personalLockNumber: 'MX-PL-3', ...signature(c), oncoming: { email: (s?.extra?.oncoming as { email: string }).email, signedName: 'Matrix Oncoming', password: DEMO_PASSWORD } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/permits/:id/crew/:userId/removal-exception',
+    access: onRecord('approve', 'IsolationStep', sampleAbsentCrew(false), 'Permit'),
+    body: (c) => ({
+      absenceCheck: 'Matrix check: not on the gate log, site radio unanswered.',
+      contactAttempts: [{ how: 'Phoned their mobile', at: new Date(c.srv.clock.now().getTime() - 60_000).toISOString() }],
+      informPlan: 'Told at the gate before their next shift.',
+      ...signature(c),
+    }),
+  },
+  { method: 'POST', path: '/api/permits/:id/crew/:userId/remove', access: onRecord('sign_on', 'Permit', sampleAbsentCrew(true)), body: (c) => signature(c) },
+  // isolation certificates and long-term isolations
+  { method: 'GET', path: '/api/certificates', access: can('read', 'IsolationCertificate') },
+  { method: 'GET', path: '/api/certificates/:id', access: onRecord('read', 'IsolationCertificate', sampleCertificate({ stepOn: true })) },
+  { method: 'POST', path: '/api/permits/:id/certificate', access: onRecord('update', 'Permit', samplePermit('draft')), body: (c, s) => certificateLinkBody(c, s?.params.id) },
+  {
+    method: 'POST',
+    path: '/api/certificates/:id/long-term',
+    access: onRecord('update', 'IsolationCertificate', sampleCertificate({ stepOn: true })),
+    body: () => ({ reason: 'Matrix check: the line stays shut until the new valve arrives.' }),
+  },
+  {
+    method: 'POST',
+    path: '/api/certificates/:id/rechecks',
+    access: onRecord('record', 'IsolationCertificate', sampleCertificate({ stepOn: true, longTerm: true, qualifyCaller: true })),
+    body: () => ({ locksAndTagsIntact: true, valvesStillClosed: true, gaugeReading: 0, gaugeUnit: 'psig' }),
+  },
+  { method: 'POST', path: '/api/certificates/:id/return', access: onRecord('close', 'IsolationCertificate', sampleCertificate()), body: () => ({}) },
   { method: 'GET', path: '/api/board', access: can('read', 'Board') },
   { method: 'GET', path: '/api/board/stream', access: can('read', 'Board'), stream: true },
 

@@ -98,7 +98,7 @@ describe('finding 2: the server answers exactly the shapes declared in shared/ty
         requesterUserId: true, requesterName: true, authoriserUserId: true, authoriserName: true, holderUserId: true, holderName: true,
         fireWatchMinutes: true, fireWatchPerson: true, gasTestWindowMinutes: true, gasTestIntervalMinutes: true, hotWorkEndedAt: true, controlRoomAckAt: true,
         rejectionReason: true, stateBeforeExpiry: true, expiredFlag: true, createdAt: true, updatedAt: true, actions: true, timeline: true, signatures: true, nextGasTestDue: true,
-        lockbox: true, workOverlaps: true,
+        lockbox: true, workOverlaps: true, suspendedByKind: true, suspendedByName: true, suspendedAt: true, suspensionReason: true,
       }),
     );
     expect(keysOf(permit.timeline[0])).toEqual(
@@ -119,6 +119,7 @@ describe('finding 2: the server answers exactly the shapes declared in shared/ty
         verificationReading: true, verificationUnit: true, verificationNotes: true, removedByName: true, removedAt: true, removalNote: true,
         controlRoomAckAppliedAt: true, controlRoomAckRemovedAt: true, plugDiameterIn: true, plugAsBuilt: true, plugWarnings: true, plugWarningsAckAt: true,
         lineStopAsBuilt: true, appliedSeq: true, appliedOutOfOrderReason: true, exceptionRecordedAt: true, exceptionAuthoriserId: true, exceptionAuthoriserName: true, removedUnderException: true,
+        heldBy: true, heldByName: true, handedOverAt: true,
       }),
     );
     const proposal = await ok(authoriser, `/api/permits/${permitId}/isolations/proposal?fromPosition=17.29&toPosition=17.31`);
@@ -156,7 +157,7 @@ describe('finding 2: the server answers exactly the shapes declared in shared/ty
     expect(keysOf(regime)).toEqual(
       fieldsOf<PermitRegime>({
         limits: true, hotWork: true, permitRequest: true, permitId: true, state: true, holder: true, gasTestWindowMinutes: true, gasTestIntervalMinutes: true,
-        fireWatchMinutes: true, fireWatchEndsAt: true, tests: true, due: true, nextDue: true, requireDailyBumpTest: true, timeZone: true,
+        fireWatchMinutes: true, fireWatchEndsAt: true, tests: true, due: true, nextDue: true, requireDailyBumpTest: true, timeZone: true, stopWork: true,
       }),
     );
     expect(keysOf(regime.due[0])).toEqual(fieldsOf<DueTimeView>({ kind: true, label: true, dueAt: true, overdue: true, minutesOverdue: true, intervalMinutes: true }));

@@ -22,7 +22,7 @@ describe('finding 9: wrong passwords when signing', () => {
     for (let i = 0; i < 5; i++) {
       const res = await transition(crew.authoriser, permitId, 'approve', { password: `guess-number-${i}`, signedName: 'Priya Castellan' });
       expect(res.status, `wrong password ${i + 1}`).toBe(400);
-      expect(res.body.error.details).toEqual([{ path: 'password', message: 'Re-enter your password to sign.' }]);
+      expect(res.body.error.details).toEqual([{ path: 'password', message: 'That password is wrong. Type the password you sign in with.' }]);
     }
     const res = await transition(crew.authoriser, permitId, 'approve', sign(users.authoriser));
     expect(res.status).toBe(429);
@@ -33,7 +33,7 @@ describe('finding 9: wrong passwords when signing', () => {
   it('when one person is held back, then another person still signs with their own password checked', async () => {
     const res = await transition(crew.authoriser2, permitId, 'approve', { password: 'not-marcus-password', signedName: 'Marcus Tellford' });
     expect(res.status).toBe(400);
-    expect(res.body.error.details).toEqual([{ path: 'password', message: 'Re-enter your password to sign.' }]);
+    expect(res.body.error.details).toEqual([{ path: 'password', message: 'That password is wrong. Type the password you sign in with.' }]);
   });
 
   it('when the wait is over, then the right password signs again', async () => {

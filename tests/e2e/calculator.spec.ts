@@ -1,5 +1,5 @@
 import { expect, test, type Page } from '@playwright/test';
-import { MUD_PLUG_CAUTION } from '../../shared/calc';
+import { BENTONITE_WEIGH_NOTE, MUD_PLUG_CAUTION, SMALL_BORE_PLUG_ADVICE } from '../../shared/calc';
 import { shot, signIn } from './helpers';
 
 async function openCalculator(page: Page, email = 'tech@oxbow-repair.example') {
@@ -26,6 +26,11 @@ test('when a technician enters a 10-inch diameter and 12 % LEL, then the plug fi
   await expect(page.getByTestId('mud-length')).toHaveText('15 in');
   await expect(page.getByTestId('mud-balls')).toHaveText('84');
   await expect(page.getByTestId('mud-plug-caution')).toHaveText(MUD_PLUG_CAUTION);
+  // Finding 17: 10 in lies within the 6–16 in the rule was tried on, so no size caution; the bore is not known from a nominal size.
+  await expect(page.getByTestId('plug-size-caution')).toHaveCount(0);
+  await expect(page.getByTestId('paste-by-nominal')).toHaveText('62.5 lb');
+  await expect(page.getByTestId('paste-by-bore')).toContainText('Not known');
+  await expect(page.getByTestId('bentonite-weigh-note')).toContainText(BENTONITE_WEIGH_NOTE);
 
   // OSHA 29 CFR 1910.146(b): flammable gas in excess of 10 % of its LFL is hazardous.
   await page.getByLabel('Flammable gas (% LEL)').fill('12');
@@ -45,11 +50,32 @@ test('when the size is given as NPS 10 Sch 40, then the plug is worked from the 
   // ASME B36.10M: NPS 10 Sch 40 OD 10.750 in, wall 0.365 in → ID 10.020 in; 10.02³/16 = 62.88 lb.
   await expect(page.getByTestId('plug-basis')).toHaveText('inside diameter 10.020 in (NPS 10 Sch 40, ASME B36.10M)');
   await expect(page.getByTestId('mud-total')).toHaveText('62.88 lb');
+  // Finding 17: D³/16 takes the nominal size; the paste for the nominal 10 in and for the 10.020-in bore side by side.
+  await expect(page.getByTestId('paste-by-nominal')).toHaveText('62.5 lb');
+  await expect(page.getByTestId('paste-by-bore')).toHaveText('62.88 lb');
+  await expect(page.getByText('D³/16 takes D as the nominal pipe size in inches')).toBeVisible();
 
   // The line fill takes that bore: 10.02²/1029.4 bbl/ft × 1,000 ft = 97.53 bbl (field rule ID²/1029.4).
   await page.getByRole('button', { name: /Use the inside diameter 10\.020 in/ }).click();
   await page.getByLabel('Length of line').fill('1000');
   await expect(page.getByTestId('fill-bbl')).toHaveText('97.53 bbl');
+});
+
+test('finding 17: when a 2-in pipe is sized as NPS 2 XXS, then the 1.503-in bore is used, no 3-in balls are offered and the size caution shows', async ({ page }) => {
+  await openCalculator(page);
+  await page.getByLabel('NPS and schedule').check();
+  await page.getByLabel('Schedule', { exact: true }).selectOption('XXS');
+  await page.getByLabel('Nominal pipe size (NPS)').selectOption('2');
+  // ASME B36.10M: NPS 2 XXS OD 2.375 in, wall 0.436 in → bore 1.503 in.
+  await expect(page.getByTestId('plug-basis')).toHaveText('inside diameter 1.503 in (NPS 2 XXS, ASME B36.10M)');
+  // Under about 4 in of bore no 3-in balls (common practice): smaller balls or paste packed by hand.
+  await expect(page.getByTestId('mud-balls')).toHaveText('None: bore too small');
+  await expect(page.getByTestId('plug-small-bore')).toHaveText(SMALL_BORE_PLUG_ADVICE);
+  // D³/16 was tried on 6, 10 and 16 in pipe (common practice, no published source): 2 in is outside.
+  await expect(page.getByTestId('plug-size-caution')).toContainText('tried on 6, 10 and 16 in pipe');
+  // 2³/16 = 0.5 lb by nominal size; 1.503³/16 = 0.21 lb by bore.
+  await expect(page.getByTestId('paste-by-nominal')).toHaveText('0.5 lb');
+  await expect(page.getByTestId('paste-by-bore')).toHaveText('0.21 lb');
 });
 
 test('when NPS 22 is asked in Sch 40, then the server refusal shows beside the schedule (ASME B36.10M lists no Sch 40 for NPS 22)', async ({ page }) => {
@@ -80,6 +106,7 @@ test('when the tenant works in kilometres, then the plug is shown in kilograms, 
   await expect(page.getByTestId('mud-water')).toContainText('14.17 kg');
   await expect(page.getByTestId('mud-water')).toContainText('14.2 L');
   await expect(page.getByTestId('mud-length')).toHaveText('381 mm');
+  await expect(page.getByTestId('paste-by-nominal')).toHaveText('28.35 kg');
 });
 
 // The register is another feature; its answers are stood in for here so these tests hold whatever the demo data holds.

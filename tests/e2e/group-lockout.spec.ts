@@ -17,7 +17,7 @@ async function setGroupLockout(value: 'per_permit' | 'per_person') {
   }
 }
 
-test('finding GL-1: when the site locks per person, then a technician on a phone signs on to the lockbox with a personal lock and signs off again', async ({ browser }) => {
+test('finding GL-1 and issue 16 shift change: when the site locks per person, then a technician on a phone signs on to the lockbox with a personal lock, signs off again, and hands their lock over to the oncoming technician', async ({ browser }) => {
   test.setTimeout(120_000);
   await setGroupLockout('per_person');
   try {
@@ -58,6 +58,30 @@ test('finding GL-1: when the site locks per person, then a technician on a phone
     expect((await signOff.boundingBox())!.height).toBeGreaterThanOrEqual(44);
     await signOff.click();
     await expect(box).toContainText('Nobody is signed on.');
+
+    // Issue 16, shift change (OSHA 29 CFR 1910.147(f)(4)): on again, then "Hand over my lock" in one tap; the oncoming
+    // technician signs beside them and their personal lock goes on as Sam's comes off.
+    await field.fill('PL-79');
+    await signOn.click();
+    await expect(box).toContainText('PL-79');
+    const handOver = box.getByRole('button', { name: 'Hand over my lock' });
+    expect((await handOver.boundingBox())!.height).toBeGreaterThanOrEqual(44);
+    await handOver.click();
+    const form = box.getByRole('form', { name: 'Hand over my lock' });
+    await form.getByLabel('Their personal lock number', { exact: true }).fill('PL-80');
+    await form.getByLabel('Their sign-in e-mail', { exact: true }).fill('tech2@oxbow-repair.example');
+    await form.getByLabel('Their name', { exact: true }).fill('Ana Lisgar');
+    await form.getByLabel('Their password', { exact: true }).fill('holdpoint-demo');
+    await form.getByLabel('Your name', { exact: true }).fill('Sam Ferrand');
+    await form.getByLabel('Your password', { exact: true }).fill('holdpoint-demo');
+    const send = form.getByRole('button', { name: 'Hand over', exact: true });
+    for (const target of [send, form.getByLabel('Their password', { exact: true })]) expect((await target.boundingBox())!.height).toBeGreaterThanOrEqual(44);
+    await noSideScroll(page);
+    await send.click();
+    const onBox = box.getByRole('list', { name: 'People signed on' });
+    await expect(onBox).toContainText('Ana Lisgar');
+    await expect(onBox).toContainText('PL-80');
+    await expect(onBox).not.toContainText('Sam Ferrand');
     await page.context().close();
   } finally {
     await setGroupLockout('per_permit');

@@ -32,10 +32,10 @@ async function confirmDialog(page: Page, button: string, fill?: (dialog: Locator
   await expect(dialog).toHaveCount(0);
 }
 
-async function recordGasTest(page: Page, readings: { o2: string; lel: string; h2s: string; co: string }) {
+async function recordGasTest(page: Page, readings: { o2: string; lel: string; h2s: string; co: string }, where = 'Work area') {
   const form = page.getByTestId('gas-tests-section').getByRole('form', { name: 'Record a gas test' });
   await form.getByLabel('Instrument', { exact: true }).selectOption({ label: MONITOR });
-  await form.getByLabel('Where').selectOption({ label: 'Work area' });
+  await form.getByLabel('Where').selectOption({ label: where });
   await form.getByLabel('Oxygen, O₂ (% vol)').fill(readings.o2);
   await form.getByLabel('Flammable gas (% LEL)').fill(readings.lel);
   await form.getByLabel('H₂S (ppm)').fill(readings.h2s);
@@ -276,7 +276,7 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     await Promise.all([lead, control, tech, tech2, authoriser].map((p) => p.context().close()));
   });
 
-  test('journey 4: when the gas tester records a pass, work goes live; a failing reading suspends it at once; after a new pass the lead resumes', async ({ browser }) => {
+  test('journey 4: when the gas tester records a pass, work goes live; a failing reading suspends it at once; after a new pass an authoriser re-validates it with a reason and work resumes', async ({ browser }) => {
     await bumpTestedMonitor();
     const lead = await signedInPage(browser, LEAD);
     await lead.goto(permitUrl);
@@ -299,10 +299,15 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     const tester = await signedInPage(browser, TECH);
     await tester.goto(permitUrl);
     const section = tester.getByTestId('gas-tests-section');
-    let form = await recordGasTest(tester, { o2: '20.9', lel: '0', h2s: '0', co: '1' });
-    await expect(form.getByTestId('atmosphere-verdict')).toContainText('Pass');
-    await form.getByRole('button', { name: 'Record gas test' }).click();
-    await expect(form.getByRole('status').filter({ hasText: 'Last test recorded: pass' })).toBeVisible();
+    // A pass wherever the regime needs one: inside the pipe on each side of the work, and the work area.
+    let form = section.getByRole('form', { name: 'Record a gas test' });
+    for (const [i, where] of ['Inside the pipe, upstream of the plug', 'Inside the pipe, downstream of the plug', 'Work area'].entries()) {
+      form = await recordGasTest(tester, { o2: '20.9', lel: '0', h2s: '0', co: '1' }, where);
+      await expect(form.getByTestId('atmosphere-verdict')).toContainText('Pass');
+      await form.getByRole('button', { name: 'Record gas test' }).click();
+      await expect(form.getByRole('status').filter({ hasText: 'Last test recorded: pass' })).toBeVisible();
+      await expect(section.getByTestId('gas-test-row')).toHaveCount(i + 1);
+    }
 
     await lead.reload();
     await takeAction(lead, 'Start work');
@@ -325,17 +330,29 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     await expect(state(lead)).toHaveText('Suspended');
     await expect(lead.getByTestId('action-resume')).toContainText('The latest gas test failed; record a passing test first.');
     await expect(lead.getByRole('button', { name: 'Resume work', exact: true })).toBeDisabled();
+    // Issue 17: Holdpoint stopped the work, so only an authoriser's re-validation lets it resume (HSE HSG250, common practice).
+    await expect(lead.getByTestId('suspension-notice')).toContainText('Suspended by Holdpoint');
+    await expect(lead.getByTestId('suspension-notice')).toContainText('Work starts again only when an authoriser re-validates the permit and gives a reason.');
+    await expect(lead.getByTestId('action-resume')).toContainText('only an authoriser can re-validate it and let work resume');
 
-    // Vented and tested again: a pass, and the lead resumes.
+    // Vented and tested again: a pass; the lead still cannot resume, the authoriser re-validates with a reason.
     form = await recordGasTest(tester, { o2: '20.9', lel: '0', h2s: '0', co: '1' });
     await form.getByRole('button', { name: 'Record gas test' }).click();
     await expect(form.getByRole('status').filter({ hasText: 'Last test recorded: pass' })).toBeVisible();
-    await expect(section.getByTestId('gas-test-row')).toHaveCount(3);
+    await expect(section.getByTestId('gas-test-row')).toHaveCount(5);
     await lead.reload();
-    await takeAction(lead, 'Resume work');
+    await expect(lead.getByRole('button', { name: 'Resume work', exact: true })).toBeDisabled();
+    const authoriser = await signedInPage(browser, AUTHORISER);
+    await authoriser.goto(permitUrl);
+    await takeAction(authoriser, 'Resume work', async (d) => {
+      await d.getByLabel('Reason').fill('Vapour traced to an open drain, closed and capped; retest clear.');
+    });
+    await expect(state(authoriser)).toHaveText('Live work');
+    await lead.reload();
     await expect(state(lead)).toHaveText('Live work');
     await expect(lead.getByTestId('timeline')).toContainText('Resume work');
-    await Promise.all([lead, tester].map((p) => p.context().close()));
+    await expect(lead.getByTestId('timeline')).toContainText('Vapour traced to an open drain');
+    await Promise.all([lead, tester, authoriser].map((p) => p.context().close()));
   });
 });
 
@@ -387,8 +404,9 @@ test('journey 5: when the lead hands back, the isolations come off in reverse or
   await takeAction(authoriser, 'Return to service', signAs('Priya Castellan'));
   await expect(state(authoriser)).toHaveText('Returned to service');
 
-  // Closing waits for the control room.
+  // Closing waits for the control room; only the control room acknowledges (issue 17), so the authoriser is not offered it.
   await expect(authoriser.getByTestId('action-close')).toContainText('The control room has not acknowledged the return to service yet.');
+  await expect(authoriser.getByTestId('action-acknowledge_return')).toHaveCount(0);
   await control.reload();
   await takeAction(control, 'Acknowledge return to service');
   await authoriser.reload();

@@ -2,6 +2,7 @@ import { readFile } from 'node:fs/promises';
 import { expect, test, type Browser, type Page } from '@playwright/test';
 import { addDays, format } from 'date-fns';
 import { DEMO_PASSWORD, noSideScroll, shot, signedInPage, signIn } from './helpers';
+import { apiAs, ok, transition } from './api-helpers';
 
 const LEAD = 'lead@oxbow-repair.example';
 const AUTHORISER = 'authoriser@bramblecote.example';
@@ -172,7 +173,7 @@ test('when the contractor lead requests hot work and the authoriser sends it bac
   await approve.getByLabel('Your password').fill('not-my-password');
   await approve.getByLabel('Type your name as it appears: Priya Castellan').fill('Priya Castellan');
   await approve.getByRole('button', { name: 'Sign: Approve and issue' }).click();
-  await expect(approve.getByText('Re-enter your password to sign.')).toBeVisible();
+  await expect(approve.getByText('That password is wrong. Type the password you sign in with.')).toBeVisible();
   await approve.getByLabel('Your password').fill(DEMO_PASSWORD);
   await approve.getByRole('button', { name: 'Sign: Approve and issue' }).click();
   await expect(dialog(authoriser)).toHaveCount(0);
@@ -322,4 +323,37 @@ test('when someone changed the permit while it was open, then the action says so
   // Reloaded, the same step now goes through.
   await takeAction(lead, 'Send for approval');
   await expect(lead.getByTestId('permit-state')).toHaveText('Requested');
+});
+
+test('issue 17: when an authoriser changed a sent-back permit, then the permit page keeps Approve blocked for them and says why (four eyes, HSE HSG250)', async ({ browser }) => {
+  const lead = await apiAs(LEAD);
+  const authoriserApi = await apiAs(AUTHORISER);
+  try {
+    const me = await ok<{ memberships: { role: string; organisationId: string }[] }>(lead.get('/api/auth/me'));
+    const contractorOrganisationId = me.memberships.find((m) => m.role === 'contractor_lead')!.organisationId;
+    const pipes = await ok<{ items: { id: string; code: string }[] }>(lead.get('/api/pipelines?q=BM-10&pageSize=50'));
+    const now = Date.now();
+    const created = await ok<{ id: string }>(
+      lead.post('/api/permits', {
+        kinds: ['cold_work'], title: 'Four eyes: coating repair at MP 25.1', scope: 'Repair the coating over a 2 ft holiday.', pipelineId: pipes.items.find((p) => p.code === 'BM-10')!.id,
+        fromPosition: 25.1, toPosition: 25.11, methodStatement: 'Dig, clean, coat, inspect, backfill.', hazards: 'Open excavation.', ppe: ['Gloves'],
+        validFrom: new Date(now - 60_000).toISOString(), validTo: new Date(now + 8 * 3600_000).toISOString(), contractorOrganisationId,
+      }),
+      201,
+    );
+    await transition(lead, created.id, 'submit');
+    await transition(authoriserApi, created.id, 'reject', { reason: 'Say how deep the dig goes.' });
+    const { version } = await ok<{ version: number }>(authoriserApi.get(`/api/permits/${created.id}`));
+    await ok(authoriserApi.patch(`/api/permits/${created.id}`, { version, scope: 'Repair the coating over a 2 ft holiday; dig no deeper than 4 ft.' }));
+    await transition(lead, created.id, 'submit');
+
+    const authoriser = await signedInPage(browser, AUTHORISER);
+    await authoriser.goto(`/permits/${created.id}`);
+    await expect(authoriser.getByTestId('permit-state')).toHaveText('Requested');
+    await expect(authoriser.getByRole('button', { name: 'Approve and issue', exact: true })).toBeDisabled();
+    await expect(authoriser.getByTestId('action-approve')).toContainText('You wrote or changed this permit or its isolation plan, so another authoriser must approve it (four-eyes rule).');
+    await authoriser.context().close();
+  } finally {
+    await Promise.all([lead.close(), authoriserApi.close()]);
+  }
 });

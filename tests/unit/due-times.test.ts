@@ -65,9 +65,16 @@ describe('dueTimes', () => {
     expect(of(f, 'plug').dueAt).toBeNull();
   });
 
-  it('when the permit is suspended, then gas, vent and plug checks are not due (work has stopped)', () => {
+  it('finding 16.6: when the permit is suspended, then no repeat gas test is due (work has stopped), but vent and plug checks still are while the isolations are in place (common practice, no published source)', () => {
     const f = facts({ state: 'suspended' });
-    for (const kind of ['gas_test', 'vent', 'plug']) expect(of(f, kind).dueAt).toBeNull();
+    expect(of(f, 'gas_test').dueAt).toBeNull();
+    for (const kind of ['vent', 'plug']) expect(of(f, kind).dueAt).not.toBeNull();
+  });
+
+  it('finding 16.6: when the isolations are signed in place and work has not started, then vent and plug checks count from the signature; before that nothing is due', () => {
+    const signed = subMinutes(now, 20);
+    for (const kind of ['vent', 'plug']) expect(of(facts({ state: 'isolated', liveSince: null, isolatedSince: signed }), kind).dueAt).toEqual(addMinutes(signed, 60));
+    for (const kind of ['vent', 'plug']) expect(of(facts({ state: 'accepted', liveSince: null }), kind).dueAt).toBeNull();
   });
 
   it('when hot work stopped 30 minutes ago with a 60-minute watch, then the closing check is due in 30 minutes (NFPA 51B 2019: 1 hour)', () => {

@@ -56,6 +56,8 @@ function facts(state: PermitState, o: FactsOverrides = {}): PermitFacts {
     controlRoomAcknowledged: true,
     conflicts: [],
     hasExpiredFlag: state === 'suspended',
+    // The lead stopped the work: the lead or an authoriser may restart it (issue 17).
+    suspendedByKind: state === 'suspended' ? 'lead' : null,
   };
   return { ...base, ...o, isolation: { ...base.isolation, ...o.isolation }, gas: { ...base.gas, ...o.gas } };
 }
@@ -63,8 +65,10 @@ function facts(state: PermitState, o: FactsOverrides = {}): PermitFacts {
 const authoriser: ActorFacts = { userId: people.authoriser, organisationIds: ['org-operator'], roles: ['authoriser'], qualifications: [] };
 const lead: ActorFacts = { userId: people.lead, organisationIds: [ORG], roles: ['contractor_lead'], qualifications: ['hot_work_holder', 'cold_work_holder'] };
 const system: ActorFacts = { userId: '', organisationIds: [], roles: [], qualifications: [], isSystem: true };
-/** Who fires each event in the table walk: the lead accepts, Holdpoint expires, the authoriser does the rest. */
-const actorFor = (event: PermitEvent) => (event === 'accept' ? lead : event === 'expire' ? system : authoriser);
+const controlRoom: ActorFacts = { userId: 'u-control', organisationIds: ['org-operator'], roles: ['control_room'], qualifications: [] };
+/** Who fires each event in the table walk: the lead accepts and hands back, the control room acknowledges, Holdpoint expires, the authoriser does the rest. */
+const actorFor = (event: PermitEvent) =>
+  event === 'accept' || event === 'hand_back' ? lead : event === 'expire' ? system : event === 'acknowledge_return' ? controlRoom : authoriser;
 const input = { reason: 'High wind forecast this afternoon' };
 
 const refused = (r: ReturnType<typeof decide>) => {
@@ -326,7 +330,13 @@ describe.each([
 describe('hand_back', () => {
   it('when the fire watch is still running, then it says until when', () => {
     expect(refused(decide('hand_back', facts('live', { fireWatchEndsAt: at(20) }), lead, NOW))).toEqual([
-      `The fire watch runs until ${at(20).toISOString()} (20 minutes more).`,
+      'The fire watch runs until 2 Mar 2026, 14:20 UTC (20 minutes more).',
+    ]);
+  });
+
+  it('issue 17: when the fire watch is still running at a site in Texas, then the time is the site clock with its zone, never a machine time', () => {
+    expect(refused(decide('hand_back', facts('live', { fireWatchEndsAt: at(20), timeZone: 'America/Chicago' }), lead, NOW))).toEqual([
+      'The fire watch runs until 2 Mar 2026, 08:20 CST (20 minutes more).',
     ]);
   });
 
@@ -397,5 +407,32 @@ describe('events that need a reason in words, and the system-only event', () => 
 
   it('when a person (not Holdpoint) fires "expire", then it is refused', () => {
     expect(refused(decide('expire', facts('approved'), authoriser, NOW))).toEqual(['Only Holdpoint itself expires a permit, when its validity window ends.']);
+  });
+});
+
+// Issue 17, permit authority (HSE HSG250, common practice).
+describe('issue 17: authority', () => {
+  it('when an authoriser who changed the permit or its plan approves it, then it is refused (four eyes)', () => {
+    expect(refused(decide('approve', facts('requested', { editorUserIds: [people.requester, people.authoriser] }), authoriser, NOW))).toEqual([
+      'You wrote or changed this permit or its isolation plan, so another authoriser must approve it (four-eyes rule).',
+    ]);
+    expect(decide('approve', facts('requested', { editorUserIds: [people.requester] }), authoriser, NOW)).toEqual({ ok: true, to: 'approved' });
+  });
+
+  it('when anyone but the control room acknowledges the return to service, then it is refused', () => {
+    expect(refused(decide('acknowledge_return', facts('returned_to_service'), authoriser, NOW))).toEqual(['Only the control room acknowledges that the line is back in service.']);
+  });
+
+  it.each(['control_room', 'authoriser', 'system'] as const)('when the permit was suspended by %s, then the lead cannot resume it and an authoriser needs a reason', (kind) => {
+    const f = facts('suspended', { suspendedByKind: kind });
+    expect(refused(decide('resume', f, lead, NOW))[0]).toMatch(/^This permit was suspended by .*: only an authoriser can re-validate it and let work resume\.$/);
+    expect(refused(decide('resume', f, authoriser, NOW))).toEqual(['Give a reason in words: what was checked before work resumes.']);
+    expect(decide('resume', f, authoriser, NOW, { reason: 'Cause found and cleared' })).toEqual({ ok: true, to: 'live' });
+  });
+
+  it('when a lead who no longer holds the permit hands it back, then it is refused', () => {
+    expect(refused(decide('hand_back', facts('suspended', { holderUserId: people.otherLead }), lead, NOW))).toEqual([
+      'Only the lead who holds this permit now can hand it back. After a shift handover, that is the incoming lead.',
+    ]);
   });
 });

@@ -13,6 +13,7 @@ export const navItems: NavItem[] = [
   { to: '/', label: 'Overview', subject: 'Tenant' },
   { to: '/permits', label: 'Permits', subject: 'Permit' },
   { to: '/board', label: 'Live board', subject: 'Board' },
+  { to: '/certificates', label: 'Isolation certificates', subject: 'IsolationCertificate' },
   { to: '/pipelines', label: 'Pipelines', subject: 'Pipeline' },
   { to: '/locks', label: 'Locks & tags', subject: 'Lock' },
   { to: '/instruments', label: 'Instruments', subject: 'Instrument' },

@@ -18,6 +18,8 @@ const appRoutes: RouteObject[] = [
   { path: 'locks', lazy: page(() => import('@client/features/assets/pages/locks-page')) },
   { path: 'board', lazy: page(() => import('@client/features/isolations/pages/board-page')) },
   { path: 'instruments', lazy: page(() => import('@client/features/gas-tests/pages/instruments-page')) },
+  { path: 'certificates', lazy: page(() => import('@client/features/certificates/pages/certificates-page')) },
+  { path: 'certificates/:id', lazy: page(() => import('@client/features/certificates/pages/certificate-page')) },
   { path: '*', lazy: page(() => import('./routes/not-found')) },
 ];
 

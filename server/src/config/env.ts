@@ -47,6 +47,8 @@ const envSchema = z.object({
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   CLIENT_DIST: z.string().default('dist/client'),
   WORKERS: z.enum(['on', 'off']).default('on'),
+  // Server processes sharing the port (node:cluster): "auto" is one per core; 1 runs no cluster.
+  SERVER_PROCESSES: z.union([z.literal('auto'), z.coerce.number().int().min(1).max(64)]).default(1),
   // The live board reuses its answer while the tenant's data is unchanged (modules/isolations/board-cache.ts).
   BOARD_CACHE: z.enum(['on', 'off']).default('on'),
   TRUST_PROXY: trustProxySchema,

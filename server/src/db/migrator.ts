@@ -1,16 +1,27 @@
 import { Umzug, SequelizeStorage } from 'umzug';
 import type { QueryInterface, Sequelize } from 'sequelize';
-import { fileURLToPath } from 'node:url';
+import { fileURLToPath, pathToFileURL } from 'node:url';
 import { dirname, join } from 'node:path';
 
 const here = dirname(fileURLToPath(import.meta.url));
+// Compiled (dist/server, see scripts/build-server.mjs) the migrations are JavaScript beside the bundle,
+// recorded under their TypeScript names so a database migrated either way stays migrated.
+const compiled = !fileURLToPath(import.meta.url).endsWith('.ts');
 
 export type MigrationContext = { queryInterface: QueryInterface; sequelize: Sequelize };
 export type Migration = (params: { context: MigrationContext }) => Promise<void>;
 
 export function createMigrator(sequelize: Sequelize) {
   return new Umzug<MigrationContext>({
-    migrations: { glob: ['migrations/*.ts', { cwd: here }] },
+    migrations: compiled
+      ? {
+          glob: ['migrations/*.js', { cwd: here }],
+          resolve: ({ name, path }) => {
+            const load = () => import(pathToFileURL(path!).href) as Promise<{ up: Migration; down: Migration }>;
+            return { name: name.replace(/\.js$/, '.ts'), up: async (params) => (await load()).up(params), down: async (params) => (await load()).down(params) };
+          },
+        }
+      : { glob: ['migrations/*.ts', { cwd: here }] },
     context: { queryInterface: sequelize.getQueryInterface(), sequelize },
     storage: new SequelizeStorage({ sequelize, tableName: 'schema_migrations' }),
     logger: undefined,

@@ -1,4 +1,4 @@
-import { Sequelize, type Transaction } from 'sequelize';
+import { Sequelize, type Transaction, type TransactionOptions } from 'sequelize';
 import pg from 'pg';
 import { AsyncLocalStorage } from 'node:async_hooks';
 import type { Logger } from 'pino';
@@ -26,7 +26,27 @@ export function createSequelize(databaseUrl: string, logger?: Logger): Sequelize
     define: { underscored: true, timestamps: true },
     retry: { max: 0 },
   });
+  beginWithTenant(sequelize);
   return sequelize;
+}
+
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+/**
+ * A tenant transaction starts with its tenant already set, in one round trip: "START TRANSACTION;
+ * SELECT set_config(…)" goes as one simple query. The id is written into the text, so only a
+ * well-formed uuid is accepted.
+ */
+function beginWithTenant(sequelize: Sequelize) {
+  const generator = sequelize.getQueryInterface().queryGenerator as { startTransactionQuery: (t: Transaction) => string };
+  const start = generator.startTransactionQuery.bind(generator);
+  generator.startTransactionQuery = (t) => {
+    const sql = start(t);
+    const tenantId = (t as unknown as { options?: { tenantId?: unknown } }).options?.tenantId;
+    if (tenantId === undefined || (t as unknown as { parent?: unknown }).parent) return sql;
+    if (typeof tenantId !== 'string' || !UUID.test(tenantId)) throw new Error('withTenant needs a tenant id (a uuid)');
+    return `${sql} SELECT set_config('app.tenant_id', '${tenantId.toLowerCase()}', true);`;
+  };
 }
 
 /**
@@ -45,9 +65,9 @@ export async function withTenant<T>(sequelize: Sequelize, tenantId: string, fn: 
     }
     return fn(open);
   }
-  return sequelize.transaction(async (t) => {
+  // app.tenant_id is set by the transaction's first statement (beginWithTenant above).
+  return sequelize.transaction({ tenantId } as TransactionOptions, async (t) => {
     store.getStore()?.set('tenantId', tenantId);
-    await sequelize.query(`SELECT set_config('app.tenant_id', :tenantId, true)`, { replacements: { tenantId }, transaction: t });
     return fn(t);
   });
 }

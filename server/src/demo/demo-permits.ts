@@ -15,6 +15,8 @@ import { acknowledgeStep, applyStep, removeStep, verifyStep } from '../modules/i
 import { listSteps } from '../modules/isolations/isolation-queries';
 import { endProving, startProving } from '../modules/isolations/isolation-proving.service';
 import { loadTenantSettings } from '../modules/tenants/tenant-settings';
+import { recordCheck } from '../modules/gas-tests/checks.service';
+import { linkPermit, markLongTerm } from '../modules/certificates/certificates.service';
 import { DEMO_PASSWORD } from './demo-people';
 import type { DemoSeeder } from './registry';
 
@@ -74,7 +76,8 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   let nextLock = 0;
 
   const request = async (input: Record<string, unknown>, start: Date, hours: number, who = lead) => {
-    at(new Date(start.getTime() - 2 * HOUR));
+    // Asked for two hours before the start; a permit for tomorrow is asked for at the moment already set, never in the future.
+    if (start.getTime() - 2 * HOUR <= now.getTime()) at(new Date(start.getTime() - 2 * HOUR));
     const p = await createPermit(deps, who, {
       scope: '', methodStatement: '', hazards: '', ppe: ['FR coveralls', 'Hard hat', 'Safety glasses', 'Gloves'], fireWatchMinutes: 60, contractorOrganisationId: oxbow,
       validFrom: start.toISOString(), validTo: new Date(start.getTime() + hours * HOUR).toISOString(), ...input,
@@ -127,6 +130,18 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
     );
     return assessment.verdict;
   };
+  /** A passing check recorded by the technician (plugs re-checked on the day work starts; the fire watch's closing check). */
+  const passingCheck = async (id: string, when: Date, kind: 'plug' | 'fire_watch') => {
+    await sequelize.query(
+      `INSERT INTO permit_checks (tenant_id, permit_id, kind, checked_at, ok, observation, recorded_by, created_at) VALUES (:tenantId, :id, :kind, :when, true, CAST(:observation AS jsonb), :tester, :when)`,
+      { replacements: { tenantId, id, kind, when, tester: tech.user.id, observation: JSON.stringify(kind === 'plug' ? { face: 'intact' } : { observation: 'clear' }) } },
+    );
+  };
+  /** Before work starts (shared/permit/stop-work.ts): the plugs checked today and a pass inside the pipe on each side and at the work area. */
+  const readyToStart = async (id: string, when: Date) => {
+    await passingCheck(id, when, 'plug');
+    for (const place of ['inside_pipe_upstream', 'inside_pipe_downstream', 'work_area']) await gasTest(id, when, clean, place);
+  };
   const confirmChecklist = async (id: string, who: CallerContext, list: 'checklist' | 'walkdown') => {
     const p = (await findPermit(sequelize, tenantId, id))!;
     for (const item of p[list]) await updateChecklist(deps, who, id, list, item.key, true);
@@ -144,11 +159,21 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   let t = await proveAndSign(done, await isolate(done, new Date(weekAgo.getTime() + 10 * MIN)));
   at(t);
   await confirmChecklist(done, lead, 'checklist');
-  await gasTest(done, t, clean, 'inside_pipe_upstream');
+  await readyToStart(done, t);
   await move(lead, done, 'start_work');
   for (let k = 1; k <= 8; k++) await gasTest(done, new Date(t.getTime() + k * 30 * MIN), clean);
+  // The crew checks the vents and plugs every half hour while the sleeve is welded, each check in the audit trail.
+  for (let k = 1; k <= 8; k++) {
+    for (const step of (await listSteps(sequelize, tenantId, done)).filter((s) => s.kind === 'vent' || s.kind === 'plug')) {
+      const checkedAt = new Date(t.getTime() + k * 30 * MIN - 5 * MIN);
+      at(checkedAt);
+      const common = { checkedAt: checkedAt.toISOString(), isolationStepId: step.id };
+      await recordCheck(deps, tech, done, step.kind === 'vent' ? { kind: 'vent', ...common, vapourAwayFromWork: true, pressureBuilding: false } : { kind: 'plug', ...common, face: 'intact' });
+    }
+  }
   at(new Date(t.getTime() + 4 * HOUR));
   await recordHotWorkStopped(deps, lead, done);
+  await passingCheck(done, new Date(t.getTime() + 5 * HOUR + 2 * MIN), 'fire_watch');
   at(new Date(t.getTime() + 5 * HOUR + 5 * MIN));
   await move(lead, done, 'hand_back');
   t = new Date(t.getTime() + 5 * HOUR + 10 * MIN);
@@ -172,7 +197,7 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   t = await proveAndSign(live, await isolate(live, liveStart));
   at(t);
   await confirmChecklist(live, lead, 'checklist');
-  await gasTest(live, t, clean, 'inside_pipe_downstream');
+  await readyToStart(live, t);
   await move(lead, live, 'start_work');
   const lastTest = now.getTime() - 42 * MIN;
   for (let when = t.getTime() + 30 * MIN; when <= lastTest; when += 30 * MIN) await gasTest(live, new Date(when), { ...clean, coPpm: 2 });
@@ -206,7 +231,7 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   t = await proveAndSign(susp, await isolate(susp, suspStart));
   at(t);
   await confirmChecklist(susp, lead, 'checklist');
-  await gasTest(susp, t, clean);
+  await readyToStart(susp, t);
   await move(lead, susp, 'start_work');
   const failAt = new Date(now.getTime() - 35 * MIN);
   at(failAt);
@@ -222,6 +247,21 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   at(new Date(now.getTime() - 30 * MIN));
   const requested = await request({ kinds: ['cold_work'], title: 'Replace vent valve at CR-VT-253', jobReference: 'BM-DEMO-2530', pipelineId: bm10.id, fromPosition: 25.3, toPosition: 25.3, hazards: 'Trapped pressure at the vent.' }, new Date(now.getTime() + 26 * HOUR), 8);
   await move(lead, requested, 'submit');
+
+  // 7. Isolation certificates (HSE HSG253, HSG250): a coating inspection inside the live cut-out's isolated section relies on its
+  //    certificate instead of isolating again, so one certificate is shared by two permits; and the coupon change's isolation
+  //    is kept long-term until the replacement fitting arrives, its first re-check due in a week.
+  const certificateOf = async (permitId: string) =>
+    (await sequelize.query<{ id: string }>(`SELECT certificate_id AS id FROM certificate_permits WHERE tenant_id = :tenantId AND permit_id = :permitId AND released_at IS NULL`, {
+      replacements: { tenantId, permitId },
+      type: QueryTypes.SELECT,
+    }))[0].id;
+  at(new Date(now.getTime() - 20 * MIN));
+  const inside = await request({ kinds: ['cold_work'], title: 'Inspect and recoat the line at MP 18.4', jobReference: 'BM-DEMO-1840', pipelineId: bm10.id, fromPosition: 18.4, toPosition: 18.42, hazards: 'Residual product in the isolated section.' }, new Date(now.getTime() + 3 * HOUR), 8);
+  await linkPermit(deps, lead, inside, { certificateId: await certificateOf(live) });
+  await move(lead, inside, 'submit');
+  at(new Date(now.getTime() - 10 * MIN));
+  await markLongTerm(deps, authoriser2, await certificateOf(shared), { reason: 'BM-10 stays isolated between CR-BV-098 and CR-BV-149 until the replacement coupon fitting arrives.' });
 
   // Demo history should not fill the mailbox on first start.
   await sequelize.query(`DELETE FROM mail_outbox WHERE status = 'pending' AND tenant_id = :tenantId`, { replacements: { tenantId } });

@@ -11,6 +11,8 @@ export interface IgnoredLimit {
 
 type LimitChange = { min?: number; max?: number };
 
+const UNEXPLAINED_RAISE = 'raised above 0 %LEL without a stated reason (hotWorkLelReason), so 0 %LEL stays';
+
 const limitShapes = tenantAtmosphereSettingsSchema.shape.atmosphereLimits.unwrap().shape;
 const LIMIT_KEYS = Object.keys(limitShapes) as LimitKey[];
 
@@ -32,9 +34,19 @@ export function limitsFromSettings(settings: unknown): { limits: AtmosphereLimit
     if (parsed.success && parsed.data) changes.push([key, parsed.data]);
     else ignored.push({ key, reason: 'not a limit of the form { min?, max? } in numbers' });
   }
+  // The hot-work limit is raised above its 0 %LEL default only with a stated reason, which travels with the limit as its source.
+  const lelReason = typeof raw.hotWorkLelReason === 'string' ? raw.hotWorkLelReason.trim() : '';
+  const hotWorkSource = lelReason ? `${TENANT_LIMIT_SOURCE}, reason given: ${lelReason}` : TENANT_LIMIT_SOURCE;
+  const unexplained = (max: number | undefined) => max !== undefined && max > DEFAULT_ATMOSPHERE_LIMITS.hotWorkLel.max && !lelReason;
+  const stored0 = changes.find(([key]) => key === 'hotWorkLel');
+  if (stored0 && unexplained(stored0[1].max)) {
+    changes.splice(changes.indexOf(stored0), 1);
+    ignored.push({ key: 'hotWorkLel', reason: UNEXPLAINED_RAISE });
+  }
   if (raw.hotWorkLelPct !== undefined) {
     const parsed = tenantAtmosphereSettingsSchema.shape.hotWorkLelPct.safeParse(raw.hotWorkLelPct);
     if (!parsed.success || parsed.data === undefined) ignored.push({ key: 'hotWorkLel', reason: 'hotWorkLelPct is not a number' });
+    else if (unexplained(parsed.data)) ignored.push({ key: 'hotWorkLel', reason: UNEXPLAINED_RAISE });
     else {
       // Two places may set the hot-work limit; the stricter one counts.
       const other = changes.find(([key]) => key === 'hotWorkLel');
@@ -46,7 +58,7 @@ export function limitsFromSettings(settings: unknown): { limits: AtmosphereLimit
   let limits = tightenLimits(DEFAULT_ATMOSPHERE_LIMITS, {});
   for (const [key, change] of changes) {
     try {
-      limits = tightenLimits(limits, { [key]: change, source: TENANT_LIMIT_SOURCE });
+      limits = tightenLimits(limits, { [key]: change, source: key === 'hotWorkLel' ? hotWorkSource : TENANT_LIMIT_SOURCE });
     } catch (err) {
       if (!(err instanceof CalcInputError)) throw err;
       ignored.push({ key, reason: err.message });

@@ -4,12 +4,23 @@ import type { ErrorDetail } from '@shared/errors/error-codes';
 import { isStorableText, unstorableTextMessage } from '@shared/schemas/common.schema';
 import { AppError } from '../errors/app-error';
 
+/**
+ * zod's own words for a value outside a list name the codes ('Invalid option: expected one of
+ * "removed"|"displaced_by_product"'), which mean nothing to a site worker. A message the schema
+ * wrote itself is kept; zod's default for a choice is replaced here, the one place issues become messages.
+ */
+function plainMessage(issue: core.$ZodIssue): string {
+  const zodDefault = /^Invalid (option|input)\b/.test(issue.message);
+  if (zodDefault && (issue.code === 'invalid_value' || issue.code === 'invalid_union')) return 'Choose one of the options offered.';
+  return issue.message;
+}
+
 /** One detail per field path (the first problem found); a field the schema does not have is named on its own path. */
 export function zodDetails(err: ZodError): ErrorDetail[] {
   const details = err.issues.flatMap((i) =>
     i.code === 'unrecognized_keys'
       ? i.keys.map((key) => ({ path: [...i.path, key].map(String).join('.'), message: 'This field is not accepted here; leave it out.' }))
-      : [{ path: i.path.map(String).join('.'), message: i.message }],
+      : [{ path: i.path.map(String).join('.'), message: plainMessage(i) }],
   );
   return details.filter((d, i) => details.findIndex((other) => other.path === d.path) === i);
 }

@@ -9,6 +9,7 @@ import { createAssetsRouter } from './assets/assets.routes';
 import { createAttachmentsRouter } from './attachments/attachments.routes';
 import { createGasTestsRouter } from './gas-tests/gas-tests.routes';
 import { createCrewRouter } from './crew/crew.routes';
+import { createCertificatesRouter } from './certificates/certificates.routes';
 
 /** Every feature's router, mounted under /api after sign-in checks. Add one line per feature. */
-export const featureRouters: Array<(deps: AppDeps) => Router> = [createAdminRouter, createCalcRouter, createPermitsRouter, createIsolationsRouter, createAuditRouter, createAssetsRouter, createAttachmentsRouter, createGasTestsRouter, createCrewRouter];
+export const featureRouters: Array<(deps: AppDeps) => Router> = [createAdminRouter, createCalcRouter, createPermitsRouter, createIsolationsRouter, createAuditRouter, createAssetsRouter, createAttachmentsRouter, createGasTestsRouter, createCrewRouter, createCertificatesRouter];

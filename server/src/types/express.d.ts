@@ -1,5 +1,6 @@
 import 'express-session';
 import type { Actor, AppAbility } from '@shared/abilities/define-ability';
+import type { SessionAccess } from '../lib/access-cache';
 
 declare module 'express-session' {
   interface SessionData {
@@ -16,6 +17,8 @@ declare global {
       actor?: Actor;
       ability?: AppAbility;
       user?: { id: string; email: string; name: string };
+      /** The signed-in person's access as kept for this session (set by authenticate). */
+      access?: SessionAccess;
     }
   }
 }

@@ -1,12 +1,25 @@
 import { describe, expect, it } from 'vitest';
 import {
+  AS_BUILT_MAX_LB,
+  AS_BUILT_MAX_LENGTH_IN,
+  BENTONITE_WEIGH_NOTE,
   CalcInputError,
+  D3_16_DIAMETER_NOTE,
+  D3_16_TESTED_SIZES_IN,
   IN3_PER_US_GAL,
+  MAX_PIPE_DIAMETER_IN,
+  MIN_PIPE_DIAMETER_IN,
   MUD_PLUG_CAUTION,
+  SMALL_BORE_PLUG_ADVICE,
   checkAsBuiltPlug,
   mudPlug,
+  outsideTestedSizes,
+  pipeDimensions,
+  plugUnits,
   plugVolumeIn3,
+  testedSizesCaution,
 } from '@shared/calc';
+import { asBuiltPlugSchema } from '@shared/schemas/isolation.schema';
 
 function calcError(run: () => unknown): CalcInputError {
   try {
@@ -73,8 +86,8 @@ describe('mudPlug (common practice, no published source)', () => {
 
   it('when balls are counted, then their total volume just covers the plug volume', () => {
     const ballIn3 = (4 / 3) * Math.PI * 1.5 ** 3;
-    for (const d of [2, 4, 6, 8, 10, 12, 16, 20, 24, 30, 36]) {
-      const { mudBalls } = mudPlug({ diameterIn: d });
+    for (const d of [4, 6, 8, 10, 12, 16, 20, 24, 30, 36]) {
+      const mudBalls = mudPlug({ diameterIn: d }).mudBalls!;
       const volume = plugVolumeIn3(d);
       expect(mudBalls * ballIn3).toBeGreaterThanOrEqual(volume - 1e-9);
       expect((mudBalls - 1) * ballIn3).toBeLessThan(volume);
@@ -207,5 +220,80 @@ describe('MUD_PLUG_CAUTION', () => {
     expect(MUD_PLUG_CAUTION).toMatch(/vapour barrier, not a positive isolation/);
     expect(MUD_PLUG_CAUTION).toMatch(/gas testing remains the acceptance check/);
     expect(MUD_PLUG_CAUTION).toMatch(/operator's procedure/);
+  });
+});
+
+// Finding 17: which diameter the rule takes, where it was tried, small bores, why the bentonite is
+// weighed and an as-built cap that covers every diameter. All common practice, no published source.
+describe('finding 17: D³/16 basis, tried sizes and small bores (common practice, no published source)', () => {
+  it('when the rule is explained, then it says D is the nominal size and the bore is shown beside it', () => {
+    expect(D3_16_DIAMETER_NOTE).toMatch(/nominal pipe size in inches/);
+    expect(D3_16_DIAMETER_NOTE).toMatch(/bore/);
+  });
+
+  it('when NPS 10 Sch 40 is sized by nominal size and by bore, then 62.5 lb against 62.88 lb (10.020-in bore, ASME B36.10M)', () => {
+    const bore = pipeDimensions(10, '40').idIn;
+    expect(mudPlug({ diameterIn: 10 }).mudLb).toBeCloseTo(62.5, 10);
+    expect(mudPlug({ diameterIn: bore }).mudLb).toBeCloseTo(10.02 ** 3 / 16, 10);
+    expect(mudPlug({ diameterIn: bore }).mudLb).toBeCloseTo(62.88, 2);
+  });
+
+  it('when the pipe is 6, 10 or 16 in, or between, then there is no caution; outside 6–16 in there is one naming the tried sizes', () => {
+    expect(D3_16_TESTED_SIZES_IN).toEqual([6, 10, 16]);
+    for (const d of [6, 8, 10, 12, 16]) {
+      expect(outsideTestedSizes(d)).toBe(false);
+      expect(testedSizesCaution(d)).toBeNull();
+    }
+    for (const d of [2, 4, 5.9, 16.1, 24, 48]) {
+      expect(outsideTestedSizes(d)).toBe(true);
+      expect(testedSizesCaution(d)).toMatch(/tried on 6, 10 and 16 in pipe \(common practice, no published source\)/);
+    }
+  });
+
+  it('when the bore is under about 4 in, then no 3-in balls are offered and the advice says what to do instead', () => {
+    for (const d of [0.5, 1, 2, 3, 3.068, 3.99]) expect(mudPlug({ diameterIn: d }).mudBalls).toBeNull();
+    expect(mudPlug({ diameterIn: 4 }).mudBalls).toBe(6);
+    expect(SMALL_BORE_PLUG_ADVICE).toMatch(/smaller balls/);
+    expect(SMALL_BORE_PLUG_ADVICE).toMatch(/by hand/);
+    expect(SMALL_BORE_PLUG_ADVICE).toMatch(/common practice/);
+  });
+
+  it('when the crew is told why the bentonite is weighed, then the note gives the about 20 % swing of the powder', () => {
+    expect(BENTONITE_WEIGH_NOTE).toMatch(/Weigh the bentonite/);
+    expect(BENTONITE_WEIGH_NOTE).toMatch(/about 20 %/);
+  });
+
+  it('when the largest diameter any calculation accepts is sized, then the as-built cap still takes its heaviest paste and its length', () => {
+    const biggest = mudPlug({ diameterIn: MAX_PIPE_DIAMETER_IN, waterFraction: 0.6 });
+    // 60³/16 = 13,500 lb of paste; the band tops out at 14,850 lb; the cap is twice that.
+    expect(biggest.mudLbRange[1]).toBeCloseTo(14850, 6);
+    expect(AS_BUILT_MAX_LB).toBeCloseTo(29700, 6);
+    expect(AS_BUILT_MAX_LB).toBeGreaterThanOrEqual(biggest.mudLbRange[1]);
+    expect(AS_BUILT_MAX_LENGTH_IN).toBeGreaterThanOrEqual(biggest.plugLengthIn);
+    const heaviest = { bentoniteLb: biggest.mudLbRange[1] * 0.5, waterLb: biggest.mudLbRange[1] * 0.6, lengthIn: biggest.plugLengthIn };
+    expect(asBuiltPlugSchema.safeParse(heaviest).success).toBe(true);
+    expect(asBuiltPlugSchema.safeParse({ ...heaviest, bentoniteLb: AS_BUILT_MAX_LB + 1 }).success).toBe(false);
+    // And the smallest: still a positive weight, never refused for being small.
+    const smallest = mudPlug({ diameterIn: MIN_PIPE_DIAMETER_IN });
+    expect(asBuiltPlugSchema.safeParse({ bentoniteLb: smallest.bentoniteLb, waterLb: smallest.waterLb, lengthIn: smallest.plugLengthIn }).success).toBe(true);
+  });
+});
+
+// 1 lb = 0.45359237 kg and 1 US gal = 3.785411784 L (exact definitions); water 8.33 lb per US gallon.
+describe('finding 17: plug figures in the tenant\'s units', () => {
+  it('when the tenant works in kilometres, then a 10-in plug\'s 31.25 lb of water reads 14.17 kg (14.2 L) and typed kg are kept as lb', () => {
+    const u = plugUnits(true);
+    expect(u.massUnit).toBe('kg');
+    expect(u.mass(31.25)).toBe('14.17 kg');
+    expect(u.water(31.25)).toBe('14.17 kg (14.2 L)');
+    expect(u.length(15)).toBe('381 mm (15 in)');
+    expect(u.toLb(14.17475)).toBeCloseTo(31.25, 4);
+  });
+
+  it('when the tenant works in miles, then the same water reads 31.3 lb (3.75 US gal) and typed lb are kept as typed', () => {
+    const u = plugUnits(false);
+    expect(u.massUnit).toBe('lb');
+    expect(u.water(31.25)).toBe('31.3 lb (3.75 US gal)');
+    expect(u.toLb(31.25)).toBe(31.25);
   });
 });

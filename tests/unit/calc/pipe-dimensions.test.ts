@@ -48,16 +48,27 @@ describe('pipeDimensions (ASME B36.10M-2004)', () => {
   });
 
   it('when the schedule is unknown, then it is refused with the choices', () => {
-    const error = calcError(() => pipeDimensions(10, '160' as never));
+    const error = calcError(() => pipeDimensions(10, '5' as never));
     expect(error.field).toBe('schedule');
-    expect(error.message).toMatch(/STD, 40, XS or 80/);
+    expect(error.message).toMatch(/not one ASME B36\.10M lists; choose Sch 10, Sch 20, Sch 30, STD, Sch 40, .* Sch 160, XXS/);
+  });
+
+  it('finding 17: when NPS 10 Sch 160 or XXS is asked for, then B36.10M walls 1.125 and 1.000 in give bores 8.500 and 8.750 in', () => {
+    expect(pipeDimensions(10, '160')).toEqual({ odIn: 10.75, wallIn: 1.125, idIn: expect.closeTo(8.5, 12) });
+    expect(pipeDimensions(10, 'XXS')).toEqual({ odIn: 10.75, wallIn: 1, idIn: expect.closeTo(8.75, 12) });
+    expect(pipeDimensions(10, 160)).toEqual(pipeDimensions(10, '160'));
+  });
+
+  it('finding 17: when the smallest and largest sizes are asked for, then NPS 1/8 Sch 10 (OD 0.405, wall 0.049) and NPS 48 XS (wall 0.500) are found', () => {
+    expect(pipeDimensions(0.125, '10')).toEqual({ odIn: 0.405, wallIn: 0.049, idIn: expect.closeTo(0.307, 12) });
+    expect(pipeDimensions(48, 'XS')).toEqual({ odIn: 48, wallIn: 0.5, idIn: expect.closeTo(47, 12) });
   });
 
   it('when B36.10M lists no wall for that size and schedule, then it says so and offers the ones it has', () => {
     const error = calcError(() => pipeDimensions(22, '40'));
     expect(error.field).toBe('schedule');
     expect(error.message).toBe(
-      'Sch 40 is not listed for NPS 22 in ASME B36.10M; for this size choose STD, XS, Sch 80, or enter the measured inside diameter.',
+      'Sch 40 is not listed for NPS 22 in ASME B36.10M; for this size choose Sch 10, Sch 20, Sch 30, STD, Sch 60, XS, Sch 80, Sch 100, Sch 120, Sch 140, Sch 160, or enter the measured inside diameter.',
     );
     expect(calcError(() => pipeDimensions(36, '80')).message).toMatch(/Sch 80 is not listed for NPS 36/);
   });
@@ -68,26 +79,26 @@ describe('pipeDimensions (ASME B36.10M-2004)', () => {
 });
 
 describe('sizes for pickers', () => {
-  it('when STD or XS is chosen, then all 27 sizes from NPS 1/2 to 36 are offered', () => {
-    expect(PIPE_SIZES_BY_SCHEDULE.STD).toHaveLength(27);
+  it('when STD or XS is chosen, then all 36 sizes from NPS 1/8 to 48 are offered', () => {
+    expect(PIPE_SIZES_BY_SCHEDULE.STD).toHaveLength(36);
     expect(PIPE_SIZES_BY_SCHEDULE.XS).toEqual(PIPE_SIZES_BY_SCHEDULE.STD);
   });
 
   it('when Sch 40 is chosen, then NPS 22, 26, 28 and 30 are not offered (none listed in B36.10M)', () => {
     const sizes = PIPE_SIZES_BY_SCHEDULE['40'];
     for (const missing of [22, 26, 28, 30]) expect(sizes).not.toContain(missing);
-    expect(sizes).toHaveLength(23);
+    expect(sizes).toHaveLength(26);
     expect(sizes.at(-1)).toBe(36);
   });
 
   it('when Sch 80 is chosen, then sizes stop at NPS 24 (B36.10M lists none larger)', () => {
-    expect(PIPE_SIZES_BY_SCHEDULE['80']).toHaveLength(21);
+    expect(PIPE_SIZES_BY_SCHEDULE['80']).toHaveLength(24);
     expect(PIPE_SIZES_BY_SCHEDULE['80'].at(-1)).toBe(24);
   });
 
   it('when options are listed, then each carries its label and the same dimensions as pipeDimensions', () => {
     const options = pipeSizeOptions('XS');
-    expect(options[3]).toMatchObject({ nps: 1.25, label: '1 1/4', schedule: 'XS' });
+    expect(options[6]).toMatchObject({ nps: 1.25, label: '1 1/4', schedule: 'XS' });
     for (const option of options) {
       expect(pipeDimensions(option.nps, 'XS')).toEqual({ odIn: option.odIn, wallIn: option.wallIn, idIn: option.idIn });
     }

@@ -1,10 +1,11 @@
 import { execFileSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
-import { MM_PER_IN, PIPE_SCHEDULES, PIPE_TABLE, type PipeSchedule } from '@shared/calc';
+import { B36_SCHEDULES, MM_PER_IN, PIPE_TABLE, type B36Schedule } from '@shared/calc';
 
-// Standard NPS sizes 1/2 through 36 in ASME B36.10M.
+// Standard NPS sizes 1/8 through 48 in ASME B36.10M-2004, Table 1.
 const STANDARD_SIZES = [
-  0.5, 0.75, 1, 1.25, 1.5, 2, 2.5, 3, 3.5, 4, 5, 6, 8, 10, 12, 14, 16, 18, 20, 22, 24, 26, 28, 30, 32, 34, 36,
+  0.125, 0.25, 0.375, 0.5, 0.75, 1, 1.25, 1.5, 2, 2.5, 3, 3.5, 4, 5, 6, 8, 10, 12, 14, 16, 18, 20, 22, 24, 26, 28, 30, 32,
+  34, 36, 38, 40, 42, 44, 46, 48,
 ];
 
 function parseLabel(label: string): number {
@@ -15,8 +16,12 @@ function parseLabel(label: string): number {
 }
 
 describe('pipe table completeness (ASME B36.10M-2004)', () => {
-  it('when the table is read, then it holds every standard size from NPS 1/2 to 36, in order, once', () => {
+  it('finding 17: when the table is read, then it holds every standard size from NPS 1/8 to 48, in order, once', () => {
     expect(PIPE_TABLE.map((row) => row.nps)).toEqual(STANDARD_SIZES);
+  });
+
+  it('finding 17: when the schedules are listed, then they are every one B36.10M lists, thinnest first', () => {
+    expect(B36_SCHEDULES).toEqual(['10', '20', '30', 'STD', '40', '60', 'XS', '80', '100', '120', '140', '160', 'XXS']);
   });
 
   it('when a size is labelled, then the label reads as the same number ("1 1/4" is 1.25)', () => {
@@ -30,18 +35,19 @@ describe('pipe table completeness (ASME B36.10M-2004)', () => {
     }
   });
 
-  it('when walls are compared, then each is positive and under the radius, XS ≥ STD and Sch 80 ≥ Sch 40', () => {
+  it('when numbered schedules are compared on one size, then each wall is positive, under the radius and thicker than the one before', () => {
+    const numbered = B36_SCHEDULES.filter((s) => /^\d+$/.test(s));
     for (const row of PIPE_TABLE) {
-      for (const schedule of PIPE_SCHEDULES) {
+      for (const schedule of B36_SCHEDULES) {
         const wall = row.wallIn[schedule];
         if (wall === undefined) continue;
         expect(wall).toBeGreaterThan(0);
         expect(wall).toBeLessThan(row.odIn / 2);
       }
+      const walls = numbered.map((s) => row.wallIn[s]).filter((w): w is number => w !== undefined);
+      expect(walls, `NPS ${row.label}`).toEqual([...walls].sort((a, b) => a - b));
       expect(row.wallIn.XS!).toBeGreaterThanOrEqual(row.wallIn.STD!);
-      if (row.wallIn['80'] !== undefined && row.wallIn['40'] !== undefined) {
-        expect(row.wallIn['80']).toBeGreaterThanOrEqual(row.wallIn['40']);
-      }
+      if (row.wallIn.XXS !== undefined) expect(row.wallIn.XXS).toBeGreaterThan(row.wallIn.XS!);
     }
   });
 
@@ -50,15 +56,23 @@ describe('pipe table completeness (ASME B36.10M-2004)', () => {
   });
 });
 
-// Independent copy: Debian's python3-fluids, fluids.piping.nearest_pipe, whose tables cite
-// ASME B36.10M-2004 and hold millimetres. Its outside diameters are rounded to 0.1 mm for small
-// sizes and to whole millimetres for larger ones (NPS 10: 273 mm for 273.05), hence the 0.5 mm
-// tolerance on OD. Its walls are the metric columns at 0.01 mm and so agree with ours to
-// 0.005 mm; holding walls to 0.01 mm still catches a wrong last digit (0.001 in = 0.0254 mm).
-// The inside diameter inherits the OD rounding, hence 0.5 mm there too.
+// Independent copy: Debian's python3-fluids, whose schedule tables (fluids.piping, read through
+// nearest_pipe) cite ASME B36.10M-2004 and hold millimetres. The answer is worked out here by
+// running python3, never copied in.
+//
+// Where fluids and B36.10M differ, the table follows B36.10M's inch columns (pipe is ordered and
+// measured in inches here and the calculations work in inches):
+// - outside diameters: fluids rounds them to 0.1 mm or to whole millimetres (NPS 10: 273 mm for
+//   10.750 in = 273.05 mm; NPS 26: 660 mm for 660.4 mm), hence 0.5 mm on OD, and on ID, which
+//   inherits the rounding;
+// - walls: fluids gives the metric column at 0.01 mm, so it agrees with inch × 25.4 to 0.005 mm,
+//   except NPS 1 1/2 XXS, 10.15 mm for 0.400 in (10.16 mm); 0.01 mm still catches a wrong last
+//   digit of an inch figure (0.001 in = 0.0254 mm);
+// - fluids also holds a Sch 5 table (the stainless 5S walls of B36.19M); B36.10M lists no Sch 5,
+//   so neither does the table.
 interface FluidsAnswer {
   nps: number;
-  schedule: PipeSchedule;
+  schedule: B36Schedule;
   listed: boolean;
   NPS?: number;
   Di?: number;
@@ -84,11 +98,11 @@ print(json.dumps(answers))
 let fluidsAnswers: FluidsAnswer[] | undefined;
 let fluidsFailure: Error | undefined;
 
-// One interpreter run for all 108 size/schedule pairs; both tests below share its answer or its failure.
+// One interpreter run for all 468 size/schedule pairs; the tests below share its answer or its failure.
 function askFluids(): FluidsAnswer[] {
   if (fluidsAnswers) return fluidsAnswers;
   if (fluidsFailure) throw fluidsFailure;
-  const pairs = STANDARD_SIZES.flatMap((nps) => PIPE_SCHEDULES.map((schedule) => [nps, schedule]));
+  const pairs = STANDARD_SIZES.flatMap((nps) => B36_SCHEDULES.map((schedule) => [nps, schedule]));
   let output: string;
   try {
     output = execFileSync('/usr/bin/python3', ['-c', FLUIDS_SCRIPT], {
@@ -108,11 +122,11 @@ function askFluids(): FluidsAnswer[] {
 }
 
 describe('pipe table against python3-fluids (independent copy of ASME B36.10M-2004)', () => {
-  it('when every row and schedule is compared, then OD and ID are within 0.5 mm and wall within 0.01 mm', () => {
+  it('finding 17: when every size and schedule is compared entry by entry, then OD and ID are within 0.5 mm and wall within 0.01 mm', () => {
     const answers = askFluids();
     const checked: string[] = [];
     for (const row of PIPE_TABLE) {
-      for (const schedule of PIPE_SCHEDULES) {
+      for (const schedule of B36_SCHEDULES) {
         const wallIn = row.wallIn[schedule];
         if (wallIn === undefined) continue;
         const name = `NPS ${row.label} ${schedule}`;
@@ -120,23 +134,32 @@ describe('pipe table against python3-fluids (independent copy of ASME B36.10M-20
         expect(answer?.listed, `${name} is listed by fluids`).toBe(true);
         expect(answer!.NPS, name).toBe(row.nps);
         expect(Math.abs(row.odIn * MM_PER_IN - answer!.Do! * 1000), `${name} OD`).toBeLessThanOrEqual(0.5);
-        expect(Math.abs(wallIn * MM_PER_IN - answer!.t! * 1000), `${name} wall`).toBeLessThanOrEqual(0.01);
+        expect(Math.abs(wallIn * MM_PER_IN - answer!.t! * 1000), `${name} wall`).toBeLessThanOrEqual(0.01 + 1e-9);
         const idIn = row.odIn - 2 * wallIn;
         expect(Math.abs(idIn * MM_PER_IN - answer!.Di! * 1000), `${name} ID`).toBeLessThanOrEqual(0.5);
         checked.push(name);
       }
     }
-    // 27 STD + 27 XS + 23 Sch 40 + 21 Sch 80
-    expect(checked).toHaveLength(98);
+    // Every entry fluids lists for these sizes and schedules is one of ours, and no more.
+    expect(checked).toHaveLength(answers.filter((a) => a.listed).length);
+    // 30 Sch 10, 15 Sch 20, 27 Sch 30, 36 STD, 26 Sch 40, 9 Sch 60, 36 XS, 24 Sch 80, 9 Sch 100,
+    // 12 Sch 120, 9 Sch 140, 20 Sch 160, 14 XXS
+    expect(checked).toHaveLength(267);
   });
 
-  it('when our table leaves a size out of a schedule, then fluids does not list it either', () => {
+  it('finding 17: when our table leaves a size out of a schedule, then fluids does not list it either', () => {
     const answers = askFluids();
     const ourGaps = PIPE_TABLE.flatMap((row) =>
-      PIPE_SCHEDULES.filter((s) => row.wallIn[s] === undefined).map((s) => `${row.nps} ${s}`),
+      B36_SCHEDULES.filter((s) => row.wallIn[s] === undefined).map((s) => `${row.nps} ${s}`),
     );
     const fluidsGaps = answers.filter((a) => !a.listed).map((a) => `${a.nps} ${a.schedule}`);
     expect(ourGaps).toEqual(fluidsGaps);
-    expect(ourGaps).toHaveLength(10);
+    expect(ourGaps).toHaveLength(STANDARD_SIZES.length * B36_SCHEDULES.length - 267);
+  });
+
+  it('when the only wall fluids rounds differently is compared, then B36.10M\'s 0.400 in is kept (NPS 1 1/2 XXS)', () => {
+    const answer = askFluids().find((a) => a.nps === 1.5 && a.schedule === 'XXS')!;
+    expect(answer.t! * 1000).toBeCloseTo(10.15, 6);
+    expect(PIPE_TABLE.find((r) => r.nps === 1.5)!.wallIn.XXS).toBe(0.4);
   });
 });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { appliedAfter, carriesDevice, earlierNotApplied, removalNeedsException } from '@shared/isolations/lockout-rules';
+import { appliedAfter, carriesDevice, earlierNotApplied, mayHandOver, removalNeedsException } from '@shared/isolations/lockout-rules';
 import type { StepStatus } from '@shared/types/isolations';
 import { applyFormSchema, toApplyInput } from '@client/features/isolations/lib/step-forms';
 
@@ -25,12 +25,22 @@ describe('the lockout rules the screens and the server share', () => {
   });
 
   it('finding I-1 (OSHA 29 CFR 1910.147(e)(3)): when a step carries a lock or a tag, then only its applier takes it off without the exception; a step without either is not personal', () => {
-    const locked = { lockId: 'l', tagId: null, appliedBy: 'ana' };
+    const locked = { lockId: 'l', tagId: null, heldBy: 'ana' };
     expect(carriesDevice(locked)).toBe(true);
     expect(removalNeedsException(locked, 'ana')).toBe(false);
     expect(removalNeedsException(locked, 'sam')).toBe(true);
-    expect(removalNeedsException({ lockId: null, tagId: 't', appliedBy: 'ana' }, 'sam')).toBe(true);
-    expect(removalNeedsException({ lockId: null, tagId: null, appliedBy: 'ana' }, 'sam')).toBe(false);
+    expect(removalNeedsException({ lockId: null, tagId: 't', heldBy: 'ana' }, 'sam')).toBe(true);
+    expect(removalNeedsException({ lockId: null, tagId: null, heldBy: 'ana' }, 'sam')).toBe(false);
+  });
+
+  it('issue 16 shift change (OSHA 29 CFR 1910.147(f)(4)): when a lock was handed over, then its holder takes it off without the exception and only the holder may hand it over again', () => {
+    const handedOver = { lockId: 'l2', tagId: null, heldBy: 'sam', status: 'verified' as const };
+    expect(removalNeedsException(handedOver, 'sam')).toBe(false);
+    expect(removalNeedsException(handedOver, 'ana')).toBe(true);
+    expect(mayHandOver(handedOver, 'sam')).toBe(true);
+    expect(mayHandOver(handedOver, 'ana')).toBe(false);
+    expect(mayHandOver({ ...handedOver, status: 'removed' }, 'sam')).toBe(false);
+    expect(mayHandOver({ ...handedOver, lockId: null }, 'sam')).toBe(false);
   });
 
   it('finding I-4: when the apply form is out of the plan\'s order, then it asks for the reason and sends it; in order it asks nothing', () => {

@@ -15,7 +15,7 @@ function step(id: string, extra: Partial<IsolationStep> = {}): IsolationStep {
     remoteAckByName: null, verifiedBy: null, verifiedByName: null, verifiedAt: null, verificationMethod: null, verificationReading: null, verificationUnit: null,
     verificationNotes: null, removedByName: null, removedAt: null, removalNote: null, controlRoomAckAppliedAt: null, controlRoomAckRemovedAt: null, plugDiameterIn: null,
     plugAsBuilt: null, plugWarnings: [], plugWarningsAckAt: null, appliedSeq: null, appliedOutOfOrderReason: null, exceptionRecordedAt: null, exceptionAuthoriserId: null,
-    exceptionAuthoriserName: null, removedUnderException: false, lineStopAsBuilt: null, ...extra,
+    exceptionAuthoriserName: null, removedUnderException: false, lineStopAsBuilt: null, heldBy: null, heldByName: null, handedOverAt: null, ...extra,
   };
 }
 

@@ -1,14 +1,15 @@
 import { useId, useRef, useState, type FormEvent } from 'react';
 import { subject } from '@casl/ability';
-import { format } from 'date-fns';
 import { attachmentAccept, attachmentAcceptHint, attachmentEntityLabels } from '@shared/schemas/attachment.schema';
 import type { AttachmentSummary } from '@shared/types/attachments';
 import { closedStates, type PermitState } from '@shared/permit/states';
+import { formatInZone } from '@shared/time/zone';
 import { Button } from '@client/components/ui/button';
 import { Notice } from '@client/components/ui/notice';
 import { Card, EmptyState, Loading } from '@client/components/ui/page';
 import { useToast } from '@client/components/ui/toast';
 import { useAbility } from '@client/lib/ability';
+import { useMe } from '@client/features/auth';
 import { ApiError } from '@client/lib/api-client';
 import { useAttachments } from './api/get-attachments';
 import { useUploadAttachment } from './api/upload-attachment';
@@ -102,6 +103,8 @@ export function AttachmentsPanel({ permit }: { permit: AttachmentsPermit }) {
 }
 
 function AttachmentItem({ attachment: a }: { attachment: AttachmentSummary }) {
+  // A site time with its zone, whatever zone the browser is in.
+  const timeZone = useMe().data?.activeTenant?.timeZone ?? 'UTC';
   return (
     <li className="flex min-w-0 items-start gap-3 p-3">
       {thumbnailTypes.has(a.contentType) ? (
@@ -125,7 +128,7 @@ function AttachmentItem({ attachment: a }: { attachment: AttachmentSummary }) {
           {a.entityType !== 'permit' ? ` · ${attachmentEntityLabels[a.entityType]}` : ''}
         </p>
         <p className="text-sm text-ink-soft">
-          Added by {a.uploadedByName} on <time dateTime={a.createdAt}>{format(new Date(a.createdAt), 'd MMM yyyy, HH:mm')}</time>
+          Added by {a.uploadedByName} on <time dateTime={a.createdAt}>{formatInZone(a.createdAt, timeZone)}</time>
         </p>
       </div>
     </li>

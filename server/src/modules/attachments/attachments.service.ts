@@ -6,6 +6,7 @@ import { isInlineContentType, type AttachmentsQuery, type UploadAttachmentFields
 import type { AttachmentSummary } from '@shared/types/attachments';
 import type { Page } from '@shared/schemas/common.schema';
 import { closedStates } from '@shared/permit/states';
+import { stateLabel } from '@shared/permit/record-words';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
@@ -80,7 +81,7 @@ export async function addAttachment(deps: AppDeps, caller: CallerContext, permit
     return await withTenant(deps.sequelize, caller.actor.tenantId, async () => {
       const { tenantId } = caller.actor;
       const permit = await loadPermitFor(deps, caller, permitId, 'create', true);
-      if (closedStates.includes(permit.state)) throw AppError.unprocessable(`Permit ${permit.number} is ${permit.state}; its record takes no new files.`);
+      if (closedStates.includes(permit.state)) throw AppError.unprocessable(`Permit ${permit.number} is ${stateLabel(permit.state).toLowerCase()}; its record takes no new files.`);
       const entityId = await entityBelongs(deps.sequelize, tenantId, permitId, fields);
       const now = deps.clock.now();
       const [row] = await deps.sequelize.query<{ id: string }>(

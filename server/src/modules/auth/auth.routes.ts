@@ -23,7 +23,7 @@ import { requireSignIn } from '../../middleware/authenticate';
 import { clientIp } from '../../lib/client-ip';
 import { CSRF_COOKIE, issueCsrfToken } from '../../middleware/csrf';
 import { SECURE_SESSION_COOKIE, SESSION_COOKIE } from '../../middleware/session';
-import { acceptInvitation, buildMe, forgotPassword, resetPassword, signIn, signOut, switchTenant } from './auth.service';
+import { acceptInvitation, forgotPassword, meOf, resetPassword, signIn, signOut, switchTenant } from './auth.service';
 import { setUpAttemptLimits, tooManyResetRequests, type AuthLimits } from './attempt-limits';
 
 export { defaultAuthLimits, type AuthLimits } from './attempt-limits';
@@ -61,13 +61,13 @@ export function createAuthRouter(deps: AppDeps, authLimits?: AuthLimits) {
   });
 
   router.post('/auth/sign-out', async (req, res) => {
-    await signOut(req);
+    await signOut(deps, req);
     res.clearCookie(secure ? SECURE_SESSION_COOKIE : SESSION_COOKIE, { path: '/', httpOnly: true, sameSite: 'lax', secure });
     res.status(204).end();
   });
 
   router.get('/auth/me', requireSignIn, async (req, res) => {
-    res.json(await buildMe(deps, req.user!.id, req.session.tenantId ?? null));
+    res.json(await meOf(deps, req));
   });
 
   router.post('/auth/switch-tenant', requireSignIn, async (req, res) => {

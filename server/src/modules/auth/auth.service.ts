@@ -8,6 +8,7 @@ import type { AppDeps } from '../../deps';
 import { AppError } from '../../errors/app-error';
 import { withTenant } from '../../db/sequelize';
 import { loadActor, membershipsOf } from '../../lib/actor';
+import { accessCache, announceAccessChanged } from '../../lib/access-cache';
 import { enqueueMail } from '../../lib/mailer';
 import { hashPassword, verifyPassword } from '../../lib/passwords';
 import { hashToken, newToken } from '../../lib/tokens';
@@ -29,6 +30,18 @@ function save(req: Request) {
 export async function buildMe(deps: AppDeps, userId: string, tenantId: string | null): Promise<MeResponse> {
   const loaded = await loadActor(deps.sequelize, userId, tenantId);
   if (!loaded) throw new AppError('unauthenticated', 'Sign in to continue.');
+  return meFrom(deps, loaded, tenantId);
+}
+
+/** /me for a signed-in request: worked out once per kept access (see lib/access-cache). */
+export function meOf(deps: AppDeps, req: Request): Promise<MeResponse> {
+  const access = req.access;
+  if (!access || !req.user) throw new AppError('unauthenticated', 'Sign in to continue.');
+  const tenantId = req.session.tenantId ?? null;
+  return accessCache(deps).memo(access, `me:${tenantId}`, () => meFrom(deps, access, tenantId));
+}
+
+async function meFrom(deps: AppDeps, loaded: NonNullable<Awaited<ReturnType<typeof loadActor>>>, tenantId: string | null): Promise<MeResponse> {
   const rules = loaded.actor ? packRules(defineRulesFor(loaded.actor)) : [];
   return {
     user: loaded.user,
@@ -78,8 +91,11 @@ export async function switchTenant(deps: AppDeps, req: Request, tenantId: string
   return buildMe(deps, userId, tenantId);
 }
 
-export async function signOut(req: Request) {
+export async function signOut(deps: AppDeps, req: Request) {
+  const userId = req.session?.userId;
+  accessCache(deps).dropSession(req.sessionID);
   await new Promise<void>((resolve) => req.session.destroy(() => resolve()));
+  if (userId) await announceAccessChanged(deps, userId);
 }
 
 export async function invite(deps: AppDeps, tenantId: string, invitedBy: string, input: InviteInput) {

@@ -1,4 +1,5 @@
 import { QueryTypes } from 'sequelize';
+import { signatureMessages, signedNameMatches } from '@shared/permit/signed-name';
 import type { AppDeps } from '../../deps';
 import { AppError } from '../../errors/app-error';
 import { verifyPassword } from '../../lib/passwords';
@@ -21,13 +22,14 @@ export async function signerPasswordMatches(deps: AppDeps, userId: string, passw
 }
 
 /**
- * A signature as on a permit: the name typed as on the account and the password again. Refuses with
- * 400 naming each field that is wrong.
+ * A signature as on a permit: the name typed as shown on the account (case and spacing forgiven,
+ * nothing else) and the password again. Refuses with 400 naming each field that is wrong; a wrong
+ * password is told apart from a missing one.
  */
 export async function requireSignature(deps: AppDeps, signer: { id: string; name: string }, input: { password?: string; signedName?: string }) {
   const details: { path: string; message: string }[] = [];
-  if (!input.signedName || input.signedName.trim().toLowerCase() !== signer.name.trim().toLowerCase())
-    details.push({ path: 'signedName', message: `Type your name exactly as "${signer.name}" to sign.` });
-  if (!(await signerPasswordMatches(deps, signer.id, input.password))) details.push({ path: 'password', message: 'Re-enter your password to sign.' });
-  if (details.length) throw AppError.validation('The signature is not complete.', details);
+  if (!signedNameMatches(input.signedName, signer.name)) details.push({ path: 'signedName', message: signatureMessages.name(signer.name) });
+  if (!(await signerPasswordMatches(deps, signer.id, input.password)))
+    details.push({ path: 'password', message: input.password ? signatureMessages.passwordWrong : signatureMessages.passwordMissing });
+  if (details.length) throw AppError.validation(details.some((d) => d.path === 'password' && input.password) ? 'The password is wrong.' : 'The signature is not complete.', details);
 }

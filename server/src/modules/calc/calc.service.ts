@@ -1,12 +1,13 @@
 import type { Sequelize } from 'sequelize';
 import {
   MUD_PLUG_CAUTION,
-  PIPE_SCHEDULES,
+  B36_SCHEDULES,
   assessAtmosphere,
   lineFill,
   mudPlug,
   pipeDimensions,
   pipeSizeOptions,
+  scheduleLabel,
   type AtmosphereAssessment,
   type AtmosphereLimits,
   type LineFill,
@@ -32,9 +33,9 @@ export const lineFillFor = (q: LineFillQuery): LineFill => lineFill(q);
 export function pipeSizes(): PipeSizesResponse {
   return {
     source: 'ASME B36.10M-2004, Table 1',
-    schedules: PIPE_SCHEDULES.map((schedule) => ({
+    schedules: B36_SCHEDULES.map((schedule) => ({
       schedule,
-      label: schedule === 'STD' || schedule === 'XS' ? schedule : `Sch ${schedule}`,
+      label: scheduleLabel(schedule),
       sizes: pipeSizeOptions(schedule),
     })),
   };

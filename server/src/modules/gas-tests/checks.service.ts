@@ -1,6 +1,6 @@
 import { QueryTypes } from 'sequelize';
 import { dueTimes } from '@shared/permit/due-times';
-import { workUnderWayStates } from '@shared/permit/states';
+import { liveStates, workUnderWayStates } from '@shared/permit/states';
 import { isInPlace } from '@shared/isolations/step-rules';
 import { checkKindLabels, type CheckData, type CheckKind } from '@shared/schemas/timed-checks.schema';
 import type { CheckRow, RecordedCheck } from '@shared/types/timed-checks';
@@ -15,6 +15,8 @@ import { dueFactsFor, resolveOverdue } from './gas-tests.repository';
 import { checkObservedTime, observationBounds } from '../permits/observed-time';
 import { permitFor, requireWorkOpen } from './permit-access';
 import { queueAlert } from './alert-mail';
+import { suspendForStopWork } from './stop-work';
+import { checkProblem } from '../permits/stop-work-facts';
 
 const checkSelect = `
   SELECT c.id, c.kind, c.checked_at AS "checkedAt", c.ok, c.observation, c.action_taken AS "actionTaken", c.notes,
@@ -98,8 +100,14 @@ export async function recordCheck(deps: AppDeps, caller: CallerContext, permitId
         lines: [`${caller.user.name} recorded a ${checkKindLabels[input.kind].toLowerCase()} on permit ${permit.number} (${permit.title}): ${summary}.`, `Action taken: ${input.actionTaken}`],
         publicUrl: deps.config.PUBLIC_URL,
       });
+    // A vent blowing toward the work or a plug that has cracked, shrunk or moved stops live work at once, as a failing gas test does.
+    let permitState = permit.state;
+    if (!ok && input.kind !== 'fire_watch' && liveStates.includes(permit.state)) {
+      const reason = `${checkKindLabels[input.kind]} found ${checkProblem(input.kind, observation)} (${caller.user.name}). Action: ${input.actionTaken}`;
+      permitState = (await suspendForStopWork(deps, permit, reason, `failed ${input.kind} check`)).state;
+    }
     await notifyChange(deps.sequelize, { tenantId, kind: 'check', id: permitId, check: input.kind, ok });
     const [row] = await deps.sequelize.query<CheckRow<Date>>(`${checkSelect} WHERE c.tenant_id = :tenantId AND c.id = :id`, { replacements: { tenantId, id }, type: QueryTypes.SELECT });
-    return { ...row, permitState: permit.state };
+    return { ...row, permitState };
   });
 }

@@ -4,6 +4,7 @@ import { parseCsv } from '@shared/csv/read-csv';
 import { guessMapping, mappingProblems, MAX_IMPORT_ROWS, readRows, type ColumnMapping } from '@shared/gas-tests/csv-readings';
 import { instrumentStatus } from '@shared/gas-tests/instrument-status';
 import { assessOptionsFor } from '@shared/gas-tests/permit-limits';
+import { assessVentOutlet } from '@shared/gas-tests/vent-outlet';
 import { siteDay } from '@shared/time/zone';
 import { liveStates } from '@shared/permit/states';
 import type { GasTestPlace } from '@shared/schemas/gas-tests.schema';
@@ -63,6 +64,8 @@ export async function importGasLog(deps: AppDeps, caller: CallerContext, permitI
     const { limits } = await limitsForPermit(deps.sequelize, permit);
     const read = readRows(csv, mapping as ColumnMapping, {
       timeZone: settings.timeZone, now, limits, assess: assessOptionsFor(permit.kinds),
+      // A vent outlet carries vapour by design: its flammable readings have their own limit, never the hot-work one.
+      judge: input.place === 'vent_outlet' ? (r) => assessVentOutlet(r, limits, settings.ventOutletLelPct) : undefined,
       instrumentReasons: (at) => instrumentStatus(instrument, at, settings.timeZone, settings.requireDailyBumpTest).reasons,
     });
     // The tester vouches for every reading: they must have been qualified on each day of the log.

@@ -90,10 +90,12 @@ export async function dueFactsFor(sequelize: Sequelize, permit: PermitRow, setti
      FROM isolation_steps WHERE tenant_id = :tenantId AND permit_id = :permitId`,
     { ...r, inPlace: inPlaceStatuses },
   ))!;
-  const checks = (await one<{ vent: Date | null; plug: Date | null; fire: Date | null }>(
+  // When the isolations were signed in place rides along: vent and plug checks count from it before work starts.
+  const checks = (await one<{ vent: Date | null; plug: Date | null; fire: Date | null; isolated: Date | null }>(
     sequelize,
     `SELECT max(checked_at) FILTER (WHERE kind = 'vent') AS vent, max(checked_at) FILTER (WHERE kind = 'plug') AS plug,
-            max(checked_at) FILTER (WHERE kind = 'fire_watch' AND ok) AS fire
+            max(checked_at) FILTER (WHERE kind = 'fire_watch' AND ok) AS fire,
+            (SELECT max(occurred_at) FROM audit_events WHERE tenant_id = :tenantId AND permit_id = :permitId AND action = 'confirm_isolated') AS isolated
      FROM permit_checks WHERE tenant_id = :tenantId AND permit_id = :permitId`,
     r,
   ))!;
@@ -102,6 +104,7 @@ export async function dueFactsFor(sequelize: Sequelize, permit: PermitRow, setti
     state: permit.state,
     kinds: permit.kinds,
     liveSince: await liveSince(sequelize, permit.tenantId, permit.id),
+    isolatedSince: d(checks.isolated),
     gas: { lastPassAt: gas.lastPassAt, intervalMinutes: permit.gasTestIntervalMinutes },
     vent: { lastAt: d(checks.vent), intervalMinutes: settings.ventCheckIntervalMinutes, open: iso.vents },
     plug: { lastAt: d(checks.plug), intervalMinutes: settings.plugCheckIntervalMinutes, inPlace: iso.plugs },

@@ -3,6 +3,7 @@ import { assessAtmosphere, type AtmosphereAssessment } from '@shared/calc';
 import { assessOptionsFor, checkPermitLimitRequest, permitLimits } from '@shared/gas-tests/permit-limits';
 import { instrumentStatus } from '@shared/gas-tests/instrument-status';
 import { failureSummary } from '@shared/gas-tests/verdict-text';
+import { assessVentOutlet } from '@shared/gas-tests/vent-outlet';
 import { siteDay, siteTimeOfDay } from '@shared/time/zone';
 import { gasTestPlaceLabels, type GasTestData, type GasTestPlace, type GasTestPurpose, type PermitGasLimitsInput } from '@shared/schemas/gas-tests.schema';
 import type { GasTestResult } from '@shared/types/gas-tests';
@@ -17,6 +18,7 @@ import { tenantAtmosphereLimits } from '../../lib/atmosphere-limits';
 import { notifyChange } from '../isolations/isolation-queries';
 import { auditActor, type CallerContext } from '../../lib/caller';
 import { applyTransition } from '../permits/permits.service';
+import { recordPermitEditor } from '../permits/permit-editors';
 import type { PermitRow } from '../permits/permits.repository';
 import { findGasTest, limitsForPermit, listGasTests, resolveOverdue } from './gas-tests.repository';
 import { findInstrument, type InstrumentRecord } from './instruments.service';
@@ -77,7 +79,8 @@ export async function recordGasTest(deps: AppDeps, caller: CallerContext, permit
     const instrument = await usableInstrument(deps, tenantId, input.instrumentId, testedAt, bounds.settings);
     const { limits } = await limitsForPermit(deps.sequelize, permit);
     const { others, ...gases } = input.readings;
-    const assessment = assessAtmosphere(gases, limits, assessOptionsFor(permit.kinds));
+    // A vent outlet carries vapour by design: its flammable reading has its own limit, never the hot-work one.
+    const assessment = input.place === 'vent_outlet' ? assessVentOutlet(gases, limits, bounds.settings.ventOutletLelPct) : assessAtmosphere(gases, limits, assessOptionsFor(permit.kinds));
     const purpose: GasTestPurpose = input.purpose ?? (workUnderWayStates.includes(permit.state) ? 'repeat' : 'before_work');
     const now = deps.clock.now();
     const [{ id }] = await deps.sequelize.query<{ id: string }>(
@@ -131,6 +134,8 @@ export async function setPermitLimits(deps: AppDeps, caller: CallerContext, perm
     await appendAudit(deps.sequelize, {
       tenantId, entityType: 'permit', entityId: permitId, permitId, action: 'gas_limits_set', actor: auditActor(caller, 'update'), ip: caller.ip, data: { limits: input }, occurredAt: now,
     });
+    // A draft's limits are part of what the authoriser approves; later they can only be tightened.
+    if (editableStates.includes(permit.state)) await recordPermitEditor(deps.sequelize, tenantId, permitId, caller.user.id, now);
     return { limits: permitLimits(tenant, empty ? null : input, permit.number), hotWork: current.hotWork, permitRequest: empty ? null : input };
   });
 }

@@ -20,6 +20,20 @@ import type { PermitRow } from '../permits/permits.repository';
 import { dueFactsFor, gasTestSelect } from './gas-tests.repository';
 import { permitFor, requireWorkOpen } from './permit-access';
 import { queueAlert } from './alert-mail';
+import { holdsQualification } from '../../lib/qualifications';
+import { qualificationForKind } from '@shared/permit/states';
+import { qualificationLabels, type QualificationKind } from '@shared/abilities/roles';
+
+/**
+ * The qualifications the permit's kinds of work need that this person does not hold in date today
+ * (the site's day), by name. A permit is held only by a lead qualified for its work (HSE HSG250).
+ */
+async function missingQualifications(deps: AppDeps, permit: PermitRow, userId: string, at: Date) {
+  const needed = [...new Set(permit.kinds.map((k) => qualificationForKind[k] as QualificationKind))];
+  const missing: string[] = [];
+  for (const kind of needed) if (!(await holdsQualification(deps.sequelize, permit.tenantId, userId, kind, at))) missing.push(qualificationLabels[kind]);
+  return missing;
+}
 
 const handoverSelect = `
   SELECT h.id, h.status, h.from_user_id AS "fromUserId", f.name AS "fromName", h.to_user_id AS "toUserId", t.name AS "toName",
@@ -76,6 +90,11 @@ export async function createHandover(deps: AppDeps, caller: CallerContext, permi
     });
     if (!lead.length) throw AppError.validation('The incoming lead must be a contractor lead of the permit’s contractor.', [{ path: 'toUserId', message: `Choose a contractor lead of ${permit.contractorName}.` }]);
     const now = deps.clock.now();
+    const missing = await missingQualifications(deps, permit, input.toUserId, now);
+    if (missing.length)
+      throw AppError.unprocessable(`The incoming lead has no in-date qualification for: ${missing.join(', ')}. Hand over to a lead qualified for this work.`, [
+        { path: 'toUserId', message: `This lead has no in-date qualification for: ${missing.join(', ')}.` },
+      ]);
     await deps.sequelize.query(`UPDATE permit_handovers SET status = 'superseded' WHERE tenant_id = :tenantId AND permit_id = :permitId AND status = 'pending'`, { replacements: { tenantId, permitId } });
     const summary = await readingsSummary(deps, permit);
     const [{ id }] = await deps.sequelize.query<{ id: string }>(
@@ -117,6 +136,8 @@ export async function acceptHandover(deps: AppDeps, caller: CallerContext, permi
     });
     if (!lead.length) throw AppError.unprocessable(`You are no longer a contractor lead of ${permit.contractorName}.`);
     const now = deps.clock.now();
+    const missing = await missingQualifications(deps, permit, caller.user.id, now);
+    if (missing.length) throw AppError.unprocessable(`You have no in-date qualification for: ${missing.join(', ')}, so you cannot take this permit over.`);
     await deps.sequelize.query(`UPDATE permit_handovers SET status = 'accepted', to_signed_name = :name, accepted_at = :now WHERE tenant_id = :tenantId AND id = :id`, {
       replacements: { name: caller.user.name, now, tenantId, id: handoverId },
     });

@@ -8,6 +8,10 @@ import type { CallerContext } from '../../lib/caller';
 import { dueFactsFor, gasHistory, limitsForPermit } from './gas-tests.repository';
 import { loadTenantSettings } from '../tenants/tenant-settings';
 import { permitFor } from './permit-access';
+import { gasTestPlaceLabels, gasTestPlaces } from '@shared/schemas/gas-tests.schema';
+import { requiredGasPlaces, stopWorkGaps, unresolvedGasPlaces } from '@shared/permit/stop-work';
+import { isolationCheckStates } from '@shared/permit/states';
+import { loadStopWorkFacts } from '../permits/stop-work-facts';
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
@@ -26,6 +30,9 @@ export async function regimeFor(deps: AppDeps, caller: CallerContext, permitId: 
     const times = dueTimes(await dueFactsFor(deps.sequelize, permit, settings), now);
     const view = (t: DueTime): DueTimeView => ({ kind: t.kind, label: timedCheckLabels[t.kind], dueAt: iso(t.dueAt), overdue: t.overdue, minutesOverdue: t.minutesOverdue, intervalMinutes: intervalOf(t, permit.gasTestIntervalMinutes, settings) });
     const next = nextDue(times);
+    const sw = await loadStopWorkFacts(deps.sequelize, permit.tenantId, permit.id);
+    const required = requiredGasPlaces(sw.plugSides);
+    const failing = unresolvedGasPlaces(sw.gasPlaces);
     return {
       ...limits,
       permitId: permit.id,
@@ -40,6 +47,22 @@ export async function regimeFor(deps: AppDeps, caller: CallerContext, permitId: 
       nextDue: next ? view(next) : null,
       requireDailyBumpTest: settings.requireDailyBumpTest,
       timeZone: settings.timeZone,
+      stopWork: {
+        places: gasTestPlaces
+          .filter((place) => required.includes(place) || sw.gasPlaces.some((g) => g.place === place))
+          .map((place) => {
+            const g = sw.gasPlaces.find((x) => x.place === place);
+            return {
+              place, label: gasTestPlaceLabels[place], required: required.includes(place), latest: g ? (failing.includes(place) ? 'fail' : 'pass') : null,
+              lastPassAt: iso(g?.lastPassAt ?? null), lastFailAt: iso(g?.lastFailAt ?? null),
+            };
+          }),
+        failedChecks: sw.failedChecks,
+        // What the start and resume guards will say of these rules, while the isolations are in place.
+        blockers: isolationCheckStates.includes(permit.state) ? stopWorkGaps(sw, permit.gasTestWindowMinutes, now) : [],
+        fireWatchBasis: settings.fireWatchBasis,
+        ventOutletLelPct: settings.ventOutletLelPct,
+      },
     };
   });
 }

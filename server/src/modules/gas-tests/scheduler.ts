@@ -1,8 +1,8 @@
 import { QueryTypes } from 'sequelize';
 import { dueTimes, timedCheckLabels, type DueTime } from '@shared/permit/due-times';
 import { statesFrom } from '@shared/permit/state-machine';
-import { liveStates, workUnderWayStates } from '@shared/permit/states';
-import { siteDay, siteTimeOfDay } from '@shared/time/zone';
+import { isolationCheckStates, liveStates, workUnderWayStates } from '@shared/permit/states';
+import { formatInZone, siteDay, siteTimeOfDay } from '@shared/time/zone';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { appendAudit } from '../audit/audit.service';
@@ -12,6 +12,8 @@ import { applyTransition } from '../permits/permits.service';
 import { findPermit, type PermitRow } from '../permits/permits.repository';
 import { dueFactsFor, resolveOverdue } from './gas-tests.repository';
 import { queueAlert } from './alert-mail';
+import { markOverdueRechecks } from '../certificates/recheck-scheduler';
+import { suspendForStopWork } from './stop-work';
 
 /**
  * Holdpoint's own clock-driven work, safe to run in several server processes at once: each permit
@@ -20,6 +22,8 @@ import { queueAlert } from './alert-mail';
  * sends the mail (dedupeKey as well), writes the audit event and flags the board.
  *  1. Expires permits whose validity ended ('expire', fired by the system).
  *  2. Marks gas tests, vent and plug checks and fire-watch closing checks overdue.
+ *  3. Suspends live hot work whose repeat gas test is overdue by more than the tenant's grace
+ *     (`gasTestOverdueGraceMinutes`, none by default): nobody knows the atmosphere at the flame.
  */
 export async function runScheduler(deps: AppDeps): Promise<{ expired: number; overdue: number }> {
   // The one owner-run look-up that may list tenants across row-level security (migration 0090).
@@ -34,7 +38,7 @@ export async function runScheduler(deps: AppDeps): Promise<{ expired: number; ov
 }
 
 // The states the SQL below names, from the state machine and the shared lists.
-const states = { expirable: statesFrom('expire'), live: liveStates, underWay: workUnderWayStates };
+const states = { expirable: statesFrom('expire'), live: liveStates, underWay: workUnderWayStates, isolationChecks: isolationCheckStates };
 
 async function eachPermit(deps: AppDeps, tenantId: string, ids: string[], lockWhere: string, fn: (permit: PermitRow) => Promise<number>) {
   let done = 0;
@@ -69,8 +73,8 @@ async function expirePermits(deps: AppDeps, tenantId: string): Promise<number> {
   });
 }
 
-// Live permits (gas tests, vents, plugs) and hot-work permits whose fire watch may still be running.
-const watched = `(p.state IN (:live) OR (p.state IN (:underWay) AND 'hot_work' = ANY (p.kinds) AND p.hot_work_ended_at IS NOT NULL))`;
+// Live permits (gas tests), permits with isolations signed in place (vents, plugs) and hot-work permits whose fire watch may still be running.
+const watched = `(p.state IN (:live) OR p.state IN (:isolationChecks) OR (p.state IN (:underWay) AND 'hot_work' = ANY (p.kinds) AND p.hot_work_ended_at IS NOT NULL))`;
 
 async function markOverdue(deps: AppDeps, tenantId: string): Promise<number> {
   const ids = await withTenant(deps.sequelize, tenantId, async () => {
@@ -86,13 +90,19 @@ async function markOverdue(deps: AppDeps, tenantId: string): Promise<number> {
     const settings = await loadTenantSettings(deps.sequelize, tenantId);
     const now = deps.clock.now();
     let raised = 0;
-    for (const t of dueTimes(await dueFactsFor(deps.sequelize, permit, settings), now)) {
+    const times = dueTimes(await dueFactsFor(deps.sequelize, permit, settings), now);
+    for (const t of times) {
       // Only a due time in the past is an occurrence; "due now" with nothing to go on is not.
       if (!t.overdue || !t.dueAt || t.dueAt.getTime() >= now.getTime()) {
         await resolveOverdue(deps.sequelize, tenantId, permit.id, t.kind, now);
         continue;
       }
       if (await raise(deps, permit, t, settings.timeZone, now)) raised++;
+    }
+    const gas = times.find((t) => t.kind === 'gas_test');
+    if (permit.kinds.includes('hot_work') && liveStates.includes(permit.state) && gas?.overdue && gas.dueAt && now.getTime() > gas.dueAt.getTime() + settings.gasTestOverdueGraceMinutes * 60_000) {
+      const grace = settings.gasTestOverdueGraceMinutes ? ` and the site's ${settings.gasTestOverdueGraceMinutes} minutes of grace have passed` : '';
+      await suspendForStopWork(deps, permit, `Repeat gas test overdue on hot work: it was due at ${formatInZone(gas.dueAt, settings.timeZone)}${grace}. Test the atmosphere before work goes on.`, 'overdue gas test');
     }
     return raised;
   });
@@ -112,7 +122,8 @@ async function raise(deps: AppDeps, permit: PermitRow, t: DueTime, timeZone: str
     replacements: { now, tenantId, permitId: permit.id, kind: t.kind, id: inserted.id },
   });
   const label = timedCheckLabels[t.kind];
-  const when = `${siteTimeOfDay(dueAt, timeZone)} site time (${siteDay(dueAt, timeZone)})`;
+  // "2 Dec 2026, 14:30 CST": the site's clock and calendar with the zone named, never a machine date.
+  const when = formatInZone(dueAt, timeZone);
   const audit = await appendAudit(deps.sequelize, {
     tenantId, entityType: 'permit', entityId: permit.id, permitId: permit.id, action: 'check_overdue', actor: null,
     reason: `${label} overdue: it was due at ${when}.`, data: { check: t.kind, dueAt: dueAt.toISOString(), by: 'holdpoint' }, occurredAt: now,
@@ -142,4 +153,6 @@ export async function runSchedulerTick(deps: AppDeps) {
   if (Date.now() - last < EVERY_MS) return;
   lastRun.set(deps, Date.now());
   await runScheduler(deps);
+  // Long-term isolations are re-checked at intervals and alerted when overdue, like gas tests.
+  await markOverdueRechecks(deps);
 }

@@ -32,21 +32,24 @@ interface Row {
   theirs: StepCondition;
   inPlace: boolean;
   permitNumber: string;
+  longTermUnder: string | null;
 }
 
 /**
- * Every other permit, in a state from accepted to work complete, with a step on a point of this plan
+ * Every other permit, in a state from accepted to work complete (or whose isolation a live long-term
+ * certificate keeps beyond it, HSE HSG253), with a step on a point of this plan
  * (or of one step, `stepId`) that is not taken off: a conflict when the other permit has the point in
  * place and either side holds it open or the two hold it differently; otherwise shared.
  */
 export async function pointNeighbours(sequelize: Sequelize, tenantId: string, permitId: string, stepId?: string) {
   const rows = await sequelize.query<Row>(
     `SELECT mine.id AS "stepId", mine.seq, mine.point_id AS "pointId", ip.tag_code AS label, mine.condition AS mine, theirs.condition AS theirs,
-            theirs.status IN (:inPlace) AS "inPlace", other.number AS "permitNumber"
+            theirs.status IN (:inPlace) AS "inPlace", other.number AS "permitNumber", lt.number AS "longTermUnder"
      FROM isolation_steps mine
      JOIN isolation_points ip ON ip.tenant_id = mine.tenant_id AND ip.id = mine.point_id
      JOIN isolation_steps theirs ON theirs.tenant_id = mine.tenant_id AND theirs.point_id = mine.point_id AND theirs.permit_id <> mine.permit_id AND theirs.status <> 'removed'
-     JOIN permits other ON other.tenant_id = theirs.tenant_id AND other.id = theirs.permit_id AND other.state IN (:holding)
+     LEFT JOIN isolation_certificates lt ON lt.tenant_id = theirs.tenant_id AND lt.id = theirs.certificate_id AND lt.long_term AND lt.state = 'live'
+     JOIN permits other ON other.tenant_id = theirs.tenant_id AND other.id = theirs.permit_id AND (other.state IN (:holding) OR lt.id IS NOT NULL)
      WHERE mine.tenant_id = :tenantId AND mine.permit_id = :permitId AND mine.status <> 'removed' ${stepId ? 'AND mine.id = :stepId' : ''}
      ORDER BY mine.seq, other.number`,
     { replacements: { tenantId, permitId, stepId: stepId ?? null, inPlace: inPlaceStatuses, holding: holdsIsolations }, type: QueryTypes.SELECT },
@@ -54,7 +57,7 @@ export async function pointNeighbours(sequelize: Sequelize, tenantId: string, pe
   const conflicts: NeighbourFinding[] = [];
   const shared: NeighbourFinding[] = [];
   for (const r of rows) {
-    const finding = { stepId: r.stepId, seq: r.seq, pointId: r.pointId, label: r.label, permitNumber: r.permitNumber, held: r.theirs, message: `${r.label} is held ${heldWords(r.theirs)} by ${r.permitNumber}` };
+    const finding = { stepId: r.stepId, seq: r.seq, pointId: r.pointId, label: r.label, permitNumber: r.permitNumber, held: r.theirs, message: `${r.label} is held ${heldWords(r.theirs)} by ${r.permitNumber}${r.longTermUnder ? `, kept long-term under ${r.longTermUnder}` : ''}` };
     const clash = r.mine !== r.theirs || openConditions.includes(r.mine);
     if (!clash) shared.push(finding);
     else if (r.inPlace) conflicts.push(finding);

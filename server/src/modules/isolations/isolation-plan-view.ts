@@ -2,11 +2,12 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import { isolatedGaps, type PermitFacts } from '@shared/permit/state-machine';
 import { beforeIsolatedStates } from '@shared/permit/states';
 import { signatureMissing } from '@shared/isolations/readiness';
-import { isInPlace } from '@shared/isolations/step-rules';
+import { inPlaceStatuses, isInPlace } from '@shared/isolations/step-rules';
 import { readTenantSettings } from '@shared/schemas/tenant-settings.schema';
 import type { IsolationPlanReadiness, IsolationProving } from '@shared/types/isolation-proving';
 import type { PermitRow } from '../permits/permits.repository';
-import { readinessOf } from './isolation-readiness';
+import { countedVerifiedSql, readinessOf } from './isolation-readiness';
+import { certificateProvingIdSql, reliedCertificateSql } from '../certificates/certificate-queries';
 import type { StepRow } from './isolation-queries';
 
 /** The step counts the lifecycle guards read, from the steps already loaded (permit-facts.ts counts the same in SQL). */
@@ -28,6 +29,14 @@ function isolationCounts(steps: StepRow[]): PermitFacts['isolation'] {
 
 const counted = (s: StepRow) => s.status === 'verified' && s.verifiedBy !== s.appliedBy && (!s.remotelyOperable || Boolean(s.remoteAckAt));
 
+/** A step of the certificate the permit relies on, made by another permit. */
+interface CertificateStepJson {
+  kind: string;
+  position: number;
+  inPlace: boolean;
+  verified: boolean;
+}
+
 /** A hold test as json_agg writes it: times as text, with the row's insertion time for the order. */
 type ProvingJson = IsolationProving<string> & { created?: string };
 
@@ -37,7 +46,9 @@ type ProvingJson = IsolationProving<string> & { created?: string };
  * not there yet, in the words the guard uses.
  */
 export async function planReadiness(sequelize: Sequelize, permit: PermitRow, steps: StepRow[]): Promise<IsolationPlanReadiness<Date>> {
-  const [row] = await sequelize.query<{ settings: unknown; upstream: string | null; downstream: string | null; provings: ProvingJson[]; signature: { name: string; at: string } | null }>(
+  const [row] = await sequelize.query<{
+    settings: unknown; upstream: string | null; downstream: string | null; provings: ProvingJson[]; signature: { name: string; at: string } | null; cert_steps: CertificateStepJson[] | null;
+  }>(
     `SELECT t.settings, p.dead_end_upstream AS upstream, p.dead_end_downstream AS downstream,
             coalesce((SELECT json_agg(x ORDER BY x.created, x."startedAt") FROM (
                SELECT pv.created_at AS created, pv.id, pv.permit_id AS "permitId", pv.step_id AS "stepId", coalesce(ip.tag_code, s.temp_label) AS at, pv.unit,
@@ -50,11 +61,14 @@ export async function planReadiness(sequelize: Sequelize, permit: PermitRow, ste
                LEFT JOIN isolation_points ip ON ip.tenant_id = s.tenant_id AND ip.id = s.point_id
                JOIN users us ON us.id = pv.started_by
                LEFT JOIN users ue ON ue.id = pv.ended_by
-               WHERE pv.tenant_id = p.tenant_id AND pv.permit_id = p.id) x), '[]'::json) AS provings,
+               WHERE pv.tenant_id = p.tenant_id AND (pv.permit_id = p.id OR pv.id = ${certificateProvingIdSql})) x), '[]'::json) AS provings,
+            (SELECT json_agg(json_build_object('kind', s.kind, 'position', coalesce(ip.position, s.temp_position)::float8, 'inPlace', s.status IN (:inPlace), 'verified', ${countedVerifiedSql}))
+             FROM isolation_steps s LEFT JOIN isolation_points ip ON ip.tenant_id = s.tenant_id AND ip.id = s.point_id
+             WHERE s.tenant_id = p.tenant_id AND s.permit_id <> p.id AND s.certificate_id = ${reliedCertificateSql}) AS cert_steps,
             (SELECT json_build_object('name', sg.signed_name, 'at', sg.signed_at) FROM permit_signatures sg
              WHERE sg.tenant_id = p.tenant_id AND sg.permit_id = p.id AND sg.event = 'confirm_isolated' ORDER BY sg.signed_at DESC LIMIT 1) AS signature
      FROM permits p JOIN tenants t ON t.id = p.tenant_id WHERE p.tenant_id = :tenantId AND p.id = :permitId`,
-    { replacements: { tenantId: permit.tenantId, permitId: permit.id }, type: QueryTypes.SELECT },
+    { replacements: { tenantId: permit.tenantId, permitId: permit.id, inPlace: inPlaceStatuses }, type: QueryTypes.SELECT },
   );
   const settings = readTenantSettings(row?.settings);
   const provings: IsolationProving<Date>[] = (row?.provings ?? []).map(({ created: _created, ...p }) => ({
@@ -63,15 +77,19 @@ export async function planReadiness(sequelize: Sequelize, permit: PermitRow, ste
     endedAt: p.endedAt ? new Date(p.endedAt) : null,
   }));
   const latest = provings.at(-1);
+  // A permit relying on another permit's isolation certificate counts that certificate's isolations too (HSE HSG250).
+  const certSteps = row?.cert_steps ?? [];
   const readiness = readinessOf(
     { from: Number(permit.fromPosition), to: Number(permit.toPosition) },
     { upstream: row?.upstream ?? null, downstream: row?.downstream ?? null },
-    steps.map((s) => ({ kind: s.kind, position: s.position, verified: counted(s) })),
+    [...steps.map((s) => ({ kind: s.kind, position: s.position, verified: counted(s) })), ...certSteps],
     latest ? { result: latest.result, failure: latest.failure, at: latest.at } : null,
   );
   const signature = row?.signature ? { name: row.signature.name, at: new Date(row.signature.at) } : null;
   const waiting = !signature && beforeIsolatedStates.includes(permit.state);
-  const blockers = waiting ? [...isolatedGaps({ isolation: { ...isolationCounts(steps), readiness } }), signatureMissing] : [];
+  const own = isolationCounts(steps);
+  const counts = { ...own, steps: own.steps + certSteps.length, applied: own.applied + certSteps.filter((c) => c.inPlace).length, verified: own.verified + certSteps.filter((c) => c.verified).length };
+  const blockers = waiting ? [...isolatedGaps({ isolation: { ...counts, readiness } }), signatureMissing] : [];
   return {
     ...readiness,
     provings,

@@ -1,4 +1,5 @@
 import { QueryTypes } from 'sequelize';
+import { pointsOutsideSection } from '@shared/isolations/section';
 import { conditionForKind, type SavePlanInput } from '@shared/schemas/isolation.schema';
 import type { IsolationPointKind } from '@shared/schemas/assets.schema';
 import { editableStates } from '@shared/permit/states';
@@ -10,6 +11,7 @@ import { AppError } from '../../errors/app-error';
 import { authorizeRecord } from '../../lib/authorize';
 import { appendAudit } from '../audit/audit.service';
 import { findPermit } from '../permits/permits.repository';
+import { recordPermitEditor } from '../permits/permit-editors';
 import { auditActor, type CallerContext } from '../../lib/caller';
 import { listSteps } from './isolation-queries';
 import { planReadiness } from './isolation-plan-view';
@@ -79,6 +81,8 @@ export async function proposePlan(deps: AppDeps, caller: CallerContext, permitId
     const d = pipe?.insideDiameterIn;
     steps.push({ tempLabel: 'Plug upstream of cut', tempPosition: from, kind: 'plug', plugDiameterIn: d, label: 'Plug upstream of cut', position: from });
     steps.push({ tempLabel: 'Plug downstream of cut', tempPosition: to, kind: 'plug', plugDiameterIn: d, label: 'Plug downstream of cut', position: to });
+    // The same rule as the plan screen: a vent, drain or plug beyond an isolating device works on live line.
+    for (const o of pointsOutsideSection(steps, { from, to })) warnings.push(o.message);
     return { steps, warnings, insideDiameterIn: d ?? null };
   });
 }
@@ -144,6 +148,7 @@ export async function savePlan(deps: AppDeps, caller: CallerContext, permitId: s
       tenantId, entityType: 'permit', entityId: permitId, permitId, action: 'plan_saved', actor: auditActor(caller, 'update'), ip: caller.ip,
       data: { steps: input.steps.length, ...(input.deadEnds?.upstream || input.deadEnds?.downstream ? { deadEnds: input.deadEnds } : {}) }, occurredAt: deps.clock.now(),
     });
+    await recordPermitEditor(deps.sequelize, tenantId, permitId, caller.user.id, deps.clock.now());
     const items = await listSteps(deps.sequelize, tenantId, permitId);
     return { items, readiness: await planReadiness(deps.sequelize, (await findPermit(deps.sequelize, tenantId, permitId))!, items), conflicts: [], shared: asNeighbours(shared) };
   });

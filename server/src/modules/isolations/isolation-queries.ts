@@ -18,7 +18,9 @@ export const stepSelect = `
          s.line_stop_as_built AS "lineStopAsBuilt",
          s.applied_seq AS "appliedSeq", s.applied_out_of_order_reason AS "appliedOutOfOrderReason",
          e.recorded_at AS "exceptionRecordedAt", e.authoriser_user_id AS "exceptionAuthoriserId", ue.name AS "exceptionAuthoriserName",
-         (e.removed_at IS NOT NULL) AS "removedUnderException"
+         (e.removed_at IS NOT NULL) AS "removedUnderException",
+         coalesce(s.held_by, s.applied_by) AS "heldBy", coalesce(uh.name, ua.name) AS "heldByName",
+         (SELECT max(lt.transferred_at) FROM lock_transfers lt WHERE lt.tenant_id = s.tenant_id AND lt.step_id = s.id) AS "handedOverAt"
   FROM isolation_steps s
   LEFT JOIN isolation_points ip ON ip.tenant_id = s.tenant_id AND ip.id = s.point_id
   LEFT JOIN locks l ON l.tenant_id = s.tenant_id AND l.id = s.lock_id
@@ -28,7 +30,8 @@ export const stepSelect = `
   LEFT JOIN users ur ON ur.id = s.remote_ack_by
   LEFT JOIN users ux ON ux.id = s.removed_by
   LEFT JOIN lock_removal_exceptions e ON e.tenant_id = s.tenant_id AND e.step_id = s.id
-  LEFT JOIN users ue ON ue.id = e.authoriser_user_id`;
+  LEFT JOIN users ue ON ue.id = e.authoriser_user_id
+  LEFT JOIN users uh ON uh.id = s.held_by`;
 
 export async function listSteps(sequelize: Sequelize, tenantId: string, permitId: string): Promise<StepRow[]> {
   return sequelize.query<StepRow>(`${stepSelect} WHERE s.tenant_id = :tenantId AND s.permit_id = :permitId ORDER BY s.seq`, {

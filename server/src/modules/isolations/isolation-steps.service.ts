@@ -18,6 +18,7 @@ import { findStep, listSteps, notifyChange, type StepRow } from './isolation-que
 import { claimRemovalException, completeRemovalException } from './removal-exceptions.service';
 import { pointNeighbours } from './isolation-neighbours';
 import { crewOnLockbox, groupLockoutPerPerson } from '../crew/crew-queries';
+import { certificateRemovalCheck, releasingStates, returnIfDone } from '../certificates/certificate-lifecycle';
 
 type StepAction = Extract<Action, 'apply' | 'verify' | 'remove' | 'acknowledge' | 'approve'>;
 
@@ -69,7 +70,8 @@ async function refuseCheckValve(deps: AppDeps, tenantId: string, step: StepRow) 
     );
 }
 
-async function claimInventory(deps: AppDeps, table: 'locks' | 'tags', tenantId: string, id: string, userId: string) {
+/** Takes a lock or tag from the store for the person who puts it on; refuses one already on or out of use. */
+export async function claimInventory(deps: AppDeps, table: 'locks' | 'tags', tenantId: string, id: string, userId: string) {
   const [row] = await deps.sequelize.query<{ number: string; state: string }>(`SELECT number, state FROM ${table} WHERE tenant_id = :tenantId AND id = :id FOR UPDATE`, {
     replacements: { tenantId, id },
     type: QueryTypes.SELECT,
@@ -246,9 +248,12 @@ export async function removeStep(deps: AppDeps, caller: CallerContext, permitId:
   const { tenantId } = caller.actor;
   return withTenant(deps.sequelize, tenantId, async () => {
     const { permit, step } = await load(deps, caller, permitId, stepId, 'remove');
+    // An isolation certificate another permit works under keeps its isolations on; a long-term one nobody relies on is returned by taking them off.
+    const held = await certificateRemovalCheck(deps.sequelize, tenantId, step);
     const refused = stepActionRefusal('remove', step, permit.state);
-    if (refused === 'permit_state') throw AppError.unprocessable('Isolations come off only after the contractor lead hands the permit back (or it is cancelled).');
-    if (refused) throw AppError.conflict(step.status === 'removed' ? 'This isolation is already removed.' : 'This step was never applied.');
+    if (refused === 'permit_state' && !(held.returningLongTerm && releasingStates.includes(permit.state)))
+      throw AppError.unprocessable('Isolations come off only after the contractor lead hands the permit back (or it is cancelled).');
+    if (refused && refused !== 'permit_state') throw AppError.conflict(step.status === 'removed' ? 'This isolation is already removed.' : 'This step was never applied.');
     if (step.kind === 'plug' && !input.plugOutcome) throw AppError.validation('Say whether the plug was removed or left to be displaced by product.', [{ path: 'plugOutcome', message: 'Required for a plug.' }]);
     await requireQualification(deps, caller, 'lockout_tagout', 'remove isolations');
     await refuseWhileCrewLockedOn(deps, tenantId, permitId);
@@ -293,6 +298,7 @@ export async function removeStep(deps: AppDeps, caller: CallerContext, permitId:
       { lock: step.lockNumber, tag: step.tagNumber, plugOutcome: input.plugOutcome ?? null, ...(underException ? { underException } : {}) },
       input.outOfOrderReason,
     );
+    if (held.certificateId) await returnIfDone(deps.sequelize, tenantId, held.certificateId, now, { userId: caller.user.id, name: caller.user.name }, permitId);
     return findStep(deps.sequelize, tenantId, permitId, stepId);
   });
 }

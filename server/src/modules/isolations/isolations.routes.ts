@@ -7,6 +7,7 @@
 //   POST /api/permits/:id/isolations/:stepId/acknowledge control room (remote inhibited, applied, removed); authoriser (plug warnings)
 //   POST /api/permits/:id/isolations/:stepId/remove    isolation technician, after hand-back; someone else's lock or tag only under a recorded exception, signed
 //   POST /api/permits/:id/isolations/:stepId/removal-exception  authoriser: the lock's owner is not on site (signed record)
+//   POST /api/permits/:id/isolations/:stepId/transfer  the person holding the step's lock or tag: shift change to the oncoming person, both signing
 //   POST /api/permits/:id/isolations/provings          isolation technician who applied none of the isolating devices (isolation verifier qualified): start the hold test
 //   POST /api/permits/:id/isolations/provings/:provingId/end   the same: its end reading
 //   GET  /api/board                                    control room, authoriser, tenant admin, auditor
@@ -27,6 +28,8 @@ import type { CallerContext } from '../../lib/caller';
 import { getPlan, proposePlan, savePlan } from './isolation-plan.service';
 import { acknowledgeStep, applyStep, removeStep, verifyStep } from './isolation-steps.service';
 import { recordRemovalException } from './removal-exceptions.service';
+import { transferLock } from './lock-transfer.service';
+import { lockTransferInputSchema } from '@shared/schemas/lock-transfer.schema';
 import { endProving, startProving } from './isolation-proving.service';
 import { boardSnapshot, sendBoardSnapshot } from './board-cache';
 
@@ -72,6 +75,10 @@ export function createIsolationsRouter(deps: AppDeps) {
   router.post('/permits/:id/isolations/:stepId/removal-exception', async (req, res) => {
     const { permitId, stepId } = ids(req);
     res.status(201).json(await recordRemovalException(deps, caller(req), permitId, stepId, parse(removalExceptionInputSchema, req.body, 'removal exception')));
+  });
+  router.post('/permits/:id/isolations/:stepId/transfer', async (req, res) => {
+    const { permitId, stepId } = ids(req);
+    res.json(await transferLock(deps, caller(req), permitId, stepId, parse(lockTransferInputSchema, req.body, 'handover')));
   });
 
   router.get('/board', async (req, res) => {

@@ -21,7 +21,8 @@ const permitColumns = `
   p.fire_watch_minutes AS "fireWatchMinutes", p.fire_watch_person AS "fireWatchPerson",
   p.gas_test_window_minutes AS "gasTestWindowMinutes", p.gas_test_interval_minutes AS "gasTestIntervalMinutes",
   p.hot_work_ended_at AS "hotWorkEndedAt", p.control_room_ack_at AS "controlRoomAckAt", p.rejection_reason AS "rejectionReason",
-  p.state_before_expiry AS "stateBeforeExpiry", p.expired_flag AS "expiredFlag", p.created_at AS "createdAt", p.updated_at AS "updatedAt"`;
+  p.state_before_expiry AS "stateBeforeExpiry", p.expired_flag AS "expiredFlag", p.created_at AS "createdAt", p.updated_at AS "updatedAt",
+  p.suspended_by_kind AS "suspendedByKind", susp.name AS "suspendedByName", p.suspended_at AS "suspendedAt", p.suspension_reason AS "suspensionReason"`;
 
 const permitJoins = `
   JOIN pipelines pl ON pl.tenant_id = p.tenant_id AND pl.id = p.pipeline_id
@@ -29,7 +30,8 @@ const permitJoins = `
   JOIN users req ON req.id = p.requester_user_id
   LEFT JOIN users lead ON lead.id = p.contractor_lead_user_id
   LEFT JOIN users auth ON auth.id = p.authoriser_user_id
-  LEFT JOIN users holder ON holder.id = p.holder_user_id`;
+  LEFT JOIN users holder ON holder.id = p.holder_user_id
+  LEFT JOIN users susp ON susp.id = p.suspended_by_user_id`;
 
 export async function findPermit(sequelize: Sequelize, tenantId: string, id: string, opts: { lock?: boolean } = {}): Promise<PermitRow | null> {
   if (opts.lock) await sequelize.query(`SELECT 1 FROM permits WHERE tenant_id = :tenantId AND id = :id FOR UPDATE`, { replacements: { tenantId, id } });

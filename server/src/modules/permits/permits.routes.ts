@@ -17,7 +17,7 @@ import { clientIp } from '../../lib/client-ip';
 import type { CallerContext } from '../../lib/caller';
 import { createPermit, listPermitsFor, recordHotWorkStopped, transitionPermit, updateChecklist, updatePermit } from './permits.service';
 import { permitDetail } from './permit-view';
-import { renderPermitPdf } from './permit-pdf';
+import { preparePermitPdf } from './permit-pdf';
 import type { Request } from 'express';
 
 export function createPermitsRouter(deps: AppDeps) {
@@ -74,11 +74,11 @@ export function createPermitsRouter(deps: AppDeps) {
     const c = caller(req);
     const id = parse(uuidSchema, req.params.id, 'path');
     const data = await detail(c, id);
-    const pdf = await renderPermitPdf(deps, c.actor.tenantId, data);
+    const writePdf = await preparePermitPdf(deps, c.actor.tenantId, data);
     res.setHeader('Content-Type', 'application/pdf');
     res.setHeader('Content-Disposition', `attachment; filename="${data.number}.pdf"`);
     res.setHeader('Cache-Control', 'no-store');
-    res.send(pdf);
+    await writePdf(res);
   });
 
   return router;

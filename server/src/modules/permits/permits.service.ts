@@ -1,6 +1,6 @@
 import { QueryTypes } from 'sequelize';
 import { subject } from '@casl/ability';
-import { decide, eventAction, eventsFrom, permitEventLabels, reasonedEvents, signedEvents, type PermitEvent } from '@shared/permit/state-machine';
+import { decide, eventAction, eventsFrom, permitEventLabels, reasonedEvents, signedEvents, statesFrom, type PermitEvent } from '@shared/permit/state-machine';
 import type { CreatePermitData, PermitsQuery, TransitionInput, UpdatePermitInput } from '@shared/schemas/permit.schema';
 import type { PermitAction } from '@shared/types/permits';
 import { checklistOpenStates, editableStates, workUnderWayStates } from '@shared/permit/states';
@@ -13,11 +13,15 @@ import { scopeToSql } from '../../lib/casl-sql';
 import { requireSignature } from '../auth/signature-password';
 import { appendAudit } from '../audit/audit.service';
 import { loadTenantSettings } from '../tenants/tenant-settings';
+import { tenantFireWatchMinutes } from '@shared/schemas/tenant-settings.schema';
 import { checklistTemplate, findPermit, listPermits, nextPermitNumber, type PermitRow } from './permits.repository';
 import { loadActorFacts, loadPermitFacts } from './permit-facts';
 import { mailNewOverlaps } from './work-overlaps';
 import { queuePermitMail } from './permit-mail';
 import { requireRevalidationWithinMax, requireWindowWithinMax } from './validity-window';
+import { recordPermitEditor } from './permit-editors';
+import { certificateAfterTransition } from '../certificates/certificate-lifecycle';
+import { resumeNeedsAuthoriser, suspendedByKindFor } from '@shared/permit/suspension';
 
 const permitSubject = (p: Pick<PermitRow, 'tenantId' | 'contractorOrganisationId'> & Record<string, unknown>) =>
   subject('Permit', { ...p, tenantId: p.tenantId, contractorOrganisationId: p.contractorOrganisationId });
@@ -52,8 +56,14 @@ async function checkReferences(deps: AppDeps, tenantId: string, input: Partial<C
     details.push({ path: 'gasTestWindowMinutes', message: `The tenant allows at most ${settings.gasTestWindowMinutes} minutes between the gas test and the start of work.` });
   if (input.gasTestIntervalMinutes && input.gasTestIntervalMinutes > settings.gasTestIntervalMinutes)
     details.push({ path: 'gasTestIntervalMinutes', message: `The tenant requires a repeat gas test at least every ${settings.gasTestIntervalMinutes} minutes.` });
-  if (input.fireWatchMinutes && input.fireWatchMinutes < settings.fireWatchMinutes)
-    details.push({ path: 'fireWatchMinutes', message: `The tenant requires a fire watch of at least ${settings.fireWatchMinutes} minutes after hot work.` });
+  // NFPA 51B (2019 edition) §5.6.1.1 requires 60 minutes; only a tenant that chose the OSHA half hour may go below it.
+  if (input.fireWatchMinutes && input.fireWatchMinutes < tenantFireWatchMinutes(settings))
+    details.push({
+      path: 'fireWatchMinutes',
+      message: settings.fireWatchBasis === 'osha_half_hour' || settings.fireWatchMinutes > 60
+        ? `The site requires a fire watch of at least ${tenantFireWatchMinutes(settings)} minutes after hot work.`
+        : 'NFPA 51B (2019 edition) requires a fire watch of at least 60 minutes after hot work.',
+    });
   if (details.length) throw AppError.validation('Some references are not valid.', details);
   if (input.validFrom && input.validTo) requireWindowWithinMax(settings, new Date(input.validFrom), new Date(input.validTo));
   return settings;
@@ -81,7 +91,7 @@ export async function createPermit(deps: AppDeps, caller: CallerContext, input: 
           toPosition: input.toPosition, jobReference: input.jobReference ?? null, methodStatement: input.methodStatement, hazards: input.hazards,
           ppe: `{${input.ppe.map((p) => `"${p.replace(/["\\]/g, (c) => `\\${c}`)}"`).join(',')}}`, checklist: JSON.stringify(lists.checklist),
           walkdown: JSON.stringify(lists.walkdown), validFrom: input.validFrom, validTo: input.validTo, org: input.contractorOrganisationId,
-          lead: input.contractorLeadUserId ?? null, requester: caller.user.id, fireWatch: Math.max(input.fireWatchMinutes, settings.fireWatchMinutes),
+          lead: input.contractorLeadUserId ?? null, requester: caller.user.id, fireWatch: Math.max(input.fireWatchMinutes, tenantFireWatchMinutes(settings)),
           fireWatchPerson: input.fireWatchPerson ?? null, gasWindow: input.gasTestWindowMinutes ?? settings.gasTestWindowMinutes,
           gasInterval: input.gasTestIntervalMinutes ?? settings.gasTestIntervalMinutes, now,
         },
@@ -92,6 +102,7 @@ export async function createPermit(deps: AppDeps, caller: CallerContext, input: 
       tenantId, entityType: 'permit', entityId: row.id, permitId: row.id, action: 'created', toState: 'draft', actor: auditActor(caller, 'request'),
       ip: caller.ip, data: { number, title: input.title }, occurredAt: now,
     });
+    await recordPermitEditor(deps.sequelize, tenantId, row.id, caller.user.id, now);
     return (await findPermit(deps.sequelize, tenantId, row.id))!;
   });
 }
@@ -149,6 +160,7 @@ export async function updatePermit(deps: AppDeps, caller: CallerContext, id: str
       tenantId, entityType: 'permit', entityId: id, permitId: id, action: 'edited', actor: auditActor(caller, 'update'), ip: caller.ip,
       data: { fields: Object.keys(input).filter((k) => k !== 'version') }, occurredAt: deps.clock.now(),
     });
+    await recordPermitEditor(deps.sequelize, tenantId, id, caller.user.id, deps.clock.now());
     return (await findPermit(deps.sequelize, tenantId, id))!;
   });
 }
@@ -169,7 +181,8 @@ export async function availableActions(deps: AppDeps, caller: CallerContext, per
       allowed: verdict.ok,
       reasons: verdict.ok ? [] : verdict.reasons,
       needsSignature: signedEvents.includes(event),
-      needsReason: reasonedEvents.includes(event),
+      // Resuming after a suspension by anyone but the lead is the authoriser's re-validation: it needs a reason.
+      needsReason: reasonedEvents.includes(event) || (event === 'resume' && resumeNeedsAuthoriser(facts.suspendedByKind)),
     };
   });
 }
@@ -239,7 +252,7 @@ export async function applyTransition(
     case 'start_work':
     case 'resume':
       // Hot work may start again: an earlier "hot work stopped" no longer dates the fire watch.
-      sets.push('hot_work_ended_at = NULL');
+      sets.push('hot_work_ended_at = NULL', 'suspended_by_kind = NULL', 'suspended_by_user_id = NULL', 'suspended_at = NULL', 'suspension_reason = NULL');
       break;
     case 'expire':
       // Re-validation returns an expired permit to where it was; a live one was only suspended and stays so.
@@ -253,6 +266,13 @@ export async function applyTransition(
       break;
     default:
       break;
+  }
+  // Who stopped the work decides who may restart it (shared/permit/suspension.ts); Holdpoint's own stops count as the system's.
+  const waitsForResume = (state: string) => statesFrom('resume').includes(state as PermitRow['state']);
+  if (waitsForResume(verdict.to) && !waitsForResume(permit.state)) {
+    sets.push('suspended_by_kind = :suspendedByKind', 'suspended_by_user_id = :userId', 'suspended_at = :now', 'suspension_reason = :suspensionReason');
+    r.suspendedByKind = who.caller ? suspendedByKindFor(who.caller.actor.memberships.map((m) => m.role)) : 'system';
+    r.suspensionReason = input.reason ?? who.system ?? null;
   }
   await sequelize.query(`UPDATE permits SET ${sets.join(', ')} WHERE tenant_id = :tenantId AND id = :id`, { replacements: r });
   if (who.caller && signedEvents.includes(event)) {
@@ -270,9 +290,15 @@ export async function applyTransition(
         ? { by: 'holdpoint' }
         : event === 'revalidate'
           ? { validTo: new Date(input.validTo!).toISOString() }
-          : {},
+          : event === 'suspend'
+            ? { suspendedBy: r.suspendedByKind }
+            : event === 'resume'
+              ? { suspendedBy: facts.suspendedByKind ?? null, revalidatedByAuthoriser: resumeNeedsAuthoriser(facts.suspendedByKind) }
+              : {},
     occurredAt: now,
   });
+  // The isolations-in-place signature issues the isolation certificate; a permit finished or cancelled no longer relies on one (HSE HSG253).
+  await certificateAfterTransition(sequelize, permit, event, verdict.to, who.caller ? { userId: who.caller.user.id, name: who.caller.user.name } : null, now);
   await queuePermitMail(sequelize, permit, event, verdict.to, {
     actorName: who.caller?.user.name ?? 'Holdpoint', reason: input.reason ?? who.system, publicUrl: deps.config.PUBLIC_URL, auditSeq: audit.seq, excludeUserEmail: who.caller?.user.email,
   });

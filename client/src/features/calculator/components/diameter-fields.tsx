@@ -1,12 +1,11 @@
 import type { UseFormReturn } from 'react-hook-form';
-import { PIPE_SCHEDULES } from '@shared/calc';
+import { B36_SCHEDULES, scheduleLabel } from '@shared/calc';
 import type { MudPlugForm } from '@shared/schemas/calc.schema';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { usePipeSizes } from '../api/get-pipe-sizes';
 import { pipelineLabel, type PipelineChoices } from '../api/get-pipelines';
 import { fixed } from '../lib/format';
-import { scheduleLabel } from '../hooks/use-plug-figures';
 
 const MODES: { value: MudPlugForm['diameterMode']; label: string; hint: string }[] = [
   { value: 'nominal', label: 'Nominal size', hint: 'The size the pipe is called, in inches.' },
@@ -59,7 +58,7 @@ export function DiameterFields({ form, mode, schedule, nps, pipelines, serverErr
       {mode === 'schedule' ? (
         <div className="grid gap-3 sm:grid-cols-2">
           <SelectField label="Schedule" {...register('schedule')} error={errorOf('schedule')}>
-            {PIPE_SCHEDULES.map((s) => (
+            {B36_SCHEDULES.map((s) => (
               <option key={s} value={s}>
                 {scheduleLabel(s)}
               </option>

@@ -1,6 +1,6 @@
 import type { ReactNode } from 'react';
 import { useWatch, type UseFormReturn } from 'react-hook-form';
-import { MUD_PLUG_CAUTION, galToL, inToMm, lbToKg } from '@shared/calc';
+import { BENTONITE_WEIGH_NOTE, D3_16_DIAMETER_NOTE, MUD_PLUG_CAUTION, SMALL_BORE_PLUG_ADVICE, galToL, inToMm, lbToKg, testedSizesCaution } from '@shared/calc';
 import type { MudPlugForm } from '@shared/schemas/calc.schema';
 import type { MudPlugResponse } from '@shared/types/calc';
 import { ApiError } from '@client/lib/api-client';
@@ -9,7 +9,7 @@ import { Notice, SafetyCaution } from '@client/components/ui/notice';
 import { Card, Loading } from '@client/components/ui/page';
 import type { PipelineChoices } from '../api/get-pipelines';
 import type { usePlugFigures } from '../hooks/use-plug-figures';
-import { upTo } from '../lib/format';
+import { fixed, upTo } from '../lib/format';
 import { DiameterFields } from './diameter-fields';
 
 interface Props {
@@ -53,9 +53,50 @@ function PlugFigures({ plug, metric }: { plug: MudPlugResponse; metric: boolean 
         {metric ? `${upTo(inToMm(plug.plugLengthIn), 0)} mm` : `${upTo(plug.plugLengthIn, 1)} in`}
       </Figure>
       <Figure label={`Balls about ${metric ? '75 mm' : '3 in'} across`} testId="mud-balls">
-        {plug.mudBalls}
+        {plug.mudBalls ?? 'None: bore too small'}
       </Figure>
     </dl>
+  );
+}
+
+type SideBySide = NonNullable<ReturnType<typeof usePlugFigures>['sideBySide']>;
+
+/** D³/16 by the nominal size (what the rule takes) beside the same rule on the bore. */
+function PasteSideBySide({ side, metric }: { side: SideBySide; metric: boolean }) {
+  const mass = (lb: number) => (metric ? `${upTo(lbToKg(lb), 2)} kg` : `${upTo(lb, 2)} lb`);
+  const size = (d: number | null, dp: number) => (d === null ? null : metric ? `${upTo(inToMm(d), 1)} mm (${fixed(d, dp)} in)` : `${fixed(d, dp)} in`);
+  const cell = (plug: SideBySide['nominal'], d: string | null, missing: string, testId: string) => (
+    <div className="min-w-0 rounded-md border border-line bg-paper px-3 py-2">
+      {plug && d ? (
+        <>
+          <p className="text-sm text-ink-soft">D = {d}</p>
+          <p className="text-xl font-bold" data-testid={testId}>
+            {mass(plug.mudLb)}
+          </p>
+          <p className="text-sm">bentonite {mass(plug.bentoniteLb)}, water {mass(plug.waterLb)}</p>
+        </>
+      ) : (
+        <p className="text-sm text-ink-soft" data-testid={testId}>
+          {missing}
+        </p>
+      )}
+    </div>
+  );
+  return (
+    <section aria-label="Paste by nominal size and by bore" className="flex flex-col gap-2">
+      <h3 className="text-base font-semibold">Paste by nominal size and by bore</h3>
+      <div className="grid grid-cols-1 gap-3 sm:grid-cols-2">
+        <div className="flex flex-col gap-1">
+          <p className="text-sm font-semibold">By nominal size (what D³/16 takes)</p>
+          {cell(side.nominal, size(side.nominalIn, 0), 'Not known: give the nominal size, or NPS and schedule.', 'paste-by-nominal')}
+        </div>
+        <div className="flex flex-col gap-1">
+          <p className="text-sm font-semibold">By the bore (inside diameter)</p>
+          {cell(side.bore, size(side.boreIn, 3), 'Not known: give NPS and schedule, a measured bore or a pipeline.', 'paste-by-bore')}
+        </div>
+      </div>
+      <p className="text-xs text-ink-soft">{D3_16_DIAMETER_NOTE}</p>
+    </section>
   );
 }
 
@@ -63,7 +104,8 @@ const messageFor = (error: unknown, path: string) => (error instanceof ApiError 
 
 export function MudPlugSection({ form, figures, pipelines, metric }: Props) {
   const { register, formState } = form;
-  const { settled, basis, pipe, plug, settling } = figures;
+  const { settled, basis, pipe, plug, sideBySide, settling } = figures;
+  const sizeCaution = basis ? testedSizesCaution(basis.nominalIn ?? basis.diameterIn) : null;
   const [mode, ratio, schedule, nps] = useWatch({ control: form.control, name: ['diameterMode', 'ratio', 'schedule', 'nps'] });
 
   // The server names its own inputs; put each message beside the field the person typed into.
@@ -116,12 +158,27 @@ export function MudPlugSection({ form, figures, pipelines, metric }: Props) {
               </strong>
               .
             </p>
+            {sizeCaution ? (
+              <Notice tone="caution" title="Outside the sizes the rule was tried on">
+                <span data-testid="plug-size-caution">{sizeCaution}</span>
+              </Notice>
+            ) : null}
             <div className={settling ? 'opacity-60' : ''}>
               <PlugFigures plug={plug.data} metric={metric} />
             </div>
+            {plug.data.mudBalls === null ? (
+              <Notice tone="info" title="No 3-in balls for this bore">
+                <span data-testid="plug-small-bore">{SMALL_BORE_PLUG_ADVICE}</span>
+              </Notice>
+            ) : null}
+            {sideBySide ? <PasteSideBySide side={sideBySide} metric={metric} /> : null}
+            <p className="text-sm" data-testid="bentonite-weigh-note">
+              <strong className="font-semibold">Why weigh the bentonite: </strong>
+              {BENTONITE_WEIGH_NOTE}
+            </p>
             <p className="text-xs text-ink-soft">
-              Paste D³/16 lb (D in inches) ± 10 %, plug 1.5 × D long, balls about 3 in across, 50/50 to 60/40 water to bentonite by weight: common
-              practice, no published source. Water at 8.33 lb per US gallon.
+              Paste D³/16 lb (D the nominal size in inches) ± 10 %, tried on 6, 10 and 16 in pipe; plug 1.5 × D long, balls about 3 in across,
+              50/50 to 60/40 water to bentonite by weight: common practice, no published source. Water at 8.33 lb per US gallon.
             </p>
           </>
         ) : settling && settled ? (

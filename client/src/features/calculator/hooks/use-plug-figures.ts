@@ -1,6 +1,6 @@
 import { useMemo } from 'react';
 import { useWatch, type Control } from 'react-hook-form';
-import { mmToIn, type PipeDimensions } from '@shared/calc';
+import { mmToIn, scheduleLabel, type PipeDimensions } from '@shared/calc';
 import { mudPlugFormSchema, type MudPlugForm } from '@shared/schemas/calc.schema';
 import { useMudPlug } from '../api/get-mud-plug';
 import { usePipeDimensions } from '../api/get-pipe-dimensions';
@@ -14,9 +14,9 @@ export interface DiameterBasis {
   text: string;
   /** A bore (inside diameter), as line fill needs; false for a nominal size. */
   inside: boolean;
+  /** The nominal size, when known: the D that D³/16 takes. */
+  nominalIn: number | null;
 }
-
-export const scheduleLabel = (schedule: string) => (schedule === 'STD' || schedule === 'XS' ? schedule : `Sch ${schedule}`);
 
 const npsLabel = (nps: number) => {
   const whole = Math.floor(nps);
@@ -28,25 +28,25 @@ function basisOf(v: MudPlugForm, pipe: PipeDimensions | undefined, pipelines: Pi
   switch (v.diameterMode) {
     case 'nominal': {
       const d = Number(v.nominalIn);
-      return { diameterIn: d, text: `nominal ${upTo(d, 3)} in`, inside: false };
+      return { diameterIn: d, text: `nominal ${upTo(d, 3)} in`, inside: false, nominalIn: d };
     }
     case 'schedule': {
       if (!pipe) return null;
       const size = `NPS ${npsLabel(Number(v.nps))} ${scheduleLabel(v.schedule)}, ASME B36.10M`;
-      return { diameterIn: pipe.idIn, text: `inside diameter ${fixed(pipe.idIn, 3)} in (${size})`, inside: true };
+      return { diameterIn: pipe.idIn, text: `inside diameter ${fixed(pipe.idIn, 3)} in (${size})`, inside: true, nominalIn: Number(v.nps) };
     }
     case 'measured': {
       const typed = Number(v.measured);
       if (v.measuredUnit === 'mm') {
         const d = mmToIn(typed);
-        return { diameterIn: d, text: `inside diameter ${upTo(typed, 1)} mm (${fixed(d, 3)} in), measured`, inside: true };
+        return { diameterIn: d, text: `inside diameter ${upTo(typed, 1)} mm (${fixed(d, 3)} in), measured`, inside: true, nominalIn: null };
       }
-      return { diameterIn: typed, text: `inside diameter ${fixed(typed, 3)} in, measured`, inside: true };
+      return { diameterIn: typed, text: `inside diameter ${fixed(typed, 3)} in, measured`, inside: true, nominalIn: null };
     }
     case 'register': {
       const line = pipelines.find((p) => p.id === v.pipelineId);
       if (!line || line.insideDiameterIn === null) return null;
-      return { diameterIn: line.insideDiameterIn, text: `inside diameter ${fixed(line.insideDiameterIn, 3)} in, from the register (${pipelineLabel(line)})`, inside: true };
+      return { diameterIn: line.insideDiameterIn, text: `inside diameter ${fixed(line.insideDiameterIn, 3)} in, from the register (${pipelineLabel(line)})`, inside: true, nominalIn: line.nps };
     }
   }
 }
@@ -68,6 +68,16 @@ export function usePlugFigures(control: Control<MudPlugForm>, pipelines: Pipelin
   const basis = settled ? basisOf(settled, pipe.data, pipelines) : null;
   const waterFraction = settled ? Number(settled.ratio === 'custom' ? settled.customWaterFraction : settled.ratio) : null;
   const plug = useMudPlug(basis && waterFraction !== null ? { diameterIn: basis.diameterIn, waterFraction } : null);
+  // D³/16 takes the nominal size; when the figures above are for a bore, the nominal size's paste is asked for too.
+  const byNominal = useMudPlug(basis?.inside && basis.nominalIn !== null && waterFraction !== null ? { diameterIn: basis.nominalIn, waterFraction } : null);
+  const sideBySide = basis
+    ? {
+        nominalIn: basis.nominalIn,
+        nominal: basis.inside ? (basis.nominalIn === null ? null : (byNominal.data ?? null)) : (plug.data ?? null),
+        boreIn: basis.inside ? basis.diameterIn : null,
+        bore: basis.inside ? (plug.data ?? null) : null,
+      }
+    : null;
 
-  return { settled, basis, pipe, plug, settling: key !== settledKey || pipe.isFetching || plug.isFetching };
+  return { settled, basis, pipe, plug, sideBySide, settling: key !== settledKey || pipe.isFetching || plug.isFetching || byNominal.isFetching };
 }

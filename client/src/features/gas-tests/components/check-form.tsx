@@ -60,7 +60,7 @@ function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckK
           error={errors.checkedAt?.message}
         />
         {kind !== 'fire_watch' ? (
-          <SelectField label={kind === 'vent' ? 'Which vent' : 'Which plug'} {...form.register('isolationStepId')} error={errors.isolationStepId?.message}>
+          <SelectField label={kind === 'vent' ? 'Which vent' : 'Which plug'} {...form.register('isolationStepId', { setValueAs: (v: string) => v || undefined })} error={errors.isolationStepId?.message}>
             <option value="">All {kind === 'vent' ? 'vents' : 'plugs'} of this permit</option>
             {ofKind.map((s) => (
               <option key={s.id} value={s.id}>

@@ -3,16 +3,18 @@ import { checkKindLabels, plugFaceLabels, type CheckKind } from '@shared/schemas
 import type { CheckRow } from '@shared/types/timed-checks';
 import { formatInZone } from '@shared/time/zone';
 import { workUnderWayStates } from '@shared/permit/states';
+import { offeredCheckKinds } from '@shared/gas-tests/check-kinds';
 import { useAbility } from '@client/lib/ability';
 import { Card, EmptyState, Loading } from '@client/components/ui/page';
 import { SafetyCaution } from '@client/components/ui/notice';
 import { EnteredLate } from '@client/components/ui/entered-late';
-import { useChecks } from '../api/checks';
+import { useChecks, usePlanSteps } from '../api/checks';
 import { useRegime } from '../api/get-regime';
 import { useSiteTimeZone } from '../lib/site-time';
 import { scopeOf, workOpen, type PermitLike } from '../lib/permit-like';
 import { DueList } from './due-list';
 import { CheckForm } from './check-form';
+import { FireWatchBasis, StopWorkBlockers } from './stop-work-panel';
 
 function describe(c: CheckRow): string {
   const o = c.observation as Record<string, unknown>;
@@ -30,7 +32,8 @@ export function ChecksSection({ permit }: { permit: PermitLike }) {
   const timeZone = useSiteTimeZone();
   const regime = useRegime(permit.id);
   const checks = useChecks(permit.id);
-  const kinds: CheckKind[] = permit.kinds.includes('hot_work') && workUnderWayStates.includes(permit.state) ? ['vent', 'plug', 'fire_watch'] : ['vent', 'plug'];
+  const steps = usePlanSteps(permit.id);
+  const kinds: CheckKind[] = offeredCheckKinds(steps.data ?? [], permit.kinds.includes('hot_work') && workUnderWayStates.includes(permit.state));
   const canRecord = ability.can('record', subject('Check', scopeOf(permit))) && workOpen(permit);
 
   return (
@@ -42,11 +45,22 @@ export function ChecksSection({ permit }: { permit: PermitLike }) {
         {regime.data ? <DueList due={regime.data.due} kinds={['vent', 'plug', 'fire_watch']} timeZone={timeZone} testId="checks-due-list" /> : <Loading />}
         {regime.data?.fireWatchEndsAt ? (
           <p className="text-sm">
-            Fire watch ({regime.data.fireWatchMinutes} minutes after hot work stopped) may end at <strong>{formatInZone(regime.data.fireWatchEndsAt, timeZone, 'dayTime')}</strong>; hand-back waits for it.
+            Fire watch ({regime.data.fireWatchMinutes} minutes after hot work stopped) may end at <strong>{formatInZone(regime.data.fireWatchEndsAt, timeZone, 'dayTime')}</strong>; hand-back waits for it and for the fire watcher&apos;s closing check after it (area clear, nothing smouldering).
           </p>
         ) : null}
       </div>
-      {canRecord ? <CheckForm permitId={permit.id} kinds={kinds} timeZone={timeZone} /> : null}
+      {regime.data?.stopWork.failedChecks.length ? (
+        <ul className="flex flex-col gap-1 text-sm" data-testid="failed-checks">
+          {regime.data.stopWork.failedChecks.map((c) => (
+            <li key={c} className="rounded-card border-l-4 border-danger bg-danger-soft px-3 py-1 font-semibold">
+              {c}. Work stays stopped until a later check of it finds it right.
+            </li>
+          ))}
+        </ul>
+      ) : null}
+      {regime.data ? <StopWorkBlockers r={regime.data} /> : null}
+      {regime.data && permit.kinds.includes('hot_work') ? <FireWatchBasis r={regime.data} /> : null}
+      {canRecord && kinds.length ? <CheckForm permitId={permit.id} kinds={kinds} timeZone={timeZone} /> : null}
       <h3 className="text-lg font-semibold">Latest checks</h3>
       {checks.isPending ? (
         <Loading />

@@ -14,6 +14,7 @@ import { GasReadingsChart } from './gas-readings-chart';
 import { GasTestHistory } from './gas-test-history';
 import { CsvImport } from './csv-import';
 import { LimitsTable, TightenLimitsForm } from './permit-limits';
+import { GasPlaceVerdicts, StopWorkBlockers } from './stop-work-panel';
 
 function Regime({ r }: { r: PermitRegime }) {
   const done = (at: string | null) => (at ? `passed ${formatInZone(at, r.timeZone, 'dayTime')}` : 'not recorded yet');
@@ -60,6 +61,8 @@ export function GasTestsSection({ permit }: { permit: PermitLike }) {
         ) : (
           <>
             <Regime r={regime.data} />
+            <GasPlaceVerdicts r={regime.data} />
+            <StopWorkBlockers r={regime.data} />
             <div className="flex flex-col gap-2" data-testid="gas-due">
               <h3 className="text-lg font-semibold">Next due</h3>
               {liveStates.includes(permit.state) ? <DueList due={regime.data.due} kinds={['gas_test']} timeZone={regime.data.timeZone} testId="gas-due-list" /> : <p className="text-sm text-ink-soft">Repeat tests fall due while work is live.</p>}

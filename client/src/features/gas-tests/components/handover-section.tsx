@@ -5,7 +5,8 @@ import { subject } from '@casl/ability';
 import { handoverAcceptSchema, handoverCreateSchema, type HandoverAcceptInput, type HandoverCreateInput } from '@shared/schemas/timed-checks.schema';
 import type { HandoverRow } from '@shared/types/timed-checks';
 import { formatInZone } from '@shared/time/zone';
-import { workUnderWayStates } from '@shared/permit/states';
+import { qualificationForKind, workUnderWayStates } from '@shared/permit/states';
+import { qualificationLabels, type QualificationKind } from '@shared/abilities/roles';
 import { ApiError } from '@client/lib/api-client';
 import { useAbility } from '@client/lib/ability';
 import { useMe } from '@client/features/auth';
@@ -43,7 +44,12 @@ function SignOut({ permit, userName }: { permit: PermitLike; userName: string })
       )}
     >
       <h3 className="text-lg font-semibold">Hand over to the next shift</h3>
-      <SelectField label="Incoming contractor lead" {...form.register('toUserId')} error={e.toUserId?.message}>
+      <SelectField
+        label="Incoming contractor lead"
+        {...form.register('toUserId')}
+        error={e.toUserId?.message}
+        hint={`The incoming lead must hold an in-date qualification for: ${[...new Set(permit.kinds.map((k) => qualificationLabels[qualificationForKind[k] as QualificationKind]))].join(', ')}.`}
+      >
         <option value="">Choose…</option>
         {others.map((l) => (
           <option key={l.userId} value={l.userId}>

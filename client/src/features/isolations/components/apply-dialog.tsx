@@ -1,7 +1,7 @@
 import { useState } from 'react';
 import { useForm, useWatch } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { checkAsBuiltPlug, type PlugWarning } from '@shared/calc';
+import { BENTONITE_WEIGH_NOTE, checkAsBuiltPlug, type PlugWarning } from '@shared/calc';
 import { conditionLabels } from '@shared/schemas/isolation.schema';
 import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
@@ -19,6 +19,7 @@ import { applyFieldOf, applyFormSchema, numberOrUndefined, textOrUndefined, toAp
 import { placeServerErrors } from '../lib/server-errors';
 import { PlugWarnings, plugTargets } from './plug-record';
 import { ConfirmBox } from './confirm-box';
+import { usePlugUnits } from '../lib/plug-units';
 import { LineStopFields } from './line-stop-fields';
 
 interface Props {
@@ -61,6 +62,9 @@ export function ApplyDialog({ permitId, step, steps, timeZone, onClose }: Props)
   const target = isPlug ? plugTargets(step.plugDiameterIn) : null;
   const warnings = isPlug ? liveWarnings(step.plugDiameterIn, { bentoniteLb, waterLb, lengthIn }) : [];
   const num = { setValueAs: numberOrUndefined };
+  // Weights are typed in the tenant's unit and held in lb, as the record keeps them.
+  const units = usePlugUnits();
+  const weight = { setValueAs: (v: unknown) => units.toLb(numberOrUndefined(v)) };
 
   const submit = handleSubmit((v) => {
     setProblem(null);
@@ -128,24 +132,25 @@ export function ApplyDialog({ permitId, step, steps, timeZone, onClose }: Props)
           <fieldset className="flex flex-col gap-3 rounded-md border border-line p-3">
             <legend className="px-1 text-sm font-semibold">Plug as built</legend>
             <TextField
-              label="Bentonite used (lb)"
+              label={`Bentonite used (${units.massUnit})`}
               type="number"
               inputMode="decimal"
               step="any"
               min={0}
-              {...register('bentoniteLb', num)}
+              {...register('bentoniteLb', weight)}
               error={formState.errors.bentoniteLb?.message}
-              hint={target ? `Target ${Number(target.bentoniteLb.toFixed(1))} lb` : undefined}
+              hint={target ? `Target ${units.mass(target.bentoniteLb)}` : undefined}
             />
+            <p className="text-sm text-ink-soft">{BENTONITE_WEIGH_NOTE}</p>
             <TextField
-              label="Water used (lb)"
+              label={`Water used (${units.massUnit})`}
               type="number"
               inputMode="decimal"
               step="any"
               min={0}
-              {...register('waterLb', num)}
+              {...register('waterLb', weight)}
               error={formState.errors.waterLb?.message}
-              hint={target ? `Target ${Number(target.waterLb.toFixed(1))} lb; paste ${Number(target.mudLbRange[0].toFixed(1))}–${Number(target.mudLbRange[1].toFixed(1))} lb in all` : undefined}
+              hint={target ? `Target ${units.water(target.waterLb)}; paste ${units.mass(target.mudLbRange[0])} to ${units.mass(target.mudLbRange[1])} in all` : undefined}
             />
             <TextField
               label="Plug length built (in)"

@@ -21,6 +21,7 @@ import { IsolationReadinessPanel } from './isolation-readiness-panel';
 import { RemovalExceptionDialog } from './removal-exception-dialog';
 import { RemoveDialog } from './remove-dialog';
 import { StepItem, type StepDialog } from './step-item';
+import { HandOverLockDialog } from './hand-over-lock-dialog';
 import { VerifyDialog } from './verify-dialog';
 
 /** The fields of GET /api/permits/:id this section reads; the whole detail object fits. */
@@ -142,6 +143,7 @@ export function IsolationPlanSection({ permit }: { permit: IsolationPlanPermit }
           onRemove={() => setDialog({ kind: 'remove', step: dialogStep ?? dialog.step, signed: true })}
         />
       ) : null}
+      {dialog?.kind === 'handover' ? <HandOverLockDialog permitId={permit.id} step={dialogStep ?? dialog.step} signer={user.name} onClose={close} /> : null}
       {dialog?.kind === 'acknowledge' ? <AcknowledgeDialog permitId={permit.id} step={dialog.step} what={dialog.what} onClose={close} /> : null}
     </Card>
   );

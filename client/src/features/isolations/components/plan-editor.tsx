@@ -10,6 +10,8 @@ import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
+import { OutsideSection } from './outside-section';
+import { usePlugUnits } from '../lib/plug-units';
 import { useToast } from '@client/components/ui/toast';
 import { ModalDialog } from '@client/components/ui/dialog';
 import type { IsolationStep } from '@shared/types/isolations';
@@ -237,6 +239,8 @@ export function PlanEditor({ permit, steps, deadEnds: savedDeadEnds, points, ins
         </p>
       ) : null}
 
+      <OutsideSection rows={rows} range={{ from: permit.fromPosition, to: permit.toPosition }} />
+
       <PlanCoverage
         rows={rows}
         range={{ from: permit.fromPosition, to: permit.toPosition }}
@@ -354,11 +358,11 @@ function AddTemporaryStep({ insideDiameterIn, defaultPosition, onAdd }: { inside
 /** What the crew will need for this plug, worked from the diameter as the planner types it. */
 function PlugSummary({ diameterIn }: { diameterIn: number | undefined }) {
   const t = plugTargets(diameterIn);
+  const u = usePlugUnits();
   if (!t) return null;
-  const n = (v: number) => Number(v.toFixed(1));
   return (
     <p className="text-sm" data-testid="plan-plug-targets">
-      To build: {n(t.bentoniteLb)} lb bentonite, {n(t.waterLb)} lb water, {n(t.plugLengthIn)} in long, about {t.mudBalls} balls.
+      To build: {u.mass(t.bentoniteLb)} bentonite, {u.mass(t.waterLb)} water, {u.length(t.plugLengthIn)} long, {t.mudBalls === null ? 'packed by hand or in small balls (bore under about 4 in)' : `about ${t.mudBalls} balls`}.
     </p>
   );
 }

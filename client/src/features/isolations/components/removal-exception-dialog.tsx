@@ -1,4 +1,5 @@
 import { useState } from 'react';
+import { signatureMessages, signedNameMatches } from '@shared/permit/signed-name';
 import { useFieldArray, useForm, type Path } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
@@ -27,7 +28,7 @@ interface Props {
 }
 
 const MAX_ATTEMPTS = 10;
-const same = (a: string, b: string) => a.trim().toLowerCase() === b.trim().toLowerCase();
+const same = (a: string | undefined, b: string) => signedNameMatches(a, b);
 
 const formSchema = (signer: string) =>
   z.object({
@@ -37,8 +38,8 @@ const formSchema = (signer: string) =>
       .min(1, 'Record at least one attempt to reach them.')
       .max(MAX_ATTEMPTS),
     informPlan: z.string().trim().min(1, 'Say how they will be told before they come back to work.').max(1000),
-    password: z.string().min(1, 'Re-enter your password to sign.'),
-    signedName: z.string().refine((v) => same(v, signer), `Type your name exactly as "${signer}".`),
+    password: z.string().min(1, signatureMessages.passwordMissing),
+    signedName: z.string().refine((v) => same(v, signer), signatureMessages.name(signer)),
   });
 type ExceptionForm = z.infer<ReturnType<typeof formSchema>>;
 
@@ -50,7 +51,7 @@ const knownField = /^(absenceCheck|informPlan|password|signedName|contactAttempt
  * that record first, and once it is there goes on to remove the lock and sign for it.
  */
 export function RemovalExceptionDialog({ permitId, step, user, mayRecord, mayRemove, timeZone, onClose, onRemove }: Props) {
-  const owner = step.appliedByName ?? 'the person who put it on';
+  const owner = step.heldByName ?? 'the person who put it on';
   const device = [step.lockNumber ? `lock ${step.lockNumber}` : '', step.tagNumber ? `tag ${step.tagNumber}` : ''].filter(Boolean).join(' and ') || 'lock';
   const recorded = step.exceptionRecordedAt !== null;
   const recordedByMe = step.exceptionAuthoriserId === user.id;

@@ -1,4 +1,5 @@
 import { useState } from 'react';
+import { signatureMessages, signedNameMatches } from '@shared/permit/signed-name';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { removeStepInputSchema, type RemoveStepInput } from '@shared/schemas/isolation.schema';
@@ -17,7 +18,7 @@ import { ConfirmBox } from './confirm-box';
 
 const fields = ['note', 'plugOutcome', 'outOfOrderReason', 'password', 'signedName'] as const;
 
-const same = (a: string | undefined, b: string) => (a ?? '').trim().toLowerCase() === b.trim().toLowerCase();
+const same = (a: string | undefined, b: string) => signedNameMatches(a, b);
 
 /** `signer`: the remover's name when they sign for taking off someone else's lock under a recorded exception. */
 const removeFormSchema = (isPlug: boolean, needsReason: boolean, signer: string | null) =>
@@ -25,8 +26,8 @@ const removeFormSchema = (isPlug: boolean, needsReason: boolean, signer: string 
     if (isPlug && !v.plugOutcome) ctx.addIssue({ code: 'custom', path: ['plugOutcome'], message: 'Say whether the plug was removed or left to be displaced by product.' });
     if (needsReason && !v.outOfOrderReason) ctx.addIssue({ code: 'custom', path: ['outOfOrderReason'], message: 'Give the reason for taking this one off out of order.' });
     if (signer === null) return;
-    if (!v.password) ctx.addIssue({ code: 'custom', path: ['password'], message: 'Re-enter your password to sign.' });
-    if (!same(v.signedName, signer)) ctx.addIssue({ code: 'custom', path: ['signedName'], message: `Type your name exactly as "${signer}".` });
+    if (!v.password) ctx.addIssue({ code: 'custom', path: ['password'], message: signatureMessages.passwordMissing });
+    if (!same(v.signedName, signer)) ctx.addIssue({ code: 'custom', path: ['signedName'], message: signatureMessages.name(signer) });
   });
 
 interface Props {
@@ -116,7 +117,7 @@ export function RemoveDialog({ permitId, step, steps, signer, onClose }: Props) 
         <TextAreaField label="Note (optional)" {...register('note', { setValueAs: textOrUndefined })} error={formState.errors.note?.message} data-autofocus={isPlug ? undefined : true} />
         {signer ? (
           <>
-            <Notice tone="caution" title={`This is ${step.appliedByName ?? 'someone else'}'s lock`} role="status">
+            <Notice tone="caution" title={`This is ${step.heldByName ?? 'someone else'}'s lock`} role="status">
               {step.exceptionAuthoriserName ?? 'An authoriser'} recorded that they are not on site. You sign for taking it off; they get an e-mail saying so.
             </Notice>
             <TextField label="Your password" type="password" autoComplete="current-password" {...register('password')} error={formState.errors.password?.message} />

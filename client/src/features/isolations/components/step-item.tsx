@@ -10,7 +10,7 @@ import { Button } from '@client/components/ui/button';
 import { EnteredLate } from '@client/components/ui/entered-late';
 import type { IsolationStep } from '@shared/types/isolations';
 import { isInPlace, stepActions } from '@shared/isolations/step-rules';
-import { removalNeedsException } from '@shared/isolations/lockout-rules';
+import { mayHandOver, removalNeedsException } from '@shared/isolations/lockout-rules';
 import { acknowledgeButtonLabels, type AcknowledgeWhat } from './acknowledge-dialog';
 import { LineStopRecord } from './line-stop-record';
 import { PlugRecord } from './plug-record';
@@ -18,7 +18,7 @@ import { StepKindTag, StepStatusBadge } from './step-badges';
 
 /** `signed`: a removal of someone else's lock under a recorded exception, which the remover signs. */
 export type StepDialog =
-  | { kind: 'apply' | 'verify' | 'exception'; step: IsolationStep }
+  | { kind: 'apply' | 'verify' | 'exception' | 'handover'; step: IsolationStep }
   | { kind: 'remove'; step: IsolationStep; signed?: boolean }
   | { kind: 'acknowledge'; step: IsolationStep; what: AcknowledgeWhat };
 
@@ -91,6 +91,11 @@ export function StepItem({ permit, step, unit, timeZone, userId, onAction }: Pro
             {step.appliedOutOfOrderReason ? <span className="block text-ink-soft">Out of the plan&apos;s order: {step.appliedOutOfOrderReason}</span> : null}
           </Fact>
         ) : null}
+        {step.handedOverAt ? (
+          <Fact label="Held by">
+            {step.heldByName}, handed over {at(step.handedOverAt)}
+          </Fact>
+        ) : null}
         {step.remotelyOperable && step.appliedAt ? (
           <Fact label="Remote operation inhibited">{step.remoteAckAt ? `${step.remoteAckByName ?? 'Control room'}, ${at(step.remoteAckAt)}` : <span className="font-semibold text-danger">Not yet acknowledged by the control room</span>}</Fact>
         ) : null}
@@ -119,7 +124,7 @@ export function StepItem({ permit, step, unit, timeZone, userId, onAction }: Pro
           </Fact>
         ) : step.exceptionRecordedAt ? (
           <Fact label="Exception recorded">
-            {step.exceptionAuthoriserName}, {at(step.exceptionRecordedAt)}: {step.appliedByName} is away; another technician may take the lock off and sign for it
+            {step.exceptionAuthoriserName}, {at(step.exceptionRecordedAt)}: {step.heldByName} is away; another technician may take the lock off and sign for it
           </Fact>
         ) : null}
       </dl>
@@ -170,6 +175,11 @@ export function StepItem({ permit, step, unit, timeZone, userId, onAction }: Pro
               Remove
             </Button>
           </Can>
+        ) : null}
+        {mayHandOver(step, userId) ? (
+          <Button variant="secondary" aria-describedby={`step-${step.id}`} onClick={() => onAction({ kind: 'handover', step })}>
+            Hand over my lock
+          </Button>
         ) : null}
         {mayUseException ? (
           <Button variant="danger" aria-describedby={`step-${step.id}`} onClick={() => onAction({ kind: 'exception', step })}>

@@ -8,6 +8,7 @@ import { EmptyState, Loading, PageHeader } from '@client/components/ui/page';
 import { useListQuery } from '@client/lib/list-query';
 import { useMe } from '@client/features/auth';
 import { useNow } from '@client/features/permits';
+import { LongTermRechecks } from '@client/features/certificates';
 import { useBoard } from '../api/get-board';
 import { AcknowledgeDialog } from '../components/acknowledge-dialog';
 import { BoardFilters } from '../components/board-filters';
@@ -41,6 +42,7 @@ export default function BoardPage() {
       <div className="flex min-w-0 flex-col gap-4">
         <SafetyCaution>The board shows what has been recorded. Confirm with the crew on site before any valve is operated. </SafetyCaution>
         <BoardFilters value={filters} onChange={setFilters} />
+        <LongTermRechecks timeZone={timeZone} />
         {board.data ? (
           <p className="text-sm text-ink-soft" aria-live="polite" data-testid="board-summary">
             {board.data.total} isolation{board.data.total === 1 ? '' : 's'} in place

@@ -32,7 +32,7 @@ export function HotWorkPanel({ permit, timeZone }: { permit: PermitDetail; timeZ
           The fire watch runs until <strong>{formatInZone(end, timeZone)}</strong>
           {left > 0 ? ` (${formatSpan(left)} more).` : ' — its time is over.'}
         </p>
-        <p className="text-xs">{permit.fireWatchMinutes} minutes after hot work stops (at least 30: OSHA 29 CFR 1910.252; 60 recommended by NFPA 51B).</p>
+        <p className="text-xs">{permit.fireWatchMinutes} minutes after hot work stops (NFPA 51B, 2019 edition, requires at least 60; the fire watcher ends it with a closing check: area clear, nothing smouldering).</p>
       </Notice>
     );
   }

@@ -1,3 +1,4 @@
+import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { subject } from '@casl/ability';
@@ -12,18 +13,20 @@ import { TextField } from '@client/components/ui/field';
 import { Card } from '@client/components/ui/page';
 import { useToast } from '@client/components/ui/toast';
 import { useCrewSignOff, useCrewSignOn } from '../api/crew-lockbox';
+import { CrewHandOverForm } from './crew-hand-over-form';
 
 /**
  * Group lockout per person (OSHA 29 CFR 1910.147(f)(3)(ii)(D)): who has a personal lock on the
  * permit's lockbox now, and the signed-in person's own Sign on / Sign off. Shown only where the site
  * locks per person.
  */
-export function LockboxSection({ permit, userId, timeZone }: { permit: PermitDetail; userId: string; timeZone: string }) {
+export function LockboxSection({ permit, userId, userName, timeZone }: { permit: PermitDetail; userId: string; userName: string; timeZone: string }) {
   const ability = useAbility();
   const toast = useToast();
   const signOn = useCrewSignOn(permit.id);
   const signOff = useCrewSignOff(permit.id);
   const form = useForm<CrewSignOnInput>({ resolver: zodResolver(crewSignOnInputSchema), defaultValues: { personalLockNumber: '' } });
+  const [handingOver, setHandingOver] = useState(false);
   const box = permit.lockbox;
   if (!box.perPerson) return null;
   const mine = box.crewOn.find((c) => c.userId === userId);
@@ -50,21 +53,28 @@ export function LockboxSection({ permit, userId, timeZone }: { permit: PermitDet
       ) : (
         <p className="mb-3 text-sm font-medium">Nobody is signed on.</p>
       )}
-      {mine ? (
-        <Button
-          type="button"
-          variant="secondary"
-          className="w-full sm:w-auto"
-          busy={signOff.isPending}
-          onClick={() =>
-            signOff.mutate(undefined, {
-              onSuccess: () => toast('success', `Signed off: take personal lock ${mine.personalLockNumber} off the lockbox.`),
-              onError: (e) => toast('error', e.message),
-            })
-          }
-        >
-          Sign off (remove my lock {mine.personalLockNumber})
-        </Button>
+      {mine && handingOver ? (
+        <CrewHandOverForm permitId={permit.id} signer={userName} myLock={mine.personalLockNumber} onDone={() => setHandingOver(false)} />
+      ) : mine ? (
+        <div className="flex flex-col gap-2 sm:flex-row">
+          <Button type="button" className="w-full sm:w-auto" onClick={() => setHandingOver(true)}>
+            Hand over my lock
+          </Button>
+          <Button
+            type="button"
+            variant="secondary"
+            className="w-full sm:w-auto"
+            busy={signOff.isPending}
+            onClick={() =>
+              signOff.mutate(undefined, {
+                onSuccess: () => toast('success', `Signed off: take personal lock ${mine.personalLockNumber} off the lockbox.`),
+                onError: (e) => toast('error', e.message),
+              })
+            }
+          >
+            Sign off (remove my lock {mine.personalLockNumber})
+          </Button>
+        </div>
       ) : maySignOn ? (
         <form
           noValidate

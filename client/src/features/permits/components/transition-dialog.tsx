@@ -2,6 +2,7 @@ import { useMemo } from 'react';
 import { Controller, useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { transitionInputSchema } from '@shared/schemas/permit.schema';
+import { signatureMessages, signedNameMatches } from '@shared/permit/signed-name';
 import type { PermitAction, PermitDetail } from '@shared/types/permits';
 import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
@@ -25,7 +26,6 @@ interface Props {
   onOutcome: (outcome: TransitionOutcome) => void;
 }
 
-const same = (a: string | undefined, b: string) => (a ?? '').trim().toLowerCase() === b.trim().toLowerCase();
 
 /** Confirms one permit action: asks for a reason or a signature when the step needs one, and says when it cannot be undone. */
 export function TransitionDialog({ action, permit, userName, timeZone, onClose, onOutcome }: Props) {
@@ -36,8 +36,8 @@ export function TransitionDialog({ action, permit, userName, timeZone, onClose, 
       transitionInputSchema.pick({ reason: true, password: true, signedName: true, validTo: true }).superRefine((v, ctx) => {
         if (action.needsReason && (v.reason ?? '').trim().length < 3) ctx.addIssue({ code: 'custom', path: ['reason'], message: 'Give a reason in words (at least 3 characters).' });
         if (action.needsSignature) {
-          if (!v.password) ctx.addIssue({ code: 'custom', path: ['password'], message: 'Re-enter your password to sign.' });
-          if (!same(v.signedName, userName)) ctx.addIssue({ code: 'custom', path: ['signedName'], message: `Type your name exactly as "${userName}".` });
+          if (!v.password) ctx.addIssue({ code: 'custom', path: ['password'], message: signatureMessages.passwordMissing });
+          if (!signedNameMatches(v.signedName, userName)) ctx.addIssue({ code: 'custom', path: ['signedName'], message: signatureMessages.name(userName) });
         }
         if (needsEnd && !v.validTo) ctx.addIssue({ code: 'custom', path: ['validTo'], message: 'Give the new end of the validity window.' });
       }),

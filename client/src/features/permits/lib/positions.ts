@@ -1,12 +1,11 @@
-import { positionPrefix, type LocationUnit } from '@shared/schemas/assets.schema';
+import type { LocationUnit } from '@shared/schemas/assets.schema';
+import { positionText } from '@shared/permit/record-words';
 
 /** How the tenant's unit is said beside a position field. */
 export const positionWord: Record<LocationUnit, string> = { mi: 'milepost', km: 'kilometre post' };
 
-const trim = (v: number) => String(Number(v.toFixed(3)));
-
-/** "MP 12.4" or "KP 3.25". */
-export const formatPosition = (v: number, unit: LocationUnit) => `${positionPrefix[unit]} ${trim(v)}`;
+/** "MP 12.4" or "KP 3.25": the same words as the printed permit. */
+export const formatPosition = positionText;
 
 /** "MP 12.4 – MP 13" */
 export const formatRange = (from: number, to: number, unit: LocationUnit) => `${formatPosition(from, unit)} – ${formatPosition(to, unit)}`;

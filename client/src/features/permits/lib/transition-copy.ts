@@ -19,7 +19,7 @@ export const eventExplanations: Partial<Record<PermitEvent, string>> = {
   confirm_isolated: 'You sign as the authoriser that the isolations are in place: every step applied and verified by a second person, an isolating device on every open side of the work, and the section proved dead. Re-enter your password and type your name.',
   start_work: 'Work may start now under this permit.',
   suspend: 'The crew must stop work and make the site safe.',
-  resume: 'Work may restart under this permit.',
+  resume: 'Work may restart under this permit. When the control room, an authoriser or Holdpoint stopped it, an authoriser re-validates it here: say what was checked.',
   hand_back: 'You sign that the work is complete and the site is left safe.',
   return_to_service: 'You sign that the isolations are removed and the walk-down is complete.',
   acknowledge_return: 'The control room acknowledges the line is back in service.',

@@ -26,7 +26,9 @@ import { SignaturesSection } from '../components/signatures-section';
 import { TimelineSection } from '../components/timeline-section';
 import { AttachmentsSlot } from '../components/attachments-slot';
 import { AttachmentsPanel } from '@client/features/attachments';
+import { PermitCertificateLine } from '@client/features/certificates';
 import { PermitNotFound } from '../components/permit-not-found';
+import { SuspensionNotice } from '../components/suspension-notice';
 import { linkButtonClass } from '../components/link-button';
 import { useTenantSettings } from '../hooks/use-tenant-settings';
 
@@ -84,6 +86,8 @@ export default function PermitPage() {
         </Notice>
       ) : null}
 
+      <SuspensionNotice permit={p} timeZone={timeZone} />
+
       {p.workOverlaps.length ? (
         <Notice tone="caution" title="Other work on the same stretch of line" role="status">
           <ul className="list-disc pl-5 text-sm" data-testid="work-overlaps">
@@ -108,6 +112,7 @@ export default function PermitPage() {
               <PermitActions permit={p} userName={me?.user.name ?? ''} timeZone={timeZone} onConflict={() => void permit.refetch()} />
               <HotWorkPanel permit={p} timeZone={timeZone} />
               <PrintPermitLink permit={p} />
+              <PermitCertificateLine permitId={p.id} />
             </div>
           </Card>
           <SafetyCaution>{p.kinds.includes('hot_work') || p.kinds.includes('confined_space') ? 'Hazardous work: check the gas tests and isolations on site before every step. ' : null}</SafetyCaution>
@@ -118,7 +123,7 @@ export default function PermitPage() {
           <PlaceSection permit={p} unit={unit} showStrip={false} />
           <IsolationPlanSection permit={p} />
           <CrewSection permit={p} />
-          <LockboxSection permit={p} userId={me?.user.id ?? ''} timeZone={timeZone} />
+          <LockboxSection permit={p} userId={me?.user.id ?? ''} userName={me?.user.name ?? ''} timeZone={timeZone} />
           <ChecklistSection permit={p} timeZone={timeZone} />
           <GasTestsSection permit={p} />
           <ChecksSection permit={p} />

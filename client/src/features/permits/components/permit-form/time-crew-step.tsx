@@ -112,7 +112,7 @@ export function TimeCrewStep({ form, timeZone, ownOrganisationIds }: Props) {
             step={1}
             {...form.register('fireWatchMinutes', { setValueAs: optionalNumber })}
             error={fieldError(form, 'fireWatchMinutes')}
-            hint="At least 30 (OSHA 29 CFR 1910.252); 60 is the NFPA 51B recommendation and the default."
+            hint="NFPA 51B (2019 edition) requires at least 60 minutes, the default; 30 only where the site has chosen the OSHA half hour (29 CFR 1910.252(a)(2)(iii)(B))."
           />
           <TextField label="Fire watch person (optional)" maxLength={120} {...form.register('fireWatchPerson')} error={fieldError(form, 'fireWatchPerson')} />
         </div>
