@@ -28,6 +28,14 @@ const actionWords: Record<string, string> = {
   lock_handed_over: 'Lock handed over at a shift change',
   crew_lock_handed_over: 'Personal lock on the lockbox handed over at a shift change',
   crew_signed_off_under_exception: 'Personal lock taken off under the exception procedure',
+  certificate_issued: 'Isolation certificate issued',
+  certificate_linked: 'Relies on an existing isolation certificate',
+  certificate_released: 'No longer relies on its isolation certificate',
+  certificate_returned: 'Isolation certificate returned',
+  certificate_long_term: 'Isolation kept in place long-term',
+  certificate_recheck_passed: 'Long-term isolation re-check passed',
+  certificate_recheck_failed: 'Long-term isolation re-check failed',
+  certificate_recheck_overdue: 'Long-term isolation re-check overdue',
 };
 
 /** "plan_saved" → "Isolation plan saved"; an action without its own words is written as a sentence. */

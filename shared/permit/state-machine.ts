@@ -1,5 +1,6 @@
 import type { Action } from '../abilities/define-ability';
 import { readinessGaps, type IsolationReadiness } from '../isolations/readiness';
+import { isCertificateLive, type CertificateState } from '../isolations/certificate-states';
 import { permitStates, qualificationForKind, type PermitState, type WorkKind } from './states';
 import { fireWatchCloseGap, stopWorkGaps, type StopWorkFacts } from './stop-work';
 import { resumeNeedsAuthoriser, suspendedByLabels, type SuspendedByKind } from './suspension';
@@ -146,7 +147,7 @@ export interface PermitFacts {
 
 export interface PermitCertificateFacts {
   number: string;
-  state: 'live' | 'returned';
+  state: CertificateState;
   /** A failed re-check not yet cleared by a passing one. */
   problem: string | null;
 }
@@ -155,7 +156,7 @@ export interface PermitCertificateFacts {
 export function certificateGaps(certificate: PermitCertificateFacts | null | undefined): string[] {
   if (certificate === undefined) return [];
   if (certificate === null) return ['No isolation certificate covers this permit: work starts only under a live certificate, which the authoriser’s signature on the isolations issues.'];
-  if (certificate.state !== 'live') return [`Isolation certificate ${certificate.number} has been returned: work starts only under a live certificate.`];
+  if (!isCertificateLive(certificate)) return [`Isolation certificate ${certificate.number} has been returned: work starts only under a live certificate.`];
   if (certificate.problem) return [`Isolation certificate ${certificate.number} failed its last re-check (${certificate.problem}). Put it right and record a passing re-check first.`];
   return [];
 }

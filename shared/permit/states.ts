@@ -104,6 +104,10 @@ export const beforeIsolatedStates: readonly PermitState[] = ['draft', 'requested
 export const workOverlapStates: readonly PermitState[] = ['requested', 'approved', ...holding];
 /** The isolations are signed in place and work is not handed back: the crew may put personal locks on the permit's lockbox. */
 export const crewSignOnStates: readonly PermitState[] = ['isolated', 'live', 'suspended'];
+/** A permit may take on another permit's isolation certificate while it is still being planned, before its own isolations count. */
+export const certificateLinkStates: readonly PermitState[] = ['draft', 'requested', 'approved', 'accepted'];
+/** Once here a permit no longer relies on its isolation certificate; a certificate nothing relies on and whose isolations are off is returned. */
+export const certificateReleaseStates: readonly PermitState[] = ['returned_to_service', 'closed', 'cancelled'];
 
 /** When each of the permit's lists may be ticked: the before-work checklist by the crew, the walk-down once work is complete. */
 export const checklistOpenStates: Record<'checklist' | 'walkdown', readonly PermitState[]> = {

@@ -1,10 +1,8 @@
 import { z } from 'zod';
 import { gaugeUnits } from '../calc/pressure';
+import { certificateStates } from '../isolations/certificate-states';
 import { pageQuerySchema, textField, uuidSchema } from './common.schema';
 
-export const certificateStates = ['live', 'returned'] as const;
-export type CertificateState = (typeof certificateStates)[number];
-export const certificateStateLabels: Record<CertificateState, string> = { live: 'Live', returned: 'Returned' };
 
 /** GET /api/certificates: paged on the server; filter by state, pipeline or long-term isolations only. */
 export const certificatesQuerySchema = z.strictObject({

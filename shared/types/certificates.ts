@@ -1,5 +1,5 @@
 import type { GaugeUnit } from '../calc/pressure';
-import type { CertificateState } from '../schemas/certificates.schema';
+import type { CertificateState } from '../isolations/certificate-states';
 import type { PermitState } from '../permit/states';
 import type { Moment } from './moment';
 

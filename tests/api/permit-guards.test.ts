@@ -2,6 +2,7 @@
 // error.details), then one hot-work permit taken all the way to closed.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
+import { auditActionLabel } from '@shared/permit/record-words';
 import { startTestServer, type TestServer } from '../fixtures/test-server';
 import { demoIds, sign, transition, users } from '../fixtures/permit-fixtures';
 import {
@@ -212,10 +213,31 @@ describe('permit guards through the API', () => {
 
   it('when the permit is closed, then its timeline holds every move in order, five signatures, and the audit chain verifies', async () => {
     const permit = await expectOk(await crew.auditor.get(`/api/permits/${id}`));
-    const moves = (permit.timeline as { action: string; toState: string | null }[]).filter((e) => e.toState).map((e) => e.action);
+    // The permit's own moves: its isolation certificate's events sit in the same timeline with states of their own.
+    const moves = (permit.timeline as { action: string; toState: string | null; entityType: string }[]).filter((e) => e.entityType === 'permit' && e.toState).map((e) => e.action);
     expect(moves).toEqual(['created', 'submit', 'approve', 'accept', 'confirm_isolated', 'start_work', 'suspend', 'resume', 'suspend', 'resume', 'hand_back', 'return_to_service', 'acknowledge_return', 'close']);
     expect((permit.signatures as { event: string }[]).map((s) => s.event)).toEqual(['approve', 'accept', 'confirm_isolated', 'hand_back', 'return_to_service']);
     const verify = await crew.auditor.get('/api/audit/verify');
     expect(verify.body).toMatchObject({ ok: true });
+  });
+  it('finding 3: when the permit is closed, then its timeline shows its isolation certificate issued with the isolations signed in place and returned with the line, in plain words', async () => {
+    const permit = await expectOk(await crew.auditor.get(`/api/permits/${id}`));
+    const timeline = permit.timeline as { action: string; fromState: string | null; toState: string | null; entityType: string }[];
+    const around = timeline.filter((e) => e.entityType === 'isolation_certificate' || ['confirm_isolated', 'start_work', 'return_to_service', 'acknowledge_return'].includes(e.action));
+    expect(around.map((e) => [e.action, e.fromState, e.toState])).toEqual([
+      ['confirm_isolated', 'accepted', 'isolated'],
+      ['certificate_issued', null, 'live'],
+      ['start_work', 'isolated', 'live'],
+      ['return_to_service', 'work_complete', 'returned_to_service'],
+      ['certificate_released', null, null],
+      ['certificate_returned', 'live', 'returned'],
+      ['acknowledge_return', 'returned_to_service', 'returned_to_service'],
+    ]);
+    // What the screen and the printed permit write for them: never the code, never the certificate's state as if it were the permit's.
+    expect(around.filter((e) => e.entityType === 'isolation_certificate').map((e) => auditActionLabel(e.action))).toEqual([
+      'Isolation certificate issued',
+      'No longer relies on its isolation certificate',
+      'Isolation certificate returned',
+    ]);
   });
 });

@@ -23,9 +23,18 @@ describe('finding 1: the step and permit rules come from shared/', () => {
   const sql = (query: string, replacements: Record<string, unknown> = {}) =>
     srv.deps.sequelize.query(query, { replacements: { tenantId: ids.tenantId, permitId, ...replacements } });
 
-  /** Puts the permit in `state` and the vent step back to `status`, applied by the first technician, nothing acknowledged. */
+  /**
+   * Puts the permit in `state` and the vent step back to `status`, applied by the first technician, nothing acknowledged.
+   * A suspended permit has its suspension recorded, as the suspend event leaves it (who stopped the work, when and why);
+   * any other state has none, as resume leaves it.
+   */
   async function arrange(state: PermitState, status: StepStatus) {
-    await sql(`UPDATE permits SET state = :state WHERE tenant_id = :tenantId AND id = :permitId`, { state });
+    const suspended = state === 'suspended';
+    await sql(
+      `UPDATE permits SET state = :state, suspended_by_kind = :byKind, suspended_by_user_id = NULL, suspended_at = :at, suspension_reason = :reason
+       WHERE tenant_id = :tenantId AND id = :permitId`,
+      { state, byKind: suspended ? 'system' : null, at: suspended ? srv.clock.now() : null, reason: suspended ? 'A gas test failed at the work area.' : null },
+    );
     const on = status !== 'planned';
     await sql(
       `UPDATE isolation_steps SET status = :status, remotely_operable = true,

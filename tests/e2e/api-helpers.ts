@@ -49,17 +49,17 @@ export async function transition(user: ApiUser, permitId: string, event: string,
 }
 
 /**
- * A cold-work permit on the Cedar Run lateral whose plan is the given register points, taken through
- * request, approval and acceptance by the demo lead and authoriser: ready for its isolations.
+ * A cold-work permit on the Cedar Run lateral (or another demo pipeline) whose plan is the given register
+ * points, taken through request, approval and acceptance by the demo lead and authoriser: ready for its isolations.
  */
-export async function acceptedPermit(title: string, tagCodes: string[]): Promise<{ id: string; number: string }> {
+export async function acceptedPermit(title: string, tagCodes: string[], pipelineCode = 'BM-10'): Promise<{ id: string; number: string }> {
   const lead = await apiAs('lead@oxbow-repair.example');
   const authoriser = await apiAs('authoriser@bramblecote.example');
   try {
     const me = await ok<{ memberships: { role: string; organisationId: string }[] }>(lead.get('/api/auth/me'));
     const contractorOrganisationId = me.memberships.find((m) => m.role === 'contractor_lead')!.organisationId;
-    const pipes = await ok<{ items: { id: string; code: string }[] }>(lead.get('/api/pipelines?q=BM-10&pageSize=50'));
-    const pipelineId = pipes.items.find((p) => p.code === 'BM-10')!.id;
+    const pipes = await ok<{ items: { id: string; code: string }[] }>(lead.get(`/api/pipelines?q=${pipelineCode}&pageSize=50`));
+    const pipelineId = pipes.items.find((p) => p.code === pipelineCode)!.id;
     const points = await ok<{ items: { id: string; tagCode: string; kind: string; position: number }[] }>(lead.get(`/api/isolation-points?pipelineId=${pipelineId}&pageSize=200`));
     const chosen = tagCodes.map((code) => points.items.find((p) => p.tagCode === code)!);
     const now = Date.now();

@@ -20,7 +20,9 @@ test('issue 17: when the authoriser opens Locks & tags, then each last change is
 
 test('issue 17: when a permit has a vent in place and no plug, then only the vent check is offered and "all vents of this permit" records it', async ({ browser }) => {
   test.setTimeout(120_000);
-  const permit = await acceptedPermit('Check the vent at CR-VT-047', ['CR-BV-046', 'CR-VT-047']);
+  // The browser tests share one database: CR-VT-047 is held open by the gas-test spec's permit, and a vent
+  // held open by another permit is rightly refused. The Haskins Creek valve and vent are held by no other test.
+  const permit = await acceptedPermit('Check the vent at HC-VT-239', ['HC-BV-238', 'HC-VT-239'], 'BM-16');
   const [tech, tech2, control] = await Promise.all(['tech@oxbow-repair.example', 'tech2@oxbow-repair.example', 'control@bramblecote.example'].map(apiAs));
   try {
     const plan = await ok<{ items: { id: string; kind: string; remotelyOperable: boolean }[] }>(tech.get(`/api/permits/${permit.id}/isolations`));

@@ -4,7 +4,7 @@ import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { addMinutes, subMinutes } from 'date-fns';
 import {
-  beforeIsolatedStates, boardPermitStates, crewSignOnStates, checklistOpenStates, closedStates, editableStates, finishedStates, holdsIsolations, limitsFixedStates, liveStates, permitStates,
+  beforeIsolatedStates, boardPermitStates, certificateLinkStates, certificateReleaseStates, crewSignOnStates, checklistOpenStates, closedStates, editableStates, finishedStates, holdsIsolations, limitsFixedStates, liveStates, permitStates,
   workOpenStates, workUnderWayStates, type PermitState,
 } from '@shared/permit/states';
 import { eventsFrom, statesFrom, targetOf } from '@shared/permit/state-machine';
@@ -14,6 +14,7 @@ import {
 } from '@shared/isolations/step-rules';
 import { isolationPointKinds } from '@shared/schemas/assets.schema';
 import { stepKinds } from '@shared/schemas/isolation.schema';
+import { certificateStates, isCertificateLive } from '@shared/isolations/certificate-states';
 
 // Finding 1 (one source for every rule): the permit and step rules live in shared/ and nowhere else.
 
@@ -132,6 +133,22 @@ describe('finding 1: one next-gas-test-due rule', () => {
 
   it('when the permit is in any state but live, then no repeat test is due', () => {
     for (const state of permitStates) expect(nextGasTestDue(state, subMinutes(now, 10), 30, now) !== null, state).toBe(liveStates.includes(state));
+  });
+});
+
+describe('finding 2: the isolation certificate rules live in shared/ too', () => {
+  it('when a permit takes on a certificate, then it is still before its isolations are signed, up to the signature itself', () => {
+    for (const s of certificateLinkStates) expect(beforeIsolatedStates, s).toContain(s);
+    for (const s of statesFrom('confirm_isolated')) expect(certificateLinkStates, s).toContain(s);
+  });
+
+  it('when a permit is returned to service, closed or cancelled, then it lets go of its certificate; while it holds isolations it never does', () => {
+    sameStates(certificateReleaseStates, [targetOf('return_to_service', 'work_complete')!, ...closedStates]);
+    for (const s of holdsIsolations) expect(certificateReleaseStates, s).not.toContain(s);
+  });
+
+  it('when a certificate is live, then it is the one state that protects; a returned one does not', () => {
+    expect(certificateStates.filter((state) => isCertificateLive({ state }))).toEqual(['live']);
   });
 });
 

@@ -58,14 +58,14 @@ function Shell() {
           <button type="button" className="ml-auto min-h-11 rounded-md border border-white/40 px-3 md:hidden" aria-expanded={menuOpen} aria-controls="main-nav" onClick={() => setMenuOpen((o) => !o)}>
             Menu
           </button>
-          <nav id="main-nav" aria-label="Main" className={`${menuOpen ? 'flex' : 'hidden'} w-full flex-col gap-1 md:flex md:w-auto md:flex-row md:items-center`}>
+          <nav id="main-nav" aria-label="Main" className={`${menuOpen ? 'flex' : 'hidden'} w-full flex-col gap-1 md:flex md:w-auto md:flex-row md:flex-wrap md:items-center`}>
             {nav.map((item) => (
               <NavLink
                 key={item.to}
                 to={item.to}
                 end={item.to === '/'}
                 onClick={() => setMenuOpen(false)}
-                className={({ isActive }) => `flex min-h-11 items-center rounded-md px-3 font-medium text-white no-underline hover:bg-white/10 ${isActive ? 'bg-white/15 underline decoration-signal decoration-2 underline-offset-4' : ''}`}
+                className={({ isActive }) => `flex min-h-11 items-center rounded-md px-3 font-medium whitespace-nowrap text-white no-underline hover:bg-white/10 ${isActive ? 'bg-white/15 underline decoration-signal decoration-2 underline-offset-4' : ''}`}
               >
                 {item.label}
               </NavLink>

@@ -2,7 +2,8 @@ import { QueryTypes, type Sequelize } from 'sequelize';
 import { inPlaceStatuses } from '@shared/isolations/step-rules';
 import { lineIsolatingStepKinds } from '@shared/isolations/readiness';
 import type { PermitEvent } from '@shared/permit/state-machine';
-import type { PermitState } from '@shared/permit/states';
+import { certificateReleaseStates, type PermitState } from '@shared/permit/states';
+import { isCertificateLive, liveCertificateState, returnedCertificateState, type CertificateState } from '@shared/isolations/certificate-states';
 import { AppError } from '../../errors/app-error';
 import { appendAudit } from '../audit/audit.service';
 import type { PermitRow } from '../permits/permits.repository';
@@ -16,9 +17,6 @@ import type { PermitRow } from '../permits/permits.repository';
  *   certificate that is not long-term is returned once nothing relies on it and its isolations are off;
  * - an isolation a certificate still needs for another permit stays on.
  */
-
-/** States after which a permit no longer relies on its certificate. */
-export const releasingStates: readonly PermitState[] = ['returned_to_service', 'closed', 'cancelled'];
 
 interface Signer {
   userId: string;
@@ -81,7 +79,7 @@ async function issueCertificate(sequelize: Sequelize, permit: PermitRow, signer:
     replacements: { tenantId, certId: cert.id, permitId: permit.id, userId: signer.userId, now },
   });
   await appendAudit(sequelize, {
-    tenantId, entityType: 'isolation_certificate', entityId: cert.id, permitId: permit.id, action: 'certificate_issued', toState: 'live',
+    tenantId, entityType: 'isolation_certificate', entityId: cert.id, permitId: permit.id, action: 'certificate_issued', toState: liveCertificateState,
     actor: { userId: signer.userId, name: signer.name, role: 'authoriser' }, data: { number, permit: permit.number }, occurredAt: now,
   });
   return { id: cert.id, number };
@@ -93,15 +91,15 @@ export async function returnIfDone(sequelize: Sequelize, tenantId: string, certi
     `SELECT c.number,
             (SELECT count(*)::int FROM certificate_permits cp WHERE cp.tenant_id = c.tenant_id AND cp.certificate_id = c.id AND cp.released_at IS NULL) AS relying,
             (SELECT count(*)::int FROM isolation_steps s WHERE s.tenant_id = c.tenant_id AND s.certificate_id = c.id AND s.status IN (:inPlace)) AS "inPlace"
-     FROM isolation_certificates c WHERE c.tenant_id = :tenantId AND c.id = :id AND c.state = 'live' AND NOT c.long_term FOR UPDATE`,
-    { replacements: { tenantId, id: certificateId, inPlace: inPlaceStatuses }, type: QueryTypes.SELECT },
+     FROM isolation_certificates c WHERE c.tenant_id = :tenantId AND c.id = :id AND c.state = :live AND NOT c.long_term FOR UPDATE`,
+    { replacements: { tenantId, id: certificateId, inPlace: inPlaceStatuses, live: liveCertificateState }, type: QueryTypes.SELECT },
   );
   if (!row || row.relying || row.inPlace) return false;
-  await sequelize.query(`UPDATE isolation_certificates SET state = 'returned', returned_at = :now, returned_by = :userId, updated_at = :now WHERE tenant_id = :tenantId AND id = :id`, {
-    replacements: { tenantId, id: certificateId, now, userId: by?.userId ?? null },
+  await sequelize.query(`UPDATE isolation_certificates SET state = :returned, returned_at = :now, returned_by = :userId, updated_at = :now WHERE tenant_id = :tenantId AND id = :id`, {
+    replacements: { tenantId, id: certificateId, now, userId: by?.userId ?? null, returned: returnedCertificateState },
   });
   await appendAudit(sequelize, {
-    tenantId, entityType: 'isolation_certificate', entityId: certificateId, permitId, action: 'certificate_returned', fromState: 'live', toState: 'returned',
+    tenantId, entityType: 'isolation_certificate', entityId: certificateId, permitId, action: 'certificate_returned', fromState: liveCertificateState, toState: returnedCertificateState,
     actor: by ? { ...by, role: null } : null, reason: 'No permit relies on it and its isolations are off.', data: { number: row.number, by: by ? 'person' : 'holdpoint' }, occurredAt: now,
   });
   return true;
@@ -113,7 +111,7 @@ export async function certificateAfterTransition(sequelize: Sequelize, permit: P
     await issueCertificate(sequelize, permit, signer, now);
     return;
   }
-  if (!releasingStates.includes(to)) return;
+  if (!certificateReleaseStates.includes(to)) return;
   const relied = await reliedCertificate(sequelize, permit.tenantId, permit.id);
   if (!relied) return;
   await sequelize.query(`UPDATE certificate_permits SET released_at = :now WHERE tenant_id = :tenantId AND permit_id = :permitId AND released_at IS NULL`, {
@@ -133,13 +131,13 @@ export async function certificateAfterTransition(sequelize: Sequelize, permit: P
  * whatever the state of the permit that made it.
  */
 export async function certificateRemovalCheck(sequelize: Sequelize, tenantId: string, step: { id: string; permitId: string }) {
-  const [cert] = await sequelize.query<{ id: string; number: string; longTerm: boolean; state: string }>(
+  const [cert] = await sequelize.query<{ id: string; number: string; longTerm: boolean; state: CertificateState }>(
     `SELECT c.id, c.number, c.long_term AS "longTerm", c.state FROM isolation_steps s
      JOIN isolation_certificates c ON c.tenant_id = s.tenant_id AND c.id = s.certificate_id
      WHERE s.tenant_id = :tenantId AND s.id = :stepId FOR UPDATE OF c`,
     { replacements: { tenantId, stepId: step.id }, type: QueryTypes.SELECT },
   );
-  if (!cert || cert.state !== 'live') return { certificateId: cert?.id ?? null, returningLongTerm: false };
+  if (!cert || !isCertificateLive(cert)) return { certificateId: cert?.id ?? null, returningLongTerm: false };
   const others = await sequelize.query<{ number: string }>(
     `SELECT p.number FROM certificate_permits cp JOIN permits p ON p.tenant_id = cp.tenant_id AND p.id = cp.permit_id
      WHERE cp.tenant_id = :tenantId AND cp.certificate_id = :certId AND cp.released_at IS NULL AND cp.permit_id <> :permitId ORDER BY p.number`,

@@ -1,8 +1,13 @@
+import { liveCertificateState } from '@shared/isolations/certificate-states';
+
 /**
  * SQL pieces about isolation certificates that other features fold into statements they already
- * send (replacements :tenantId and :permitId), so the permit's guards and readiness see the
- * certificate without a statement of their own.
+ * send (replacements :tenantId and :permitId, and `certificateReplacements` where a piece says so), so
+ * the permit's guards and readiness see the certificate without a statement of their own.
  */
+
+/** The values the pieces below take as parameters. */
+export const certificateReplacements = { liveCertificate: liveCertificateState };
 
 /** The certificate the permit relies on now, or null. */
 export const reliedCertificateSql = `(SELECT cp.certificate_id FROM certificate_permits cp
@@ -13,10 +18,11 @@ export const countedStepSql = (alias = '') => `(${alias}permit_id = :permitId OR
 
 /**
  * A step of the permit still to come off before its return to service: its own step in place, unless
- * the step belongs to a long-term certificate, which then holds it beyond the permit.
+ * the step belongs to a live long-term certificate, which then holds it beyond the permit (takes
+ * `certificateReplacements`).
  */
 export const ownStepNotHandedSql = (alias = '') => `(${alias}permit_id = :permitId AND (${alias}certificate_id IS NULL OR NOT EXISTS (
-   SELECT 1 FROM isolation_certificates c WHERE c.tenant_id = ${alias}tenant_id AND c.id = ${alias}certificate_id AND c.long_term AND c.state = 'live')))`;
+   SELECT 1 FROM isolation_certificates c WHERE c.tenant_id = ${alias}tenant_id AND c.id = ${alias}certificate_id AND c.long_term AND c.state = :liveCertificate)))`;
 
 /** The certificate the permit relies on, as the guards read it: JSON { number, state, problem } or null. */
 export const certificateFactsSql = `(SELECT json_build_object('number', c.number, 'state', c.state, 'problem', c.problem)

@@ -1,6 +1,7 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import { isIsolatingKind, isolatingStepKinds } from '@shared/isolations/readiness';
 import { inPlaceStatuses } from '@shared/isolations/step-rules';
+import { liveCertificateState } from '@shared/isolations/certificate-states';
 import type { Page } from '@shared/schemas/common.schema';
 import type { CertificatesQuery } from '@shared/schemas/certificates.schema';
 import type { CertificatePermitLink, CertificateProving, CertificateStep, IsolationCertificate, IsolationCertificateSummary, IsolationRecheck } from '@shared/types/certificates';
@@ -12,7 +13,7 @@ const summaryColumns = `
   c.id, c.tenant_id AS "tenantId", c.number, c.state, c.pipeline_id AS "pipelineId", pl.code AS "pipelineCode", pl.name AS "pipelineName",
   c.from_position::float8 AS "fromPosition", c.to_position::float8 AS "toPosition", c.issued_at AS "issuedAt", iu.name AS "issuedByName",
   c.long_term AS "longTerm", c.long_term_reason AS "longTermReason", c.recheck_hours AS "recheckHours", c.next_recheck_due AS "nextRecheckDue",
-  (c.state = 'live' AND c.long_term AND c.next_recheck_due <= :now) AS "recheckOverdue", c.problem, c.problem_at AS "problemAt", c.returned_at AS "returnedAt",
+  (c.state = :live AND c.long_term AND c.next_recheck_due <= :now) AS "recheckOverdue", c.problem, c.problem_at AS "problemAt", c.returned_at AS "returnedAt",
   (SELECT count(*)::int FROM isolation_steps s WHERE s.tenant_id = c.tenant_id AND s.certificate_id = c.id AND s.status IN (:inPlace) AND s.kind IN (:isolating)) AS "devicesInPlace",
   (SELECT count(*)::int FROM certificate_permits cp WHERE cp.tenant_id = c.tenant_id AND cp.certificate_id = c.id AND cp.released_at IS NULL) AS "permitsRelying"`;
 
@@ -20,7 +21,7 @@ const summaryJoins = `
   JOIN pipelines pl ON pl.tenant_id = c.tenant_id AND pl.id = c.pipeline_id
   JOIN users iu ON iu.id = c.issued_by`;
 
-const fixed = (now: Date) => ({ now, inPlace: inPlaceStatuses, isolating: isolatingStepKinds });
+const fixed = (now: Date) => ({ now, inPlace: inPlaceStatuses, isolating: isolatingStepKinds, live: liveCertificateState });
 
 export async function listCertificates(sequelize: Sequelize, tenantId: string, q: CertificatesQuery, now: Date): Promise<Page<IsolationCertificateSummary<Date>>> {
   const where = ['c.tenant_id = :tenantId'];
@@ -45,7 +46,7 @@ export async function listCertificates(sequelize: Sequelize, tenantId: string, q
   // Live first, then the re-check falling due soonest, then the newest.
   const rows = await sequelize.query<CertificateRow>(
     `SELECT ${summaryColumns} FROM isolation_certificates c ${summaryJoins} WHERE ${where.join(' AND ')}
-     ORDER BY (c.state = 'live') DESC, c.next_recheck_due ASC NULLS LAST, c.issued_at DESC, c.number DESC LIMIT :limit OFFSET :offset`,
+     ORDER BY (c.state = :live) DESC, c.next_recheck_due ASC NULLS LAST, c.issued_at DESC, c.number DESC LIMIT :limit OFFSET :offset`,
     { replacements: r, type: QueryTypes.SELECT },
   );
   return { items: rows.map(({ tenantId: _t, ...rest }) => rest), total, page: q.page, pageSize: q.pageSize };

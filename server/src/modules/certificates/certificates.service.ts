@@ -1,6 +1,7 @@
 import { QueryTypes } from 'sequelize';
 import { convertPressure, formatPressure } from '@shared/calc/pressure';
-import type { PermitState } from '@shared/permit/states';
+import { certificateLinkStates } from '@shared/permit/states';
+import { isCertificateLive } from '@shared/isolations/certificate-states';
 import type { CertificatesQuery, LinkCertificateInput, MarkLongTermInput, RecordRecheckInput } from '@shared/schemas/certificates.schema';
 import type { CertificateActionState, IsolationCertificate, PermitCertificateRef } from '@shared/types/certificates';
 import { formatInZone } from '@shared/time/zone';
@@ -16,9 +17,6 @@ import { loadTenantSettings } from '../tenants/tenant-settings';
 import { queueCertificateAlert } from './certificate-alerts';
 import { reliedCertificate, returnIfDone } from './certificate-lifecycle';
 import { certificateDetail, findCertificate, listCertificates, relyingPermitNumbers, stepsInPlace, type CertificateRow } from './certificate-view';
-
-/** A permit may take on a certificate while it is still being planned, before its own isolations count. */
-export const certificateLinkStates: readonly PermitState[] = ['draft', 'requested', 'approved', 'accepted'];
 
 const ok: CertificateActionState = { allowed: true, reasons: [] };
 const refusedBy = (reasons: string[]): CertificateActionState => (reasons.length ? { allowed: false, reasons } : ok);
@@ -36,7 +34,7 @@ async function loadCertificate(deps: AppDeps, caller: CallerContext, id: string,
 
 // What the rules allow on the certificate now, each with the reasons it is blocked (who may is CASL's).
 async function actionStates(deps: AppDeps, row: CertificateRow) {
-  const live = row.state === 'live' ? [] : ['This certificate has been returned.'];
+  const live = isCertificateLive(row) ? [] : ['This certificate has been returned.'];
   const relying = await relyingPermitNumbers(deps.sequelize, row.tenantId, row.id);
   const inPlace = await stepsInPlace(deps.sequelize, row.tenantId, row.id);
   const markLongTerm = [...live];
@@ -83,7 +81,7 @@ export async function linkPermit(deps: AppDeps, caller: CallerContext, permitId:
     if (current) throw AppError.conflict(`${permit.number} already works under ${current.number}.`);
     const { locationUnit } = await loadTenantSettings(deps.sequelize, tenantId);
     const reasons: string[] = [];
-    if (cert.state !== 'live') reasons.push(`${cert.number} has been returned: its isolations no longer protect anyone. Isolate for this permit instead.`);
+    if (!isCertificateLive(cert)) reasons.push(`${cert.number} has been returned: its isolations no longer protect anyone. Isolate for this permit instead.`);
     if (cert.pipelineId !== permit.pipelineId)
       reasons.push(`${cert.number} isolates ${cert.pipelineName}, but this permit’s work is on ${permit.pipelineName}. Choose a certificate of the same pipeline.`);
     else if (permit.fromPosition < cert.fromPosition || permit.toPosition > cert.toPosition)

@@ -1,5 +1,6 @@
 import { QueryTypes } from 'sequelize';
 import { formatInZone } from '@shared/time/zone';
+import { liveCertificateState } from '@shared/isolations/certificate-states';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { appendAudit } from '../audit/audit.service';
@@ -22,10 +23,10 @@ export async function markOverdueRechecks(deps: AppDeps): Promise<number> {
         const due = await deps.sequelize.query<{ id: string; number: string; pipelineName: string; dueAt: Date }>(
           `SELECT c.id, c.number, pl.name AS "pipelineName", c.next_recheck_due AS "dueAt"
            FROM isolation_certificates c JOIN pipelines pl ON pl.tenant_id = c.tenant_id AND pl.id = c.pipeline_id
-           WHERE c.tenant_id = :tenantId AND c.state = 'live' AND c.long_term AND c.next_recheck_due <= :now
+           WHERE c.tenant_id = :tenantId AND c.state = :live AND c.long_term AND c.next_recheck_due <= :now
              AND c.recheck_alerted_due IS DISTINCT FROM c.next_recheck_due
            ORDER BY c.next_recheck_due FOR UPDATE OF c SKIP LOCKED`,
-          { replacements: { tenantId, now }, type: QueryTypes.SELECT },
+          { replacements: { tenantId, now, live: liveCertificateState }, type: QueryTypes.SELECT },
         );
         if (!due.length) return 0;
         const { timeZone } = await loadTenantSettings(deps.sequelize, tenantId);

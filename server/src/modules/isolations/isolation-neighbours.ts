@@ -1,6 +1,7 @@
 import { QueryTypes, type Sequelize } from 'sequelize';
 import { holdsIsolations } from '@shared/permit/states';
 import { inPlaceStatuses } from '@shared/isolations/step-rules';
+import { liveCertificateState } from '@shared/isolations/certificate-states';
 import { conditionLabels, type StepCondition } from '@shared/schemas/isolation.schema';
 import type { PointNeighbour } from '@shared/types/isolations';
 
@@ -48,11 +49,11 @@ export async function pointNeighbours(sequelize: Sequelize, tenantId: string, pe
      FROM isolation_steps mine
      JOIN isolation_points ip ON ip.tenant_id = mine.tenant_id AND ip.id = mine.point_id
      JOIN isolation_steps theirs ON theirs.tenant_id = mine.tenant_id AND theirs.point_id = mine.point_id AND theirs.permit_id <> mine.permit_id AND theirs.status <> 'removed'
-     LEFT JOIN isolation_certificates lt ON lt.tenant_id = theirs.tenant_id AND lt.id = theirs.certificate_id AND lt.long_term AND lt.state = 'live'
+     LEFT JOIN isolation_certificates lt ON lt.tenant_id = theirs.tenant_id AND lt.id = theirs.certificate_id AND lt.long_term AND lt.state = :liveCertificate
      JOIN permits other ON other.tenant_id = theirs.tenant_id AND other.id = theirs.permit_id AND (other.state IN (:holding) OR lt.id IS NOT NULL)
      WHERE mine.tenant_id = :tenantId AND mine.permit_id = :permitId AND mine.status <> 'removed' ${stepId ? 'AND mine.id = :stepId' : ''}
      ORDER BY mine.seq, other.number`,
-    { replacements: { tenantId, permitId, stepId: stepId ?? null, inPlace: inPlaceStatuses, holding: holdsIsolations }, type: QueryTypes.SELECT },
+    { replacements: { tenantId, permitId, stepId: stepId ?? null, inPlace: inPlaceStatuses, holding: holdsIsolations, liveCertificate: liveCertificateState }, type: QueryTypes.SELECT },
   );
   const conflicts: NeighbourFinding[] = [];
   const shared: NeighbourFinding[] = [];

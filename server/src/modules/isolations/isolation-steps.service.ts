@@ -2,7 +2,7 @@ import { QueryTypes, UniqueConstraintError } from 'sequelize';
 import { checkAsBuiltPlug } from '@shared/calc';
 import type { AcknowledgeStepInput, ApplyStepInput, RemoveStepInput, VerifyStepInput } from '@shared/schemas/isolation.schema';
 import type { Action } from '@shared/abilities/define-ability';
-import { holdsIsolations } from '@shared/permit/states';
+import { certificateReleaseStates, holdsIsolations } from '@shared/permit/states';
 import { acknowledgementAction, inPlaceStatuses, stepActionRefusal, takesLock } from '@shared/isolations/step-rules';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
@@ -18,7 +18,7 @@ import { findStep, listSteps, notifyChange, type StepRow } from './isolation-que
 import { claimRemovalException, completeRemovalException } from './removal-exceptions.service';
 import { pointNeighbours } from './isolation-neighbours';
 import { crewOnLockbox, groupLockoutPerPerson } from '../crew/crew-queries';
-import { certificateRemovalCheck, releasingStates, returnIfDone } from '../certificates/certificate-lifecycle';
+import { certificateRemovalCheck, returnIfDone } from '../certificates/certificate-lifecycle';
 
 type StepAction = Extract<Action, 'apply' | 'verify' | 'remove' | 'acknowledge' | 'approve'>;
 
@@ -251,7 +251,7 @@ export async function removeStep(deps: AppDeps, caller: CallerContext, permitId:
     // An isolation certificate another permit works under keeps its isolations on; a long-term one nobody relies on is returned by taking them off.
     const held = await certificateRemovalCheck(deps.sequelize, tenantId, step);
     const refused = stepActionRefusal('remove', step, permit.state);
-    if (refused === 'permit_state' && !(held.returningLongTerm && releasingStates.includes(permit.state)))
+    if (refused === 'permit_state' && !(held.returningLongTerm && certificateReleaseStates.includes(permit.state)))
       throw AppError.unprocessable('Isolations come off only after the contractor lead hands the permit back (or it is cancelled).');
     if (refused && refused !== 'permit_state') throw AppError.conflict(step.status === 'removed' ? 'This isolation is already removed.' : 'This step was never applied.');
     if (step.kind === 'plug' && !input.plugOutcome) throw AppError.validation('Say whether the plug was removed or left to be displaced by product.', [{ path: 'plugOutcome', message: 'Required for a plug.' }]);

@@ -8,12 +8,12 @@ import { readinessFromJson, readinessSql, type ReadinessJson } from '../isolatio
 import { pointNeighbours } from '../isolations/isolation-neighbours';
 import type { PermitRow } from './permits.repository';
 import { perPersonIn } from '../crew/crew-queries';
-import { certificateFactsSql, countedStepSql, ownStepNotHandedSql } from '../certificates/certificate-queries';
+import { certificateFactsSql, certificateReplacements, countedStepSql, ownStepNotHandedSql } from '../certificates/certificate-queries';
 import { loadStopWorkFacts } from './stop-work-facts';
 
 /** Gathers from the database everything the lifecycle guards need about one permit. */
 export async function loadPermitFacts(sequelize: Sequelize, permit: PermitRow): Promise<PermitFacts> {
-  const r = { tenantId: permit.tenantId, permitId: permit.id, inPlace: inPlaceStatuses };
+  const r = { tenantId: permit.tenantId, permitId: permit.id, inPlace: inPlaceStatuses, ...certificateReplacements };
   const [iso] = await sequelize.query<{
     steps: number; applied: number; verified: number; self_verified: number; remote_without_ack: number;
     still_applied: number; vents_open: number; plugs_in_place: number; plug_warnings: number; readiness: ReadinessJson | null; certificate: PermitCertificateFacts | null;

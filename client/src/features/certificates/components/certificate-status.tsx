@@ -1,12 +1,12 @@
 import { formatInZone } from '@shared/time/zone';
-import { certificateStateLabels } from '@shared/schemas/certificates.schema';
+import { certificateStateLabels, isCertificateLive } from '@shared/isolations/certificate-states';
 import type { IsolationCertificateSummary } from '@shared/types/certificates';
 
 type Tone = 'danger' | 'caution' | 'neutral';
 
 /** Where the certificate stands, in words, with the colour meaning of ISO 3864 (red: act now; yellow: isolation in place). */
 export function certificateStatus(c: IsolationCertificateSummary, timeZone: string): { tone: Tone; text: string } {
-  if (c.state !== 'live') return { tone: 'neutral', text: `${certificateStateLabels[c.state]}${c.returnedAt ? ` ${formatInZone(c.returnedAt, timeZone)}` : ''}` };
+  if (!isCertificateLive(c)) return { tone: 'neutral', text: `${certificateStateLabels[c.state]}${c.returnedAt ? ` ${formatInZone(c.returnedAt, timeZone)}` : ''}` };
   if (c.problem) return { tone: 'danger', text: `Failed re-check: ${c.problem}. Nobody works under it until a passing re-check.` };
   if (c.longTerm && c.recheckOverdue) return { tone: 'danger', text: `Long-term isolation: re-check overdue since ${formatInZone(c.nextRecheckDue, timeZone)}.` };
   if (c.longTerm) return { tone: 'caution', text: `Long-term isolation: next re-check due ${formatInZone(c.nextRecheckDue, timeZone)}.` };

@@ -1,4 +1,5 @@
 import { Link } from 'react-router-dom';
+import { isCertificateLive } from '@shared/isolations/certificate-states';
 import { useAbility } from '@client/lib/ability';
 import { useCertificates } from '../api/get-certificates';
 
@@ -12,7 +13,7 @@ export function PermitCertificateLine({ permitId }: { permitId: string }) {
   const list = useCertificates({ permitId, pageSize: 5 }, allowed);
   const c = list.data?.items[0];
   if (!allowed || !c) return null;
-  const state = c.state !== 'live' ? 'returned' : c.problem ? 'failed its last re-check' : c.longTerm ? 'long-term, live' : 'live';
+  const state = !isCertificateLive(c) ? 'returned' : c.problem ? 'failed its last re-check' : c.longTerm ? 'long-term, live' : 'live';
   return (
     <p className={`text-sm ${c.problem ? 'font-semibold text-danger' : ''}`} data-testid="permit-certificate">
       Isolation certificate:{' '}

@@ -1,6 +1,7 @@
 import { Link, useParams } from 'react-router-dom';
 import { subject } from '@casl/ability';
 import { formatPressure } from '@shared/calc/pressure';
+import { isCertificateLive } from '@shared/isolations/certificate-states';
 import { permitStateLabels } from '@shared/permit/states';
 import { stepKindLabels, type StepKind } from '@shared/schemas/isolation.schema';
 import { formatInZone } from '@shared/time/zone';
@@ -38,7 +39,7 @@ function Actions({ c }: { c: IsolationCertificate }) {
   const may = (action: 'update' | 'record' | 'close') => ability.can(action, subject('IsolationCertificate', { tenantId: me?.activeTenantId ?? '' }));
   const limit = formatPressure(c.recheckLimit.maxPressure, c.recheckLimit.unit);
   const sections = [];
-  if (may('record') && c.longTerm && c.state === 'live')
+  if (may('record') && c.longTerm && isCertificateLive(c))
     sections.push(
       <Card key="recheck">
         <h2 className="mb-2 text-lg font-semibold">Re-check the isolation</h2>
@@ -46,14 +47,14 @@ function Actions({ c }: { c: IsolationCertificate }) {
         {c.actions.recordRecheck.allowed ? <RecheckForm id={c.id} limit={limit} /> : <Blocked state={c.actions.recordRecheck} />}
       </Card>,
     );
-  if (may('update') && !c.longTerm && c.state === 'live')
+  if (may('update') && !c.longTerm && isCertificateLive(c))
     sections.push(
       <Card key="long-term">
         <h2 className="mb-2 text-lg font-semibold">Keep the isolation beyond its permits</h2>
         {c.actions.markLongTerm.allowed ? <LongTermForm id={c.id} /> : <Blocked state={c.actions.markLongTerm} />}
       </Card>,
     );
-  if (may('close') && c.state === 'live')
+  if (may('close') && isCertificateLive(c))
     sections.push(
       <Card key="return">
         <h2 className="mb-2 text-lg font-semibold">Return the certificate</h2>
