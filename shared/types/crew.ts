@@ -18,5 +18,17 @@ export interface PermitLockbox<Time extends Moment = string> {
   label: string | null;
   /** Lock numbers of the permit's isolations still applied: the keys in the box. */
   keys: string[];
-  crewOn: LockboxCrewMember<Time>[];
+  crewOn: LockboxMember<Time>[];
+}
+
+/** An authoriser's signed record that a crew member whose personal lock is on the box is away (OSHA 29 CFR 1910.147(e)(3)). */
+export interface LockboxException<Time extends Moment = string> {
+  recordedAt: Time;
+  authoriserId: string;
+  authoriserName: string;
+}
+
+/** A person on the lockbox as the permit shows them: with the exception recorded for their lock, if any. */
+export interface LockboxMember<Time extends Moment = string> extends LockboxCrewMember<Time> {
+  exception: LockboxException<Time> | null;
 }

@@ -82,15 +82,41 @@ describe('the demo scenario that npm start seeds', () => {
     expect(new Date(longTerm[0].due).getTime()).toBeGreaterThan(Date.now());
   });
 
-  it('when seeded, then the live permit has a gas test overdue and the suspended one a failing reading', async () => {
+  // The stop-work rule (shared/permit/stop-work.ts) suspends live hot work whose repeat gas test is overdue on the scheduler's first tick.
+  it('issue 16: when seeded, then the live permit’s next gas test is due in about ten minutes (not overdue) and the suspended one has a failing reading', async () => {
     const [live] = await sequelize.query<{ last: Date; interval: number }>(
       `SELECT max(g.tested_at) AS last, p.gas_test_interval_minutes AS interval FROM gas_tests g JOIN permits p ON p.id = g.permit_id
        WHERE p.job_reference = 'BM-DEMO-1730' AND g.verdict = 'pass' GROUP BY p.gas_test_interval_minutes`,
       { type: QueryTypes.SELECT },
     );
-    expect(new Date(live.last).getTime() + live.interval * 60_000).toBeLessThan(Date.now());
+    const dueInMinutes = (new Date(live.last).getTime() + live.interval * 60_000 - Date.now()) / 60_000;
+    expect(dueInMinutes).toBeGreaterThan(5);
+    expect(dueInMinutes).toBeLessThanOrEqual(10);
     const fails = await sequelize.query(`SELECT 1 FROM gas_tests g JOIN permits p ON p.id = g.permit_id WHERE p.job_reference = 'BM-DEMO-0820' AND g.verdict = 'fail'`, { type: QueryTypes.SELECT });
     expect(fails).toHaveLength(1);
+  });
+
+  // OSHA 29 CFR 1910.147(f)(3)(ii)(D): group lockout per person is a per-tenant setting, shown at Harlow Ridge, not at Bramblecote.
+  it('issue 16: when seeded, then Harlow Ridge locks per person and a crew of three, each lockout qualified, is signed on to the isolated permit’s lockbox', async () => {
+    const tenants = await sequelize.query<{ slug: string; mode: string | null }>(`SELECT slug, settings->>'groupLockout' AS mode FROM tenants ORDER BY slug`, { type: QueryTypes.SELECT });
+    expect(tenants).toEqual([
+      { slug: 'bramblecote', mode: null },
+      { slug: 'harlowridge', mode: 'per_person' },
+    ]);
+    const crew = await sequelize.query<{ job_reference: string; state: string; name: string; lock: string; qualified: boolean }>(
+      `SELECT p.job_reference, p.state, u.name, c.personal_lock_number AS lock,
+              EXISTS (SELECT 1 FROM qualifications q WHERE q.tenant_id = c.tenant_id AND q.user_id = c.user_id AND q.kind = 'lockout_tagout' AND q.expires_on > now()) AS qualified
+       FROM permit_crew_members c JOIN permits p ON p.id = c.permit_id JOIN users u ON u.id = c.user_id JOIN tenants t ON t.id = c.tenant_id
+       WHERE t.slug = 'harlowridge' AND c.signed_off_at IS NULL ORDER BY c.signed_on_at`,
+      { type: QueryTypes.SELECT },
+    );
+    expect(crew).toEqual([
+      { job_reference: 'HR-DEMO-1210', state: 'isolated', name: 'Tomas Reyburn', lock: 'PL-HR-01', qualified: true },
+      { job_reference: 'HR-DEMO-1210', state: 'isolated', name: 'Ines Calloway', lock: 'PL-HR-02', qualified: true },
+      { job_reference: 'HR-DEMO-1210', state: 'isolated', name: 'Bea Morrow', lock: 'PL-HR-03', qualified: true },
+    ]);
+    const signedOn = await sequelize.query(`SELECT 1 FROM audit_events a JOIN permits p ON p.id = a.permit_id WHERE p.job_reference = 'HR-DEMO-1210' AND a.action = 'crew_signed_on'`, { type: QueryTypes.SELECT });
+    expect(signedOn).toHaveLength(3);
   });
 
   // Planned moments (a validity window, an expiry, a due date, a retry) may lie ahead; what happened may not.
@@ -125,5 +151,7 @@ describe('the demo scenario that npm start seeds', () => {
     expect(await states()).toHaveLength(7);
     const [tenant] = await sequelize.query<{ id: string }>(`SELECT id FROM tenants WHERE slug = 'bramblecote'`, { type: QueryTypes.SELECT });
     expect(await verifyChain(sequelize, tenant.id)).toMatchObject({ ok: true });
+    const [harlow] = await sequelize.query<{ id: string }>(`SELECT id FROM tenants WHERE slug = 'harlowridge'`, { type: QueryTypes.SELECT });
+    expect(await verifyChain(sequelize, harlow.id)).toMatchObject({ ok: true });
   });
 });

@@ -246,4 +246,27 @@ describe('group lockout per person: a personal lock each on the permit lockbox',
       }),
     ).rejects.toThrow(/recorded exception/);
   });
+
+  it('issue 16 GL-10 (OSHA 29 CFR 1910.147(e)(3)): when an authoriser records the exception for an absent crew member, then the permit’s lockbox says so for that person only, with who recorded it and when', async () => {
+    const id = await isolatedPermit('Group lockout exception shown');
+    await expectOk(await signOn(crew.lead, id, 'PL-911'));
+    await expectOk(await signOn(crew.tech, id, 'PL-912'));
+    expect((await lockboxOf(id)).crewOn.map((c) => c.exception)).toEqual([null, null]);
+    const recordedAt = srv.clock.now().toISOString();
+    const answer = await expectOk(
+      await crew.authoriser.post(`/api/permits/${id}/crew/${ids.leadUserId}/removal-exception`, {
+        absenceCheck: 'Not on the gate log.',
+        contactAttempts: [{ how: 'Phoned his mobile', at: recordedAt }],
+        informPlan: 'Told at the gate before his next shift.',
+        ...sign(users.authoriser),
+      }),
+      201,
+    );
+    const expected = [
+      { name: 'Rory Kilbride', personalLockNumber: 'PL-911', exception: { authoriserId: await userIdOf(users.authoriser), authoriserName: 'Priya Castellan', recordedAt } },
+      { name: 'Sam Ferrand', personalLockNumber: 'PL-912', exception: null },
+    ];
+    expect(answer.crewOn).toMatchObject(expected);
+    expect((await lockboxOf(id)).crewOn).toMatchObject(expected);
+  });
 });

@@ -79,6 +79,47 @@ export const demoPeople: { email: string; name: string; memberships: { tenant: s
   { email: 'authoriser@harlowridge.example', name: 'Wren Ashdown', memberships: [{ tenant: 'harlowridge', org: 'operator', role: 'authoriser' }], qualifications: [] },
 ];
 
+/**
+ * Harlow Ridge's crew for its group-lockout demo (issue 16): seeded with the demo permits only, so the
+ * tests' template (people without permits) stays as it was. Wren gets the verifier's qualification there.
+ */
+export const demoCrewPeople: typeof demoPeople = [
+  {
+    email: 'authoriser@harlowridge.example',
+    name: 'Wren Ashdown',
+    memberships: [{ tenant: 'harlowridge', org: 'operator', role: 'authoriser' }],
+    qualifications: [{ tenant: 'harlowridge', kind: 'isolation_verifier', expiresInDays: 300 }],
+  },
+  { email: 'control@harlowridge.example', name: 'Odile Varga', memberships: [{ tenant: 'harlowridge', org: 'operator', role: 'control_room' }], qualifications: [] },
+  {
+    email: 'hr-lead@oxbow-repair.example',
+    name: 'Tomas Reyburn',
+    memberships: [{ tenant: 'harlowridge', org: 'oxbow', role: 'contractor_lead' }],
+    qualifications: [
+      { tenant: 'harlowridge', kind: 'cold_work_holder', expiresInDays: 280 },
+      { tenant: 'harlowridge', kind: 'lockout_tagout', expiresInDays: 280 },
+    ],
+  },
+  {
+    email: 'hr-tech@oxbow-repair.example',
+    name: 'Ines Calloway',
+    memberships: [{ tenant: 'harlowridge', org: 'oxbow', role: 'isolation_technician' }],
+    qualifications: [
+      { tenant: 'harlowridge', kind: 'lockout_tagout', expiresInDays: 220 },
+      { tenant: 'harlowridge', kind: 'isolation_verifier', expiresInDays: 220 },
+    ],
+  },
+  {
+    email: 'hr-tech2@oxbow-repair.example',
+    name: 'Bea Morrow',
+    memberships: [{ tenant: 'harlowridge', org: 'oxbow', role: 'isolation_technician' }],
+    qualifications: [
+      { tenant: 'harlowridge', kind: 'lockout_tagout', expiresInDays: 180 },
+      { tenant: 'harlowridge', kind: 'isolation_verifier', expiresInDays: 180 },
+    ],
+  },
+];
+
 export interface SeededIds {
   tenants: Record<string, string>;
   organisations: Record<string, Record<string, string>>;
@@ -86,7 +127,7 @@ export interface SeededIds {
 }
 
 /** Idempotent: a second run finds every row by its natural key and changes nothing. */
-export async function seedPeople(sequelize: Sequelize, passwordHash: string, t: Transaction): Promise<SeededIds> {
+export async function seedPeople(sequelize: Sequelize, passwordHash: string, t: Transaction, people = demoPeople): Promise<SeededIds> {
   const ids: SeededIds = { tenants: {}, organisations: {}, users: {} };
   const one = async <R extends object = { id: string }>(sql: string, replacements: Record<string, unknown>): Promise<R> =>
     (await sequelize.query<R>(sql, { replacements, type: QueryTypes.SELECT, transaction: t }))[0]!;
@@ -110,7 +151,7 @@ export async function seedPeople(sequelize: Sequelize, passwordHash: string, t: 
   }
 
   const today = new Date();
-  for (const person of demoPeople) {
+  for (const person of people) {
     const existing = (await one<{ id: string }>(`SELECT id FROM users WHERE lower(email) = lower(:email)`, { email: person.email })) as { id: string } | undefined;
     const userId =
       existing?.id ??

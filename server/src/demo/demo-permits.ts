@@ -186,7 +186,7 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   at(new Date(t.getTime() + 10 * MIN));
   await move(authoriser, done, 'return_to_service');
 
-  // 2. Live: the cut-out at MP 17.3, isolated between CR-BV-149 and CR-BV-197, gas tests every 30 min, the next one overdue.
+  // 2. Live: the cut-out at MP 17.3, isolated between CR-BV-149 and CR-BV-197, gas tests every 30 min, the next one due in about ten minutes.
   const liveStart = new Date(now.getTime() - 4 * HOUR);
   const live = await request({ kinds: ['hot_work'], title: 'Cut out and replace dented 12 ft section at MP 17.3', jobReference: 'BM-DEMO-1730', pipelineId: bm10.id, fromPosition: 17.299, toPosition: 17.301, fireWatchPerson: 'Tam Okafor (Oxbow)', hazards: 'Refined product vapour in the open pipe; hot work; pipe under residual stress at the dent.', scope: 'Cut out the dented section and weld in a pre-tested 12 ft pup.', methodStatement: 'Close and lock CR-BV-149 and CR-BV-197, drain at CR-DR-151 and CR-DR-195, open vents CR-VT-150 and CR-VT-196, cold-cut, build a mud plug each side, test, weld, inspect, restore.' }, liveStart, 12);
   await planCut(live, 17.299, 17.301);
@@ -199,8 +199,11 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
   await confirmChecklist(live, lead, 'checklist');
   await readyToStart(live, t);
   await move(lead, live, 'start_work');
-  const lastTest = now.getTime() - 42 * MIN;
-  for (let when = t.getTime() + 30 * MIN; when <= lastTest; when += 30 * MIN) await gasTest(live, new Date(when), { ...clean, coPpm: 2 });
+  // Not overdue: the scheduler would suspend live hot work with an overdue repeat test on its first tick; the page shows a countdown instead.
+  const { gasTestIntervalMinutes } = (await findPermit(sequelize, tenantId, live))!;
+  const lastTest = now.getTime() - (gasTestIntervalMinutes - 10) * MIN;
+  for (let when = t.getTime() + gasTestIntervalMinutes * MIN; when < lastTest; when += gasTestIntervalMinutes * MIN) await gasTest(live, new Date(when), { ...clean, coPpm: 2 });
+  await gasTest(live, new Date(lastTest), { ...clean, coPpm: 2 });
 
   // 3. A second permit sharing CR-BV-149 (group lockout): coupon change between CR-BV-098 and CR-BV-149, isolated.
   const shareStart = new Date(now.getTime() - 2 * HOUR);

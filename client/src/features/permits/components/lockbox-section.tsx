@@ -14,6 +14,7 @@ import { Card } from '@client/components/ui/page';
 import { useToast } from '@client/components/ui/toast';
 import { useCrewSignOff, useCrewSignOn } from '../api/crew-lockbox';
 import { CrewHandOverForm } from './crew-hand-over-form';
+import { RecordCrewExceptionForm, RemoveCrewLockForm } from './crew-exception-forms';
 
 /**
  * Group lockout per person (OSHA 29 CFR 1910.147(f)(3)(ii)(D)): who has a personal lock on the
@@ -27,10 +28,15 @@ export function LockboxSection({ permit, userId, userName, timeZone }: { permit:
   const signOff = useCrewSignOff(permit.id);
   const form = useForm<CrewSignOnInput>({ resolver: zodResolver(crewSignOnInputSchema), defaultValues: { personalLockNumber: '' } });
   const [handingOver, setHandingOver] = useState(false);
+  // The absent-member exception (OSHA 29 CFR 1910.147(e)(3)) open for one person's lock at a time.
+  const [exceptionFor, setExceptionFor] = useState<{ userId: string; step: 'record' | 'remove' } | null>(null);
   const box = permit.lockbox;
   if (!box.perPerson) return null;
   const mine = box.crewOn.find((c) => c.userId === userId);
   const maySignOn = !mine && crewSignOnStates.includes(permit.state) && ability.can('sign_on', subject('Permit', { ...permit }));
+  const mayRecordException = ability.can('approve', subject('IsolationStep', { tenantId: permit.tenantId, contractorOrganisationId: permit.contractorOrganisationId }));
+  const mayRemoveForOthers = ability.can('sign_on', subject('Permit', { ...permit }));
+  const exceptionMember = exceptionFor && box.crewOn.find((c) => c.userId === exceptionFor.userId);
 
   return (
     <Card>
@@ -47,12 +53,36 @@ export function LockboxSection({ permit, userId, userName, timeZone }: { permit:
               <span className="text-sm">
                 Personal lock <strong className="break-all">{c.personalLockNumber}</strong> · on since {formatInZone(c.signedOnAt, timeZone)}
               </span>
+              {c.exception ? (
+                <span className="basis-full text-sm font-medium">
+                  Exception recorded by {c.exception.authoriserName} on {formatInZone(c.exception.recordedAt, timeZone)}: {c.name} is away, and another of the crew may take this lock off and sign for it.
+                </span>
+              ) : null}
+              {c.userId !== userId && !c.exception && mayRecordException ? (
+                <Button type="button" variant="secondary" className="mt-2 w-full sm:w-auto" onClick={() => setExceptionFor({ userId: c.userId, step: 'record' })}>
+                  Record exception for {c.name}&apos;s lock
+                </Button>
+              ) : null}
+              {c.userId !== userId && c.exception && c.exception.authoriserId !== userId && mayRemoveForOthers ? (
+                <Button type="button" variant="danger" className="mt-2 w-full sm:w-auto" onClick={() => setExceptionFor({ userId: c.userId, step: 'remove' })}>
+                  Remove {c.name}&apos;s lock under the exception
+                </Button>
+              ) : null}
             </li>
           ))}
         </ul>
       ) : (
         <p className="mb-3 text-sm font-medium">Nobody is signed on.</p>
       )}
+      {exceptionMember && exceptionFor.step === 'record' && !exceptionMember.exception ? (
+        <div className="mb-3">
+          <RecordCrewExceptionForm permitId={permit.id} member={exceptionMember} signer={userName} timeZone={timeZone} onDone={() => setExceptionFor(null)} />
+        </div>
+      ) : exceptionMember && exceptionFor.step === 'remove' && exceptionMember.exception ? (
+        <div className="mb-3">
+          <RemoveCrewLockForm permitId={permit.id} member={exceptionMember} signer={userName} onDone={() => setExceptionFor(null)} />
+        </div>
+      ) : null}
       {mine && handingOver ? (
         <CrewHandOverForm permitId={permit.id} signer={userName} myLock={mine.personalLockNumber} onDone={() => setHandingOver(false)} />
       ) : mine ? (
