@@ -81,21 +81,22 @@ async function createPermits(db: pg.Client, tenantId: string, pipelineId: string
       `INSERT INTO permit_sequences (tenant_id, year, last) VALUES ($1, $2, $3) ON CONFLICT (tenant_id, year) DO UPDATE SET last = permit_sequences.last + $3 RETURNING last`,
       [tenantId, year, n],
     ))!;
-    const at = (line.a + line.b) / 2;
     const rows = (
       await db.query<{ id: string; number: string; title: string; created_at: Date }>(
         `INSERT INTO permits (tenant_id, number, state, version, kinds, title, scope, pipeline_id, from_position, to_position, method_statement, hazards, checklist, walkdown,
            valid_from, valid_to, contractor_organisation_id, contractor_lead_user_id, requester_user_id, created_at, updated_at)
-         SELECT $1, format('PW-%s-%s', $2::int, lpad(n::text, greatest(4, length(n::text)), '0')), $5, $6, '{cold_work}', format('Bench %s: recoat a girth weld', g), 'Bench permit.', $7, $8, $8,
+         SELECT $1, format('PW-%s-%s', $2::int, lpad(n::text, greatest(4, length(n::text)), '0')), $5, $6, '{cold_work}', format('Bench %s: recoat a girth weld', g), 'Bench permit.', $7, spot.at, spot.at,
                 'Recoat by hand.', 'Residual vapour.',
                 coalesce((SELECT jsonb_agg(jsonb_build_object('key', key, 'label', label, 'required', 'all' = ANY (required_for) OR 'cold_work' = ANY (required_for), 'confirmed', false) ORDER BY sort)
                           FROM checklist_templates WHERE tenant_id = $1 AND stage = 'before_work'), '[]'::jsonb),
                 coalesce((SELECT jsonb_agg(jsonb_build_object('key', key, 'label', label, 'required', 'all' = ANY (required_for) OR 'cold_work' = ANY (required_for), 'confirmed', false) ORDER BY sort)
                           FROM checklist_templates WHERE tenant_id = $1 AND stage = 'walkdown'), '[]'::jsonb),
                 date_trunc('milliseconds', now()), date_trunc('milliseconds', now()) + interval '10 hours', $9, $10, $10, date_trunc('milliseconds', now()), date_trunc('milliseconds', now())
-         FROM generate_series(1, $4::int) g, LATERAL (SELECT $3::int - $4::int + g AS n) num
+         FROM generate_series(1, $4::int) g, LATERAL (SELECT $3::int - $4::int + g AS n) num,
+              -- Spread along the line, as real jobs are: permits stacked on one spot would all overlap each other.
+              LATERAL (SELECT round(($8::numeric + ($11::numeric - $8::numeric) * g / ($4::int + 1)), 3) AS at) spot
          RETURNING id, number, title, created_at`,
-        [tenantId, year, last, n, state, state === 'draft' ? 1 : 2, pipelineId, at.toFixed(3), org.id, lead.id],
+        [tenantId, year, last, n, state, state === 'draft' ? 1 : 2, pipelineId, line.a.toFixed(3), org.id, lead.id, line.b.toFixed(3)],
       )
     ).rows;
     const chain = new AuditChainWriter(db, tenantId, { seq: Number(head.seq), hash: head.last_hash }, () => undefined);

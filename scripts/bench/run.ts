@@ -212,7 +212,7 @@ async function load(spec: LoadSpec): Promise<LoadResult> {
   const elapsed = (Date.now() - started) / 1000;
   return {
     name: spec.name, path: spec.path, connections: spec.amount ? Math.min(connections, spec.amount) : connections, requests: times.length, seconds: elapsed,
-    rps: times.length / elapsed, p50: percentile(times, 50), p95: percentile(times, 95), p99: percentile(times, 99), max: Math.max(...times),
+    rps: times.length / elapsed, p50: percentile(times, 50), p95: percentile(times, 95), p99: percentile(times, 99), max: times.reduce((m, t) => (t > m ? t : m), -Infinity),
     non2xx: r.non2xx, errors: r.errors + r.timeouts, bytesPerResponse: times.length ? bytes / times.length : 0, statusCodes: codes,
     rssPeakMb: memory ? memory.windowPeak() : null,
   };
