@@ -1,8 +1,6 @@
 import { useState } from 'react';
-import { signatureMessages, signedNameMatches } from '@shared/permit/signed-name';
 import { useFieldArray, useForm, type Path } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { z } from 'zod';
 import type { IsolationStep } from '@shared/types/isolations';
 import { formatInZone, isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { Button } from '@client/components/ui/button';
@@ -10,6 +8,7 @@ import { TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import { ModalDialog } from '@client/components/ui/dialog';
+import { AbsenceRecordFields, absenceRecordSchema, type AbsenceRecordForm } from '@client/components/ui/absence-record';
 import { useRecordRemovalException } from '../api/record-removal-exception';
 import { placeServerErrors } from '../lib/server-errors';
 import { ConfirmBox } from './confirm-box';
@@ -27,21 +26,9 @@ interface Props {
   onRemove: () => void;
 }
 
-const MAX_ATTEMPTS = 10;
-const same = (a: string | undefined, b: string) => signedNameMatches(a, b);
 
-const formSchema = (signer: string) =>
-  z.object({
-    absenceCheck: z.string().trim().min(1, 'Say how you checked they are not on site.').max(1000),
-    contactAttempts: z
-      .array(z.object({ how: z.string().trim().min(1, 'Say how you tried to reach them.').max(300), at: z.string().min(1, 'Give the date and time you tried.') }))
-      .min(1, 'Record at least one attempt to reach them.')
-      .max(MAX_ATTEMPTS),
-    informPlan: z.string().trim().min(1, 'Say how they will be told before they come back to work.').max(1000),
-    password: z.string().min(1, signatureMessages.passwordMissing),
-    signedName: z.string().refine((v) => same(v, signer), signatureMessages.name(signer)),
-  });
-type ExceptionForm = z.infer<ReturnType<typeof formSchema>>;
+const formSchema = absenceRecordSchema;
+type ExceptionForm = AbsenceRecordForm;
 
 const knownField = /^(absenceCheck|informPlan|password|signedName|contactAttempts(\.\d+\.(how|at))?)$/;
 
@@ -147,31 +134,7 @@ function RecordForm({ permitId, step, signer, owner, timeZone, onClose }: { perm
           {problem}
         </Notice>
       ) : null}
-      <TextAreaField label={`How you checked ${owner} is not on site`} data-autofocus {...register('absenceCheck')} error={errors.absenceCheck?.message} hint="For example: not on the gate log, not answering the site radio." />
-      <fieldset className="flex flex-col gap-3 rounded-md border border-line p-3">
-        <legend className="px-1 text-sm font-semibold">Attempts to reach {owner}</legend>
-        {attempts.fields.map((f, i) => (
-          <div key={f.id} className="flex flex-col gap-2 border-b border-line pb-3 last:border-b-0 last:pb-0">
-            <TextField label={`Attempt ${i + 1}: how`} {...register(`contactAttempts.${i}.how`)} error={errors.contactAttempts?.[i]?.how?.message} hint="Phone, text, radio, their supervisor…" />
-            <TextField label={`Attempt ${i + 1}: when (${timeZone})`} type="datetime-local" {...register(`contactAttempts.${i}.at`)} error={errors.contactAttempts?.[i]?.at?.message} />
-            {attempts.fields.length > 1 ? (
-              <Button type="button" variant="secondary" className="self-start" onClick={() => attempts.remove(i)}>
-                Remove attempt {i + 1}
-              </Button>
-            ) : null}
-          </div>
-        ))}
-        {errors.contactAttempts?.message || errors.contactAttempts?.root?.message ? (
-          <p role="alert" className="text-sm font-medium text-danger">
-            {errors.contactAttempts.message ?? errors.contactAttempts.root?.message}
-          </p>
-        ) : null}
-        {attempts.fields.length < MAX_ATTEMPTS ? (
-          <Button type="button" variant="secondary" className="self-start" onClick={() => attempts.append({ how: '', at: isoToWallTime(new Date().toISOString(), timeZone) })}>
-            Add another attempt
-          </Button>
-        ) : null}
-      </fieldset>
+      <AbsenceRecordFields form={form} attempts={attempts} who={owner} timeZone={timeZone} autoFocus />
       <TextAreaField label={`How ${owner} will be told before coming back to work`} {...register('informPlan')} error={errors.informPlan?.message} />
       <TextField label="Your password" type="password" autoComplete="current-password" {...register('password')} error={errors.password?.message} />
       <TextField label={`Type your name as it appears: ${signer}`} autoComplete="off" spellCheck={false} {...register('signedName')} error={errors.signedName?.message} />

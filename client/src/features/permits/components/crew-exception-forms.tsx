@@ -9,6 +9,7 @@ import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
 import { TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
+import { AbsenceRecordFields, absenceRecordSchema, type AbsenceRecordForm } from '@client/components/ui/absence-record';
 import { useToast } from '@client/components/ui/toast';
 import { useCrewRecordException, useCrewRemoveUnderException } from '../api/crew-lockbox';
 
@@ -16,22 +17,12 @@ import { useCrewRecordException, useCrewRemoveUnderException } from '../api/crew
 // comes off only after an authoriser records that they are away, the attempts to reach them and how
 // they will be told, and then another of the crew takes it off and signs for it.
 
-const MAX_ATTEMPTS = 10;
 const signature = (signer: string) => ({
   password: z.string().min(1, signatureMessages.passwordMissing),
   signedName: z.string().refine((v) => signedNameMatches(v, signer), signatureMessages.name(signer)),
 });
-const recordSchema = (signer: string) =>
-  z.object({
-    absenceCheck: z.string().trim().min(1, 'Say how you checked they are not on site.').max(1000),
-    contactAttempts: z
-      .array(z.object({ how: z.string().trim().min(1, 'Say how you tried to reach them.').max(300), at: z.string().min(1, 'Give the date and time you tried.') }))
-      .min(1, 'Record at least one attempt to reach them.')
-      .max(MAX_ATTEMPTS),
-    informPlan: z.string().trim().min(1, 'Say how they will be told before they come back to work.').max(1000),
-    ...signature(signer),
-  });
-type RecordForm = z.infer<ReturnType<typeof recordSchema>>;
+const recordSchema = absenceRecordSchema;
+type RecordForm = AbsenceRecordForm;
 const removeSchema = (signer: string) => z.object(signature(signer));
 type RemoveForm = z.infer<ReturnType<typeof removeSchema>>;
 
@@ -94,31 +85,7 @@ export function RecordCrewExceptionForm({ permitId, member, signer, timeZone, on
           {problem}
         </Notice>
       ) : null}
-      <TextAreaField label={`How you checked ${who} is not on site`} {...register('absenceCheck')} error={errors.absenceCheck?.message} hint="For example: not on the gate log, not answering the site radio." />
-      <fieldset className="flex min-w-0 flex-col gap-3 rounded-md border border-line p-3">
-        <legend className="px-1 text-sm font-semibold">Attempts to reach {who}</legend>
-        {attempts.fields.map((f, i) => (
-          <div key={f.id} className="flex flex-col gap-2 border-b border-line pb-3 last:border-b-0 last:pb-0">
-            <TextField label={`Attempt ${i + 1}: how`} {...register(`contactAttempts.${i}.how`)} error={errors.contactAttempts?.[i]?.how?.message} hint="Phone, text, radio, their supervisor…" />
-            <TextField label={`Attempt ${i + 1}: when (${timeZone})`} type="datetime-local" {...register(`contactAttempts.${i}.at`)} error={errors.contactAttempts?.[i]?.at?.message} />
-            {attempts.fields.length > 1 ? (
-              <Button type="button" variant="secondary" className="w-full sm:w-auto sm:self-start" onClick={() => attempts.remove(i)}>
-                Remove attempt {i + 1}
-              </Button>
-            ) : null}
-          </div>
-        ))}
-        {errors.contactAttempts?.message || errors.contactAttempts?.root?.message ? (
-          <p role="alert" className="text-sm font-medium text-danger">
-            {errors.contactAttempts.message ?? errors.contactAttempts.root?.message}
-          </p>
-        ) : null}
-        {attempts.fields.length < MAX_ATTEMPTS ? (
-          <Button type="button" variant="secondary" className="w-full sm:w-auto sm:self-start" onClick={() => attempts.append({ how: '', at: now() })}>
-            Add another attempt
-          </Button>
-        ) : null}
-      </fieldset>
+      <AbsenceRecordFields form={form} attempts={attempts} who={who} timeZone={timeZone} />
       <TextAreaField label={`How ${who} will be told before coming back to work`} {...register('informPlan')} error={errors.informPlan?.message} />
       <TextField label="Your password" type="password" autoComplete="current-password" {...register('password')} error={errors.password?.message} />
       <TextField label={`Type your name as it appears: ${signer}`} autoComplete="off" spellCheck={false} {...register('signedName')} error={errors.signedName?.message} />
