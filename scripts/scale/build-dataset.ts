@@ -12,7 +12,7 @@ import { readTenantSettings } from '@shared/schemas/tenant-settings.schema';
 import type { ChecklistItem } from '@shared/types/permits';
 import type { WorkKind } from '@shared/permit/states';
 import { limitsFromSettings } from '../../server/src/lib/atmosphere-limits';
-import { AuditChainWriter, BulkInsert, Progress, deferIndexes, randomSource, type AuditEventFields } from './bulk';
+import { AuditChainWriter, BulkInsert, Progress, backendCpuSeconds, deferForeignKeys, deferIndexes, randomSource, type AuditEventFields } from './bulk';
 import { SCALE_CODE_PREFIX, SCALE_INSTRUMENT_SERIAL, SCALE_TENANT_SLUG } from './dataset';
 
 /** The full dataset; `factor` scales every count (tests build a sliver of it). */
@@ -35,6 +35,8 @@ export interface ScaleResult {
   tenantId: string;
   counts: Record<string, number>;
   seconds: number;
+  /** CPU seconds PostgreSQL spent for the load (its two writing sessions), when /proc can be read. */
+  databaseCpuSeconds?: number | null;
 }
 
 const HOUR = 3_600_000;
@@ -186,7 +188,9 @@ export async function buildScaleDataset(url: string, options: { factor?: number;
     [instrumentId, tenantId, SCALE_INSTRUMENT_SERIAL],
   );
 
-  const rebuildIndexes = await deferIndexes(a, ['permits', 'isolation_steps', 'gas_tests', 'audit_events']);
+  const bigTables = ['permits', 'isolation_steps', 'gas_tests', 'audit_events'];
+  const rebuildIndexes = await deferIndexes(a, bigTables);
+  const restoreForeignKeys = await deferForeignKeys(a, bigTables);
 
   // ---- Shared builders ---------------------------------------------------------------------------
   const permits = table(b, 'permits', [
@@ -462,6 +466,7 @@ export async function buildScaleDataset(url: string, options: { factor?: number;
       [tenantId, year, last],
     );
   progress.setPhase('indexes and vacuum');
+  await restoreForeignKeys();
   await rebuildIndexes();
   // Statistics for the planner, and the visibility map that lets index-only scans skip the heap
   // (autovacuum would get there later, in the middle of a benchmark).
@@ -474,6 +479,8 @@ export async function buildScaleDataset(url: string, options: { factor?: number;
             (SELECT count(*) FROM gas_tests WHERE tenant_id = $1)::int AS gas_readings, (SELECT count(*) FROM audit_events WHERE tenant_id = $1)::int AS audit_events`,
     [tenantId],
   );
+  // The database's share: the two sessions that wrote everything (an index build's parallel workers are not counted).
+  const dbCpu = await Promise.all([backendCpuSeconds(a), backendCpuSeconds(b)]);
   await Promise.all([a.end(), b.end()]);
-  return { built: true, tenantId, counts, seconds: (Date.now() - started) / 1000 };
+  return { built: true, tenantId, counts, seconds: (Date.now() - started) / 1000, databaseCpuSeconds: dbCpu.every((x) => x !== null) ? dbCpu[0]! + dbCpu[1]! : null };
 }

@@ -1,6 +1,7 @@
 // Helpers for loading the scale dataset quickly: multi-row INSERTs (one statement per ~1,000 rows,
 // each column sent as one array parameter and unnested by PostgreSQL), a small progress bar on
 // stderr, a seeded random source, and the audit hash chain written in bulk.
+import { readFileSync } from 'node:fs';
 import type pg from 'pg';
 import { eventHash } from '../../server/src/modules/audit/audit.service';
 
@@ -244,4 +245,38 @@ export async function deferIndexes(client: pg.Client, tables: string[]) {
     await client.query(`SET maintenance_work_mem = '256MB'`);
     for (const r of rows) await client.query(r.def);
   };
+}
+
+/**
+ * Drops the foreign keys of `tables` and returns a function that adds them again from their own
+ * definitions. Each row inserted under a foreign key runs a look-up of the row it names, with a
+ * share lock on it (every audit event and reading locks the tenant's row once more); adding the key
+ * after the load checks every row once, in one join. A row that breaks a key still fails the load,
+ * at that point instead of at its insert.
+ */
+export async function deferForeignKeys(client: pg.Client, tables: string[]) {
+  const { rows } = await client.query<{ tbl: string; name: string; def: string }>(
+    `SELECT c.conrelid::regclass::text AS tbl, c.conname AS name, pg_get_constraintdef(c.oid) AS def
+     FROM pg_constraint c JOIN pg_class t ON t.oid = c.conrelid
+     WHERE c.contype = 'f' AND t.relname = ANY ($1) AND t.relnamespace = 'public'::regnamespace`,
+    [tables],
+  );
+  for (const r of rows) await client.query(`ALTER TABLE ${r.tbl} DROP CONSTRAINT ${quoteIdent(r.name)}`);
+  return async () => {
+    for (const r of rows) await client.query(`ALTER TABLE ${r.tbl} ADD CONSTRAINT ${quoteIdent(r.name)} ${r.def}`);
+  };
+}
+
+const quoteIdent = (name: string) => `"${name.replace(/"/g, '""')}"`;
+
+/** CPU seconds a PostgreSQL backend has used so far (its user and system time), read from /proc; null where that cannot be read. */
+export async function backendCpuSeconds(client: pg.Client): Promise<number | null> {
+  const { rows } = await client.query<{ pid: number }>(`SELECT pg_backend_pid() AS pid`);
+  try {
+    // /proc/<pid>/stat: utime and stime (fields 14 and 15) in clock ticks of 1/100 s.
+    const fields = readFileSync(`/proc/${rows[0].pid}/stat`, 'utf8').split(') ')[1].split(' ');
+    return (Number(fields[11]) + Number(fields[12])) / 100;
+  } catch {
+    return null;
+  }
 }

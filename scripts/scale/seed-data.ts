@@ -19,7 +19,10 @@ async function main() {
     process.exit(3);
   }
   const counts = Object.entries(result.counts).map(([k, v]) => `${v.toLocaleString('en-US')} ${k.replace('_', ' ')}`);
-  console.log(`[seed:scale] Bramblecote now holds ${counts.join(', ')}; written in ${result.seconds.toFixed(1)} s`);
+  const cpu = process.cpuUsage();
+  const shares = [`${((cpu.user + cpu.system) / 1e6).toFixed(1)} s of CPU in this process`];
+  if (result.databaseCpuSeconds != null) shares.push(`${result.databaseCpuSeconds.toFixed(1)} s in PostgreSQL's writing sessions`);
+  console.log(`[seed:scale] Bramblecote now holds ${counts.join(', ')}; written in ${result.seconds.toFixed(1)} s (${shares.join(', ')})`);
   if (argv.includes('--verify')) {
     const started = Date.now();
     const sequelize = createSequelize(url);

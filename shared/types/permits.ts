@@ -126,8 +126,10 @@ export interface PermitDetail<Time extends Moment = string> extends PermitRecord
   nextGasTestDue: string | null;
   /** Group lockout per person: who has a personal lock on the permit's lockbox now. */
   lockbox: PermitLockbox<Time>;
-  /** Other permits whose work range overlaps this one on the same line: a warning, not a refusal. */
+  /** Other permits whose work range overlaps this one on the same line: a warning, not a refusal. The first ten by number. */
   workOverlaps: WorkOverlap[];
+  /** How many more overlapping permits there are beyond those in `workOverlaps` ("and 37 more"). */
+  workOverlapsMore: number;
 }
 
 /** Another permit working on the same stretch of the same pipeline (simultaneous operations, HSE HSG250). */

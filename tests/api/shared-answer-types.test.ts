@@ -98,7 +98,7 @@ describe('finding 2: the server answers exactly the shapes declared in shared/ty
         requesterUserId: true, requesterName: true, authoriserUserId: true, authoriserName: true, holderUserId: true, holderName: true,
         fireWatchMinutes: true, fireWatchPerson: true, gasTestWindowMinutes: true, gasTestIntervalMinutes: true, hotWorkEndedAt: true, controlRoomAckAt: true,
         rejectionReason: true, stateBeforeExpiry: true, expiredFlag: true, createdAt: true, updatedAt: true, actions: true, timeline: true, signatures: true, nextGasTestDue: true,
-        lockbox: true, workOverlaps: true, suspendedByKind: true, suspendedByName: true, suspendedAt: true, suspensionReason: true,
+        lockbox: true, workOverlaps: true, workOverlapsMore: true, suspendedByKind: true, suspendedByName: true, suspendedAt: true, suspensionReason: true,
       }),
     );
     expect(keysOf(permit.timeline[0])).toEqual(

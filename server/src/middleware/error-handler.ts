@@ -1,7 +1,7 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { ForbiddenError } from '@casl/ability';
 import { ZodError } from 'zod';
-import { BaseError, ConnectionError, ConnectionRefusedError, ConnectionTimedOutError, HostNotReachableError, UniqueConstraintError, ForeignKeyConstraintError } from 'sequelize';
+import { BaseError, ConnectionAcquireTimeoutError, ConnectionError, ConnectionRefusedError, ConnectionTimedOutError, HostNotReachableError, UniqueConstraintError, ForeignKeyConstraintError } from 'sequelize';
 import { AppError } from '../errors/app-error';
 import { zodDetails } from './validate';
 import { CalcInputError } from '@shared/calc';
@@ -15,6 +15,22 @@ function isDatabaseDown(err: unknown): boolean {
   return /Connection terminated|connection to server|ECONNREFUSED|Operation timeout|ResourceRequest timed out|is not queryable|timeout exceeded when trying to connect/i.test(
     e?.message ?? '',
   );
+}
+
+/** Seconds a client is asked to wait before trying again when the server is too busy to answer. */
+export const BUSY_RETRY_AFTER_SECONDS = 5;
+
+/**
+ * Too busy rather than broken: a statement cancelled by its timeout (57014 query_canceled), a lock not
+ * granted in time (55P03), PostgreSQL out of connections (53300), or no pooled connection free within
+ * the pool's wait. The transaction was rolled back; the same request later can succeed.
+ */
+function isOverloaded(err: unknown): boolean {
+  if (err instanceof ConnectionAcquireTimeoutError) return true;
+  const e = err as { code?: string; original?: { code?: string }; parent?: { code?: string }; message?: string; name?: string };
+  const code = e?.original?.code ?? e?.parent?.code ?? e?.code;
+  if (code && ['57014', '55P03', '53300'].includes(code)) return true;
+  return /ResourceRequest timed out|Operation timeout/i.test(e?.message ?? '');
 }
 
 /** Maps every error to the one JSON shape; never leaks stacks or SQL. */
@@ -38,7 +54,10 @@ export function errorHandler(): ErrorRequestHandler {
     else if (type === 'encoding.unsupported' || type === 'charset.unsupported') appErr = new AppError('unsupported_media_type', 'That content encoding is not supported.');
     else if (err instanceof UniqueConstraintError) appErr = AppError.conflict('A record with the same key already exists.', {});
     else if (err instanceof ForeignKeyConstraintError) appErr = AppError.validation('A referenced record does not exist.');
-    else if (isDatabaseDown(err)) appErr = new AppError('service_unavailable', 'The database is not reachable right now. Try again in a moment.');
+    else if (isOverloaded(err)) {
+      appErr = new AppError('service_unavailable', 'Holdpoint is very busy right now and could not finish this. Nothing was changed. Try again in a few seconds.');
+      res.set('Retry-After', String(BUSY_RETRY_AFTER_SECONDS));
+    } else if (isDatabaseDown(err)) appErr = new AppError('service_unavailable', 'The database is not reachable right now. Try again in a moment.');
     else if (status && status >= 400 && status < 500) appErr = new AppError(status === 404 ? 'not_found' : status === 415 ? 'unsupported_media_type' : 'validation_failed', status === 404 ? 'Not found.' : 'The request could not be processed.');
     else {
       req.log?.error({ err }, 'unhandled error');

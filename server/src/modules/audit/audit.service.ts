@@ -1,6 +1,5 @@
 import { createHash } from 'node:crypto';
 import { QueryTypes, type Sequelize } from 'sequelize';
-import type { Page, PageQuery } from '@shared/schemas/common.schema';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { authorizeType } from '../../lib/authorize';
@@ -71,9 +70,12 @@ type EventFields = Omit<StoredEvent, 'seq' | 'hash' | 'prev_hash'>;
  * also hands the event's values to PostgreSQL and takes them back as the columns' types return them
  * (jsonb reorders keys and rewrites numbers, uuid is lower-cased, text is UTF-8): the hash is taken
  * over what is stored, so verifying the row read back gives the same hash.
+ * The head's lock lasts until the caller's transaction ends, and every writer of the tenant waits for
+ * it: a state change appends its event as late as it can (permits.service.ts, applyTransition), and
+ * the append itself is two statements (lock and read the head; write the event and move the head in
+ * one), where it was four.
  */
 export async function appendAudit(sequelize: Sequelize, input: AuditInput): Promise<{ seq: number; hash: string }> {
-  await sequelize.query(`INSERT INTO audit_chain_heads (tenant_id) VALUES (:tenantId) ON CONFLICT DO NOTHING`, { replacements: { tenantId: input.tenantId } });
   const given = {
     tenant_id: input.tenantId,
     entity_type: input.entityType,
@@ -92,28 +94,37 @@ export async function appendAudit(sequelize: Sequelize, input: AuditInput): Prom
     data: canonicalJson(input.data ?? {}),
     occurred_at: input.occurredAt,
   };
-  const [head] = await sequelize.query<{ seq: number; last_hash: string } & EventFields>(
-    `SELECT h.seq, h.last_hash,
-            CAST(:tenant_id AS uuid) AS tenant_id, CAST(:entity_type AS text) AS entity_type, CAST(:entity_id AS uuid) AS entity_id,
-            CAST(:permit_id AS uuid) AS permit_id, CAST(:action AS text) AS action, CAST(:from_state AS text) AS from_state,
-            CAST(:to_state AS text) AS to_state, CAST(:actor_user_id AS uuid) AS actor_user_id, CAST(:actor_name AS text) AS actor_name,
-            CAST(:actor_role AS text) AS actor_role, CAST(:membership_id AS uuid) AS membership_id, CAST(:reason AS text) AS reason,
-            CAST(:ip AS text) AS ip, CAST(:data AS jsonb) AS data, CAST(:occurred_at AS timestamptz) AS occurred_at
-     FROM audit_chain_heads h WHERE h.tenant_id = :tenantId FOR UPDATE`,
-    { replacements: { ...given, tenantId: input.tenantId }, type: QueryTypes.SELECT },
-  );
+  const lockHead = () =>
+    sequelize.query<{ seq: number; last_hash: string } & EventFields>(
+      `SELECT h.seq, h.last_hash,
+              CAST(:tenant_id AS uuid) AS tenant_id, CAST(:entity_type AS text) AS entity_type, CAST(:entity_id AS uuid) AS entity_id,
+              CAST(:permit_id AS uuid) AS permit_id, CAST(:action AS text) AS action, CAST(:from_state AS text) AS from_state,
+              CAST(:to_state AS text) AS to_state, CAST(:actor_user_id AS uuid) AS actor_user_id, CAST(:actor_name AS text) AS actor_name,
+              CAST(:actor_role AS text) AS actor_role, CAST(:membership_id AS uuid) AS membership_id, CAST(:reason AS text) AS reason,
+              CAST(:ip AS text) AS ip, CAST(:data AS jsonb) AS data, CAST(:occurred_at AS timestamptz) AS occurred_at
+       FROM audit_chain_heads h WHERE h.tenant_id = :tenantId FOR UPDATE`,
+      { replacements: { ...given, tenantId: input.tenantId }, type: QueryTypes.SELECT },
+    );
+  let [head] = await lockHead();
+  if (!head) {
+    // The tenant's first event: start its chain (a concurrent first writer may win; either way there is one head).
+    await sequelize.query(`INSERT INTO audit_chain_heads (tenant_id) VALUES (:tenantId) ON CONFLICT DO NOTHING`, { replacements: { tenantId: input.tenantId } });
+    [head] = await lockHead();
+  }
   const { seq: headSeq, last_hash: prevHash, ...stored } = head;
   const event = { ...stored, seq: Number(headSeq) + 1 };
   const hash = eventHash(prevHash, event);
   await sequelize.query(
-    `INSERT INTO audit_events (tenant_id, seq, entity_type, entity_id, permit_id, action, from_state, to_state, actor_user_id, actor_name, actor_role,
-       membership_id, reason, ip, data, occurred_at, prev_hash, hash)
-     VALUES (:tenant_id, :seq, :entity_type, :entity_id, :permit_id, :action, :from_state, :to_state, :actor_user_id, :actor_name, :actor_role,
-       :membership_id, :reason, :ip, CAST(:data AS jsonb), :occurred_at, :prev_hash, :hash)`,
+    `WITH event AS (
+       INSERT INTO audit_events (tenant_id, seq, entity_type, entity_id, permit_id, action, from_state, to_state, actor_user_id, actor_name, actor_role,
+         membership_id, reason, ip, data, occurred_at, prev_hash, hash)
+       VALUES (:tenant_id, :seq, :entity_type, :entity_id, :permit_id, :action, :from_state, :to_state, :actor_user_id, :actor_name, :actor_role,
+         :membership_id, :reason, :ip, CAST(:data AS jsonb), :occurred_at, :prev_hash, :hash)
+       RETURNING seq)
+     UPDATE audit_chain_heads SET seq = (SELECT seq FROM event), last_hash = :hash WHERE tenant_id = :tenantId`,
     // The same text for data and the same instant as the values hashed above.
-    { replacements: { ...event, data: given.data, occurred_at: given.occurred_at, prev_hash: prevHash, hash } },
+    { replacements: { ...event, data: given.data, occurred_at: given.occurred_at, prev_hash: prevHash, hash, tenantId: input.tenantId } },
   );
-  await sequelize.query(`UPDATE audit_chain_heads SET seq = :seq, last_hash = :hash WHERE tenant_id = :tenantId`, { replacements: { seq: event.seq, hash, tenantId: input.tenantId } });
   return { seq: event.seq, hash };
 }
 
@@ -146,7 +157,13 @@ const run = (seq: number, lastSeq: number, problem: string): ChainBreak => (last
  * the next check instead of being reported missing, while an event sitting beyond the head in that
  * snapshot was not written by appendAudit.
  */
-export async function verifyChain(sequelize: Sequelize, tenantId: string, pageSize = 5_000): Promise<ChainReport> {
+export async function verifyChain(
+  sequelize: Sequelize,
+  tenantId: string,
+  pageSize = 5_000,
+  /** Told after each page: events checked so far, and the last sequence the check will reach. */
+  onPage?: (checked: number, until: number) => Promise<void>,
+): Promise<ChainReport> {
   const [start] = await sequelize.query<{ seq: number | null; last_hash: string | null; last_seq: number | null }>(
     `SELECT h.seq, h.last_hash, (SELECT max(e.seq) FROM audit_events e WHERE e.tenant_id = :tenantId) AS last_seq
      FROM (SELECT 1) one LEFT JOIN audit_chain_heads h ON h.tenant_id = :tenantId`,
@@ -183,6 +200,7 @@ export async function verifyChain(sequelize: Sequelize, tenantId: string, pageSi
       prevHash = row.hash;
       count++;
     }
+    if (onPage) await onPage(count, until);
     if (rows.length < pageSize) break;
     from = prevSeq + 1;
   }
@@ -197,35 +215,4 @@ export async function verifyTenantChain(deps: AppDeps, caller: CallerContext): P
   const { tenantId } = caller.actor;
   authorizeType(caller.ability, 'verify_chain', 'AuditEvent', { tenantId }, 'the audit trail');
   return withTenant(deps.sequelize, tenantId, () => verifyChain(deps.sequelize, tenantId));
-}
-
-export interface AuditEventRow {
-  seq: number;
-  entityType: string;
-  entityId: string;
-  permitId: string | null;
-  action: string;
-  fromState: string | null;
-  toState: string | null;
-  actorName: string | null;
-  actorRole: string | null;
-  reason: string | null;
-  occurredAt: Date;
-  hash: string;
-}
-
-/** The caller's tenant's events, newest first, one page. */
-export async function listAuditEvents(deps: AppDeps, caller: CallerContext, q: PageQuery): Promise<Page<AuditEventRow>> {
-  const { tenantId } = caller.actor;
-  authorizeType(caller.ability, 'read', 'AuditEvent', { tenantId }, 'the audit trail');
-  return withTenant(deps.sequelize, tenantId, async () => {
-    const [{ n }] = await deps.sequelize.query<{ n: number }>(`SELECT count(*)::int AS n FROM audit_events WHERE tenant_id = :t`, { replacements: { t: tenantId }, type: QueryTypes.SELECT });
-    const items = await deps.sequelize.query<AuditEventRow>(
-      `SELECT seq, entity_type AS "entityType", entity_id AS "entityId", permit_id AS "permitId", action, from_state AS "fromState", to_state AS "toState",
-              actor_name AS "actorName", actor_role AS "actorRole", reason, occurred_at AS "occurredAt", hash
-       FROM audit_events WHERE tenant_id = :t ORDER BY seq DESC LIMIT :limit OFFSET :offset`,
-      { replacements: { t: tenantId, limit: q.pageSize, offset: (q.page - 1) * q.pageSize }, type: QueryTypes.SELECT },
-    );
-    return { items, total: n, page: q.page, pageSize: q.pageSize };
-  });
 }

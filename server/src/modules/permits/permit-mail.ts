@@ -56,7 +56,14 @@ export async function queuePermitMail(
   permit: PermitRow,
   event: PermitEvent,
   to: PermitState,
-  ctx: { actorName: string; reason?: string | null; publicUrl: string; auditSeq: number; excludeUserEmail?: string },
+  ctx: {
+    actorName: string;
+    reason?: string | null;
+    publicUrl: string;
+    /** Names this one transition: the permit and the version it reaches (the audit event is appended after the mail, see applyTransition). */
+    transitionKey: string;
+    excludeUserEmail?: string;
+  },
 ) {
   const audience = audienceFor[event];
   if (!audience) return;
@@ -75,7 +82,7 @@ export async function queuePermitMail(
     .filter((l) => l !== '')
     .join('\n');
   for (const email of emails) {
-    // The audit sequence makes the key unique per transition, so a retried request never mails twice.
-    await enqueueMail(sequelize, { tenantId: permit.tenantId, to: email, subject, text, dedupeKey: `permit:${permit.tenantId}:${ctx.auditSeq}:${email}` });
+    // The permit's new version makes the key unique per transition, so a retried request never mails twice.
+    await enqueueMail(sequelize, { tenantId: permit.tenantId, to: email, subject, text, dedupeKey: `permit:${permit.tenantId}:${ctx.transitionKey}:${email}` });
   }
 }

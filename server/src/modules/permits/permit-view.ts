@@ -18,39 +18,38 @@ export async function permitDetail(deps: AppDeps, c: CallerContext, id: string):
     const permit = authorizeRecord(c.ability, 'read', 'Permit', await findPermit(sequelize, c.actor.tenantId, id), 'permit');
     // One connection per transaction: these run one after another.
     const actions = await availableActions(deps, c, permit);
-    const timeline = await permitTimeline(sequelize, c.actor.tenantId, id);
-    const signatures = await permitSignatures(sequelize, c.actor.tenantId, id);
-    const gasDue = await permitGasTestDue(sequelize, permit, deps.clock.now());
+    const { timeline, signatures, nextGasTestDue: gasDue } = await permitRecord(sequelize, permit, deps.clock.now());
     const lockbox = await permitLockbox(sequelize, c.actor.tenantId, id);
     const overlaps = await workOverlaps(sequelize, permit);
-    return { ...permit, actions, timeline, signatures, nextGasTestDue: gasDue, lockbox, workOverlaps: overlaps };
+    return { ...permit, actions, timeline, signatures, nextGasTestDue: gasDue, lockbox, workOverlaps: overlaps.shown, workOverlapsMore: overlaps.more };
   });
 }
 
-export async function permitTimeline(sequelize: Sequelize, tenantId: string, permitId: string): Promise<PermitTimelineEvent<Date>[]> {
-  return sequelize.query<PermitTimelineEvent<Date>>(
-    `SELECT seq, action, from_state AS "fromState", to_state AS "toState", actor_name AS "actorName", actor_role AS "actorRole",
-            reason, data, occurred_at AS "occurredAt", entity_type AS "entityType"
-     FROM audit_events WHERE tenant_id = :tenantId AND permit_id = :permitId ORDER BY seq`,
-    { replacements: { tenantId, permitId }, type: QueryTypes.SELECT },
+/**
+ * The permit's audit trail, its signatures and when its next repeat gas test is due, in one statement
+ * (three before): PostgreSQL writes the two lists as JSON, so each is one value to read, not a row per event.
+ */
+async function permitRecord(
+  sequelize: Sequelize,
+  permit: PermitRow,
+  now: Date,
+): Promise<{ timeline: PermitTimelineEvent<Date>[]; signatures: PermitSignature<Date>[]; nextGasTestDue: string | null }> {
+  // Only a live permit has a repeat gas test due: no need to look up its tests otherwise.
+  const live = liveStates.includes(permit.state);
+  const [row] = await sequelize.query<{ timeline: PermitTimelineEvent<string>[]; signatures: PermitSignature<string>[]; lastPass: Date | null }>(
+    `SELECT coalesce((SELECT json_agg(json_build_object('seq', a.seq, 'action', a.action, 'fromState', a.from_state, 'toState', a.to_state, 'actorName', a.actor_name,
+                                                   'actorRole', a.actor_role, 'reason', a.reason, 'data', a.data, 'occurredAt', a.occurred_at, 'entityType', a.entity_type)
+                                 ORDER BY a.seq)
+                      FROM audit_events a WHERE a.tenant_id = :tenantId AND a.permit_id = :permitId), '[]') AS timeline,
+            coalesce((SELECT json_agg(json_build_object('event', s.event, 'signedName', s.signed_name, 'passwordConfirmed', s.password_confirmed, 'signedAt', s.signed_at,
+                                                   'email', u.email) ORDER BY s.signed_at)
+                      FROM permit_signatures s JOIN users u ON u.id = s.user_id WHERE s.tenant_id = :tenantId AND s.permit_id = :permitId), '[]') AS signatures,
+            CASE WHEN :live THEN (SELECT max(g.tested_at) FROM gas_tests g WHERE g.tenant_id = :tenantId AND g.permit_id = :permitId AND g.verdict = 'pass') END AS "lastPass"`,
+    { replacements: { tenantId: permit.tenantId, permitId: permit.id, live }, type: QueryTypes.SELECT },
   );
-}
-
-export async function permitSignatures(sequelize: Sequelize, tenantId: string, permitId: string): Promise<PermitSignature<Date>[]> {
-  return sequelize.query<PermitSignature<Date>>(
-    `SELECT s.event, s.signed_name AS "signedName", s.password_confirmed AS "passwordConfirmed", s.signed_at AS "signedAt", u.email
-     FROM permit_signatures s JOIN users u ON u.id = s.user_id WHERE s.tenant_id = :tenantId AND s.permit_id = :permitId ORDER BY s.signed_at`,
-    { replacements: { tenantId, permitId }, type: QueryTypes.SELECT },
-  );
-}
-
-/** When the next repeat gas test is due on a live permit (null otherwise). */
-export async function permitGasTestDue(sequelize: Sequelize, permit: PermitRow, now: Date): Promise<string | null> {
-  // Only a live permit has one: no need to look up its tests otherwise.
-  if (!liveStates.includes(permit.state)) return null;
-  const [row] = await sequelize.query<{ last: Date | null }>(
-    `SELECT max(tested_at) AS last FROM gas_tests WHERE tenant_id = :tenantId AND permit_id = :permitId AND verdict = 'pass'`,
-    { replacements: { tenantId: permit.tenantId, permitId: permit.id }, type: QueryTypes.SELECT },
-  );
-  return nextGasTestDue(permit.state, row.last ? new Date(row.last) : null, permit.gasTestIntervalMinutes, now)?.toISOString() ?? null;
+  return {
+    timeline: row.timeline.map((e) => ({ ...e, occurredAt: new Date(e.occurredAt) })),
+    signatures: row.signatures.map((s) => ({ ...s, signedAt: new Date(s.signedAt) })),
+    nextGasTestDue: live ? (nextGasTestDue(permit.state, row.lastPass ? new Date(row.lastPass) : null, permit.gasTestIntervalMinutes, now)?.toISOString() ?? null) : null,
+  };
 }
