@@ -27,6 +27,18 @@ export default defineConfig({
           maxWorkers: 2,
         },
       },
+      {
+        // `npm run test:cluster` starts the cluster (HAProxy, PgBouncer, standby, three processes) and runs these against it.
+        resolve: { alias },
+        test: {
+          name: 'cluster',
+          include: ['tests/cluster/**/*.test.ts'],
+          environment: 'node',
+          testTimeout: 90_000,
+          hookTimeout: 60_000,
+          fileParallelism: false,
+        },
+      },
     ],
   },
 });

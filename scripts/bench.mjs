@@ -1,7 +1,8 @@
 // `npm run bench`: the performance run on the scale dataset (build it first with `npm run seed:scale`).
 // Starts the database of `npm start` if it is not running (and stops it again at the end), builds the
 // client when dist/ is missing, compiles the server, then runs scripts/bench/run.ts (or, with
-// `-- profile [entry]`, scripts/bench/profile.ts). Not part of `npm test`.
+// `-- profile [entry]`, scripts/bench/profile.ts; with `-- cluster`, scripts/bench/cluster.ts; with `-- browser`,
+// only run.ts's browser figures). Not part of `npm test`.
 import { existsSync, mkdirSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import { dirname, join, resolve } from 'node:path';
@@ -18,6 +19,9 @@ if (!/^[a-z_][a-z0-9_]*$/.test(database)) throw new Error(`SCALE_DATABASE must b
 
 ensureNodeModules(root);
 mkdirSync(dataDir, { recursive: true });
+// `npm run bench -- cluster`: the signed-in reads against `npm run cluster`'s shape (on spare ports, demo data)
+// and against one of its processes; prints the ratio (scripts/bench/cluster.ts).
+if (process.argv[2] === 'cluster') process.exit(await benchCluster());
 const cluster = startCluster({ root: join(dataDir, 'pg'), port: pgPort });
 let status = 1;
 try {
@@ -35,7 +39,8 @@ try {
   await buildServer(root);
   // `npm run bench -- profile [entry]`: the CPU profile of the signed-in reads instead of the whole run.
   const [command, ...rest] = process.argv.slice(2);
-  const script = command === 'profile' ? ['scripts/bench/profile.ts', ...rest] : ['scripts/bench/run.ts'];
+  // `npm run bench -- browser`: only the browser's figures (scripts/bench/run.ts browser).
+  const script = command === 'profile' ? ['scripts/bench/profile.ts', ...rest] : command === 'browser' ? ['scripts/bench/run.ts', 'browser'] : ['scripts/bench/run.ts'];
   status = spawnSync(process.execPath, ['--import', 'tsx', ...script], {
     cwd: root,
     stdio: 'inherit',
@@ -47,3 +52,29 @@ try {
   if (cluster.startedHere) cluster.stop();
 }
 process.exit(status);
+
+async function benchCluster() {
+  const { freePort } = await import('./lib/pg.mjs');
+  const { cleanupStale, startHoldpointCluster } = await import('./lib/cluster.mjs');
+  const { buildServer } = await import('./build-server.mjs');
+  const dir = join(dataDir, 'cluster-bench');
+  const serverDir = join(root, '.tmp', 'cluster-bench-server');
+  await buildServer(root, serverDir);
+  const ports = { http: await freePort(), backends: [await freePort(), await freePort(), await freePort()], primary: await freePort(), standby: await freePort(), bouncer: await freePort(), s3: await freePort() };
+  let running = null;
+  try {
+    running = await startHoldpointCluster({ root, dir, serverDir, clientDist: join(dir, 'no-client'), ports, extraEnv: { LOG_LEVEL: 'warn', WORKERS: 'off' } });
+    // Not spawnSync: s3rver runs in this process and must keep answering (the processes' readiness checks the bucket).
+    const { spawn } = await import('node:child_process');
+    const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/bench/cluster.ts'], { cwd: root, stdio: 'inherit', env: { ...process.env, HOLDPOINT_CLUSTER_STATE: join(dir, 'state.json') } });
+    return await new Promise((done) => child.on('exit', (code) => done(code ?? 1)));
+  } catch (err) {
+    console.error(`[bench] ${err.message}`);
+    await cleanupStale(dir);
+    return 1;
+  } finally {
+    await running?.stop();
+    const { rmSync } = await import('node:fs');
+    rmSync(serverDir, { recursive: true, force: true });
+  }
+}

@@ -24,6 +24,7 @@ const appUrl = withCredentials(ownerUrl, ensureAppRole(cluster, { role: 'holdpoi
 let stopped = false;
 // Ctrl-C stops the database only when this command started it.
 const stopDb = () => {
+  s3?.close().catch(() => undefined);
   if (stopped || !cluster.startedHere) return;
   stopped = true;
   cluster.stop();
@@ -32,7 +33,16 @@ const stopDb = () => {
 
 // Without SMTP_URL the demo keeps its mail in the development mailbox (/dev/mail, signed-in people see their own).
 const devMailbox = process.env.DEV_MAILBOX ?? (process.env.SMTP_URL ? 'off' : 'on');
-const env = { ...process.env, DATABASE_URL: appUrl, DATABASE_OWNER_URL: ownerUrl, DATA_DIR: dataDir, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development', DEV_MAILBOX: devMailbox };
+// Without S3_URL, uploads go to a local S3 fake (s3rver, files under .data/s3) that this command runs and stops.
+let s3 = null;
+let s3Env = {};
+if (!process.env.S3_URL) {
+  const { default: S3rver } = await import('s3rver');
+  s3 = new S3rver({ address: '127.0.0.1', port: 0, silent: true, directory: join(dataDir, 's3'), configureBuckets: [{ name: 'holdpoint', configs: [] }] });
+  const { port: s3Port } = await s3.run();
+  s3Env = { S3_URL: `http://127.0.0.1:${s3Port}`, S3_BUCKET: 'holdpoint', S3_ACCESS_KEY_ID: 'S3RVER', S3_SECRET_ACCESS_KEY: 'S3RVER' };
+}
+const env = { ...process.env, ...s3Env, DATABASE_URL: appUrl, DATABASE_OWNER_URL: ownerUrl, DATA_DIR: dataDir, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development', DEV_MAILBOX: devMailbox };
 const run = (args) => spawnSync(process.execPath, args, { cwd: root, env: { ...env, DATABASE_URL: ownerUrl }, stdio: 'inherit' });
 
 try {
@@ -40,7 +50,8 @@ try {
   const { buildServer } = await import('./build-server.mjs');
   await buildServer(root);
   if (run(['dist/server/demo-cli.js', 'setup']).status !== 0) throw new Error('database set-up failed');
-  if (spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: root, env, stdio: 'inherit' }).status !== 0) throw new Error('client build failed');
+  // The client is always built for production: with NODE_ENV=development Vite would ship React's development runtime.
+  if (spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: root, env: { ...env, NODE_ENV: 'production' }, stdio: 'inherit' }).status !== 0) throw new Error('client build failed');
   if (await portInUse(port)) throw new Error(`Port ${port} is in use; set PORT to another port.`);
 } catch (err) {
   console.error(`[start] ${err.message}`);
@@ -72,6 +83,7 @@ ${
     DEV_MAILBOX=off turns it off; SMTP_URL then sends real mail.`
     : `  Development mailbox is off: ${process.env.SMTP_URL ? 'mail goes out through SMTP_URL' : 'no SMTP_URL either, so mail waits in the outbox'}.`
 }
+  Uploads: ${s3 ? `a local S3 store for the demo, files under .data/s3 (set S3_URL and S3_BUCKET for a real bucket)` : `the bucket ${env.S3_BUCKET ?? 'holdpoint'} at S3_URL`}.
   Ctrl-C stops the server and its database; 'npm run stop' stops a database left running.
 `);
 const finish = (code) => {

@@ -44,3 +44,80 @@ export async function measureBoardPaint(base: string, email: string): Promise<Bo
     await browser.close();
   }
 }
+
+export interface SlowLinkVisits {
+  /** First visit: from navigation start to the start page showing the person's work, in ms. */
+  firstMs: number;
+  /** Repeat visit: from navigation start to the page's heading (the app drawn from the worker), and to the work, in ms. */
+  repeatMs: number;
+  repeatWorkMs: number;
+  /** The first visit's heading time, requests and bytes on the wire. */
+  firstHeadingMs: number;
+  requests: number;
+  bytes: number;
+  /** Whether the repeat visit's page came from the service worker. */
+  repeatFromWorker: boolean;
+}
+
+declare global {
+  interface Window {
+    benchHeadingAt?: number;
+    benchWorkAt?: number;
+  }
+}
+
+/**
+ * Issue 18's numbers: a signed-in phone (390×844, touch) opens the start page ("My work") over 400 kbit/s with
+ * 400 ms latency (Chromium throttled through CDP), then again from the service worker. Timed in the page from
+ * navigation start: the first visit to the person's work in the DOM (their lists or "nothing is waiting", not the
+ * loading line), the repeat visit to the page's heading (its answers still cross the slow link).
+ */
+export async function measureSlowLinkVisits(base: string, email: string): Promise<SlowLinkVisits> {
+  const browser = await chromium.launch({
+    executablePath: '/usr/bin/chromium',
+    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-dev-shm-usage', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'],
+  });
+  try {
+    const context = await browser.newContext({ baseURL: base, viewport: { width: 390, height: 844 }, hasTouch: true, isMobile: true });
+    await context.addInitScript(() => {
+      const observer = new MutationObserver(() => {
+        if (window.benchHeadingAt === undefined && document.querySelector('main h1')) window.benchHeadingAt = performance.now();
+        if (window.benchWorkAt === undefined && document.querySelector('main [data-testid="my-work-total"]')) window.benchWorkAt = performance.now();
+        if (window.benchHeadingAt !== undefined && window.benchWorkAt !== undefined) observer.disconnect();
+      });
+      observer.observe(document, { childList: true, subtree: true });
+    });
+    // Signed in before the link is throttled, as a phone that signed in earlier.
+    const { csrfToken } = (await (await context.request.get('/api/auth/csrf')).json()) as { csrfToken: string };
+    const signedIn = await context.request.post('/api/auth/sign-in', { headers: { 'x-csrf-token': csrfToken }, data: { email, password: DEMO_PASSWORD } });
+    if (signedIn.status() !== 200) throw new Error(`sign-in as ${email} failed: ${signedIn.status()}`);
+    const page = await context.newPage();
+    const cdp = await context.newCDPSession(page);
+    await cdp.send('Network.enable');
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 400, downloadThroughput: 400_000 / 8, uploadThroughput: 400_000 / 8 });
+    const sizes: Promise<number>[] = [];
+    page.on('requestfinished', (req) => sizes.push(req.sizes().then((s) => s.responseBodySize, () => 0)));
+    const workShown = async () => {
+      await page.getByTestId('my-work-total').waitFor({ timeout: 60_000 });
+      return page.evaluate(() => ({ heading: window.benchHeadingAt ?? NaN, work: window.benchWorkAt ?? NaN }));
+    };
+
+    await page.goto('/', { waitUntil: 'commit' });
+    const first = await workShown();
+    page.removeAllListeners('requestfinished');
+    const bytes = (await Promise.all(sizes)).reduce((a, b) => a + b, 0);
+    // The repeat visit is only a service-worker visit once the worker has activated (after its precache).
+    await page.evaluate(async () => {
+      const worker = (await navigator.serviceWorker.ready).active!;
+      if (worker.state !== 'activated') await new Promise((resolve) => worker.addEventListener('statechange', () => worker.state === 'activated' && resolve(undefined)));
+    });
+    const repeat = await page.goto('/', { waitUntil: 'commit' });
+    const again = await workShown();
+    return {
+      firstMs: Math.round(first.work), repeatMs: Math.round(again.heading), repeatWorkMs: Math.round(again.work), firstHeadingMs: Math.round(first.heading),
+      requests: sizes.length, bytes, repeatFromWorker: repeat?.fromServiceWorker() ?? false,
+    };
+  } finally {
+    await browser.close();
+  }
+}

@@ -4,6 +4,7 @@
 // (dist/server/index.js); a .ts entry (another checkout's server/src/index.ts, for a before/after) runs
 // under tsx. Writes nothing but its profiles (bench/results/profiles, git-ignored).
 //   PROFILE_SECONDS (10) per route, BENCH_CONNECTIONS (50).
+import { generateKeyPairSync } from 'node:crypto';
 import { spawn } from 'node:child_process';
 import { mkdirSync } from 'node:fs';
 import { createServer } from 'node:net';
@@ -13,6 +14,9 @@ import autocannon from 'autocannon';
 import { SCALE_TENANT_SLUG } from '../scale/dataset';
 import { sessionHeaders, signIn } from './session';
 import { topSelfTime } from './profile-top';
+
+/** Production needs a key to sign audit checkpoints; the bench signs nothing it keeps, so a throwaway key does. */
+const benchSigningKey = () => generateKeyPairSync('ed25519').privateKey.export({ type: 'pkcs8', format: 'pem' }).toString();
 
 const root = resolve(import.meta.dirname, '../..');
 const entry = process.argv[2] ?? 'dist/server/index.js';
@@ -44,7 +48,8 @@ async function main() {
   const base = `http://127.0.0.1:${port}`;
   const child = spawn(process.execPath, [...(entry.endsWith('.ts') ? ['--import', 'tsx'] : []), '--cpu-prof', `--cpu-prof-dir=${dir}`, entry], {
     cwd: root,
-    env: { ...process.env, NODE_ENV: 'production', LOG_LEVEL: 'warn', WORKERS: 'off', SERVER_PROCESSES: '1', HOST: '127.0.0.1', PORT: String(port), PUBLIC_URL: base },
+    // Production refuses to start without a session secret, mail and storage; the profile sends no mail (WORKERS=off) and uploads nothing.
+    env: { ...process.env, NODE_ENV: 'production', LOG_LEVEL: 'warn', WORKERS: 'off', SERVER_PROCESSES: '1', HOST: '127.0.0.1', PORT: String(port), PUBLIC_URL: base, SESSION_SECRET: process.env.SESSION_SECRET ?? 'bench-only-session-secret-0123456789', SMTP_URL: process.env.SMTP_URL ?? 'smtp://127.0.0.1:9', S3_URL: process.env.S3_URL ?? 'http://127.0.0.1:9', AUDIT_SIGNING_KEY: process.env.AUDIT_SIGNING_KEY ?? benchSigningKey() },
     stdio: ['ignore', 'ignore', 'inherit'],
   });
   for (const deadline = Date.now() + 90_000; ; await new Promise((r) => setTimeout(r, 200))) {

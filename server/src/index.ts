@@ -3,12 +3,16 @@ import cluster from 'node:cluster';
 import { availableParallelism } from 'node:os';
 import { loadConfig, ConfigError, type Config } from './config/env';
 import { createLogger } from './lib/logger';
-import { createPgPool, createSequelize } from './db/sequelize';
+import { createPgPool, createReplicaSequelize, createSequelize } from './db/sequelize';
 import { migrateUp } from './db/migrator';
 import { systemClock } from './lib/clock';
+import { drainState } from './lib/draining';
 // Type only: the mailbox and its SMTP catcher (a development package) load on demand below, never in production.
 import type { DevMailbox } from './modules/dev-mail/dev-mailbox';
 import type { AppDeps } from './deps';
+
+/** How long a stopping process waits for requests in flight and the worker round before it exits anyway. */
+const SHUTDOWN_MS = 20_000;
 
 function configOrExit() {
   try {
@@ -16,18 +20,18 @@ function configOrExit() {
   } catch (err) {
     if (err instanceof ConfigError) {
       console.error(err.message);
-      process.exit(2);
+      process.exit(1);
     }
     throw err;
   }
 }
 
 /**
- * SERVER_PROCESSES=auto (or a number): a primary runs the migrations once, then one server process per
- * core, which share the port (node:cluster) and nothing in memory that another would need (sessions,
- * access and the board's answers are in PostgreSQL or checked against it). A process that dies is
- * started again. Still per process: the sign-in and signature attempt counters, and the development
- * mailbox (so with DEV_MAILBOX=on one process runs).
+ * SERVER_PROCESSES=auto (or a number): a primary runs the migrations once (under their advisory lock,
+ * like `npm run db:migrate`), then one server process per core, which share the port (node:cluster)
+ * and nothing in memory that another would need (sessions, attempt counters, uploads and the board's
+ * version are in PostgreSQL or the bucket). A process that dies is started again. Still per process:
+ * the development mailbox (so with DEV_MAILBOX=on one process runs).
  */
 async function primary(config: Config, processes: number) {
   const logger = createLogger(config.LOG_LEVEL);
@@ -36,8 +40,8 @@ async function primary(config: Config, processes: number) {
   await owner.close();
   let stopping = false;
   const fork = (index: number) => {
-    // Only the first process runs the background loops (mail, scheduler): they are safe in several, but need not be.
-    const worker = cluster.fork({ HP_MIGRATED: '1', WORKERS: index === 0 ? config.WORKERS : 'off' });
+    // Every process runs the background loops; each round is elected by an advisory lock (workers.ts).
+    const worker = cluster.fork({ HP_MIGRATED: '1', WORKERS: config.WORKERS });
     worker.on('exit', (code, signal) => {
       if (stopping) return;
       logger.warn({ code, signal, index }, 'a server process ended; starting another');
@@ -97,7 +101,19 @@ async function main(config: Config) {
     mailTransport: createTransport(smtpUrl),
     clock: systemClock,
   };
+  if (config.DATABASE_REPLICA_URL) {
+    const { ReadReplica } = await import('./lib/read-replica');
+    deps.replica = new ReadReplica(createReplicaSequelize(config.DATABASE_REPLICA_URL, logger), sequelize, logger, config.REPLICA_MAX_LAG_MS);
+    deps.replica.start(deps);
+  }
   const app = createApp(deps, { devMailbox });
+  // Loads the storage client now rather than in the first request, and says at once when the bucket is not there.
+  if (config.S3_URL) {
+    const { objectStorage } = await import('./lib/storage');
+    objectStorage(config)
+      .check(10_000)
+      .catch((err: Error) => logger.error({ err: err.message, bucket: config.S3_BUCKET }, 'the upload bucket is not reachable; readiness answers 503 until it is'));
+  }
   const server = createServer(app);
   const workers = config.WORKERS === 'on' ? startWorkers(deps) : null;
   server.listen(config.PORT, config.HOST, () => {
@@ -105,14 +121,32 @@ async function main(config: Config) {
     const port = typeof addr === 'object' && addr ? addr.port : config.PORT;
     logger.info({ url: `http://${config.HOST}:${port}` }, 'Holdpoint is listening');
   });
+  const drain = drainState(config);
+  let stopping = false;
+  /**
+   * A clean stop: readiness answers 503 at once (draining), event streams end with a retry hint, the
+   * listening socket closes (new connections are refused), requests in flight are answered, the
+   * worker loops finish their round; then the process exits 0. Past SHUTDOWN_MS it exits 1 anyway.
+   */
   const shutdown = async (signal: string) => {
-    logger.info({ signal }, 'shutting down');
-    workers?.stop();
-    server.close();
-    server.closeAllConnections?.();
+    if (stopping) return;
+    stopping = true;
+    logger.info({ signal }, 'shutting down: finishing the requests in flight');
+    setTimeout(() => {
+      logger.error({ afterMs: SHUTDOWN_MS }, 'requests still in flight at the shutdown limit; exiting');
+      process.exit(1);
+    }, SHUTDOWN_MS).unref();
+    drain.start();
+    const closed = new Promise<void>((resolve) => server.close(() => resolve()));
+    // Kept-alive connections with nothing in flight would hold the close open: end them as they go idle.
+    const idle = setInterval(() => server.closeIdleConnections(), 100);
+    server.closeIdleConnections();
+    await Promise.all([closed, workers?.stop()]);
+    clearInterval(idle);
     await closeChangeFeed(deps);
     await devMailbox?.stop();
     await deps.pgPool.end().catch(() => undefined);
+    await deps.replica?.close();
     await sequelize.close().catch(() => undefined);
     process.exit(0);
   };

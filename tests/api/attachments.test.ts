@@ -84,6 +84,8 @@ async function expectNothingStored(srv: TestServer, act: () => Promise<{ status:
 }
 
 const uuidName = /^[0-9a-f]{8}-[0-9a-f]{4}-4[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f]{12}$/;
+// Stored by tenant, permit and the attachment's own id (issue 20: the same keys in a bucket).
+const storedKey = /^[0-9a-f-]{36}\/[0-9a-f-]{36}\/[0-9a-f]{8}-[0-9a-f]{4}-4[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f]{12}$/;
 
 describe('attachments on a permit', () => {
   let srv: TestServer;
@@ -102,7 +104,7 @@ describe('attachments on a permit', () => {
   });
   afterAll(() => srv.close());
 
-  it('when the lead uploads a PNG, then it is stored under a random name in UPLOAD_DIR and downloads byte for byte, inline, with nosniff', async () => {
+  it('when the lead uploads a PNG, then it is stored under tenant, permit and a random id in UPLOAD_DIR and downloads byte for byte, inline, with nosniff', async () => {
     const bytes = png();
     const before = filesUnder(srv.deps.config.UPLOAD_DIR);
     // The browser's declared type is ignored: the bytes say PNG.
@@ -113,7 +115,8 @@ describe('attachments on a permit', () => {
 
     const added = filesUnder(srv.deps.config.UPLOAD_DIR).filter((f) => !before.includes(f));
     expect(added).toHaveLength(1);
-    expect(added[0]).toMatch(uuidName);
+    expect(added[0]).toMatch(storedKey);
+    expect(added[0]).toBe(`${ids.tenantId}/${permitId}/${res.body.id}`);
 
     const got = await download(authoriser, res.body.downloadUrl);
     expect(got.status).toBe(200);
@@ -203,14 +206,16 @@ describe('attachments on a permit', () => {
     expect(res.body.originalName).toBe('passwd');
     expect(existsSync(escapeTarget)).toBe(false);
     const added = filesUnder(srv.deps.config.DATA_DIR).filter((f) => !dataBefore.includes(f));
-    expect(added).toEqual([join(relative(srv.deps.config.DATA_DIR, uploadDir), added[0].split('/').pop()!)]);
+    expect(added).toHaveLength(1);
+    // Inside the upload folder, at the stored key.
+    expect(relative(uploadDir, join(srv.deps.config.DATA_DIR, added[0]))).toMatch(storedKey);
     expect(added[0].split('/').pop()).toMatch(uuidName);
     expect(readdirSync(dirname(srv.deps.config.DATA_DIR))).toEqual(expect.arrayContaining(parentBefore));
     const [row] = await srv.deps.sequelize.query<{ stored_name: string; original_name: string }>(`SELECT stored_name, original_name FROM attachments WHERE id = :id`, {
       replacements: { id: res.body.id },
       type: QueryTypes.SELECT,
     });
-    expect(row.stored_name).toMatch(uuidName);
+    expect(row.stored_name).toMatch(storedKey);
     expect(row.original_name).toBe('passwd');
   });
 

@@ -1,5 +1,6 @@
 // Finding 8: the production server loads production's packages only. The real entry (server/src/index.ts)
 // runs as its own process, as `npm start` runs it, with a probe that lists the packages it loaded.
+import { generateKeyPairSync } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawn } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
@@ -7,7 +8,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { inject } from 'vitest';
-import { createTestDatabase } from '../fixtures/test-server';
+import { createTestDatabase, s3Env } from '../fixtures/test-server';
 // @ts-expect-error plain ESM helper shared with the npm scripts
 import { freePort, withCredentials } from '../../scripts/lib/pg.mjs';
 
@@ -58,9 +59,13 @@ async function packagesLoadedBy(name: string, env: Record<string, string>, check
   return new Set(files.map(packageOf).filter((p): p is string => p !== null));
 }
 
+/** What production refuses to start without (issue 20): a mail server (none listens here; the mail loop is off) and the bucket. */
+// Production refuses to start without its signing key for the audit checkpoints: a throwaway one per case.
+const productionNeeds = () => ({ SMTP_URL: 'smtp://127.0.0.1:9', ...s3Env(), AUDIT_SIGNING_KEY: generateKeyPairSync('ed25519').privateKey.export({ type: 'pkcs8', format: 'pem' }).toString() });
+
 describe('finding 8: production dependencies are production’s', () => {
   it('when the production server starts and answers, then the development mail catcher (smtp-tester) is not loaded', async () => {
-    const loaded = await packagesLoadedBy('production', { NODE_ENV: 'production' }, async (baseUrl) => {
+    const loaded = await packagesLoadedBy('production', { NODE_ENV: 'production', ...productionNeeds() }, async (baseUrl) => {
       expect(await (await fetch(`${baseUrl}/api/meta`)).json(), 'it runs as production').toMatchObject({ demo: false });
       expect((await fetch(`${baseUrl}/dev/mail`)).status, 'no development mailbox in production').not.toBe(401);
     });
@@ -71,7 +76,7 @@ describe('finding 8: production dependencies are production’s', () => {
   }, 60_000);
 
   it('when a production server is started with DEV_MAILBOX=on, then the setting is ignored and smtp-tester is still not loaded', async () => {
-    const loaded = await packagesLoadedBy('production-mailbox-on', { NODE_ENV: 'production', DEV_MAILBOX: 'on' }, async (baseUrl) => {
+    const loaded = await packagesLoadedBy('production-mailbox-on', { NODE_ENV: 'production', DEV_MAILBOX: 'on', ...productionNeeds() }, async (baseUrl) => {
       expect((await fetch(`${baseUrl}/dev/mail`)).status, 'no development mailbox in production').not.toBe(401);
     });
     expect(loaded.has('smtp-tester')).toBe(false);

@@ -28,7 +28,38 @@ export function createMigrator(sequelize: Sequelize) {
   });
 }
 
+/** The advisory lock every migrator takes first (any fixed number; this one is "HOLDPOINT" on a keypad). */
+export const MIGRATION_LOCK_KEY = 465_376_468;
+
+interface RawConnection {
+  query(sql: string, values?: unknown[]): Promise<unknown>;
+}
+interface ConnectionManager {
+  getConnection(options?: object): Promise<RawConnection>;
+  releaseConnection(connection: RawConnection): Promise<void>;
+}
+
+/**
+ * Migrates under a PostgreSQL advisory lock held on one connection of its own for the whole run:
+ * processes or machines that start together queue on it, and each one after the first finds nothing
+ * left to do. The lock is a session lock, so it goes with the connection if the process dies.
+ */
 export async function migrateUp(sequelize: Sequelize) {
+  const manager = (sequelize as unknown as { connectionManager: ConnectionManager }).connectionManager;
+  const connection = await manager.getConnection({ type: 'write' });
+  try {
+    await connection.query('SELECT pg_advisory_lock($1)', [MIGRATION_LOCK_KEY]);
+    try {
+      return await migrateLocked(sequelize);
+    } finally {
+      await connection.query('SELECT pg_advisory_unlock($1)', [MIGRATION_LOCK_KEY]).catch(() => undefined);
+    }
+  } finally {
+    await manager.releaseConnection(connection);
+  }
+}
+
+async function migrateLocked(sequelize: Sequelize) {
   const done = await createMigrator(sequelize).up();
   // A table with tenant data added by a migration that ran after the row-level-security one still
   // gets its policy: every tenant_id table without row security is switched on here (since 0100 the

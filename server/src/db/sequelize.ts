@@ -30,6 +30,25 @@ export function createSequelize(databaseUrl: string, logger?: Logger): Sequelize
   return sequelize;
 }
 
+/**
+ * The hot standby's pool (DATABASE_REPLICA_URL): smaller, and quick to give up, because a read that
+ * cannot reach the standby runs again on the primary (lib/read-replica.ts). Its transactions are
+ * read-only by nature; the tenant setting and row-level security work there as on the primary.
+ */
+export function createReplicaSequelize(databaseUrl: string, logger?: Logger): Sequelize {
+  const sequelize = new Sequelize(databaseUrl, {
+    dialect: 'postgres',
+    dialectModule: pg,
+    logging: logger && logger.isLevelEnabled('trace') ? (sql) => logger.trace({ sql }, 'sql') : false,
+    pool: { max: 5, min: 0, idle: 10_000, acquire: 2_000, evict: 5_000 },
+    dialectOptions: { connectionTimeoutMillis: 1_000, statement_timeout: 15_000 },
+    define: { underscored: true, timestamps: true },
+    retry: { max: 0 },
+  });
+  beginWithTenant(sequelize);
+  return sequelize;
+}
+
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /**

@@ -47,6 +47,8 @@ export const seedPermits: DemoSeeder = async (sequelize, ids) => {
     clock,
     logger: createLogger('silent'),
     mailTransport: null,
+    // The attempt counters' queries (auth_attempts) through the seed's own connection.
+    pgPool: { query: (text: string, values?: unknown[]) => sequelize.query(text, { bind: values }).then(([rows]) => ({ rows })) },
     config: { PUBLIC_URL: process.env.PUBLIC_URL ?? `http://127.0.0.1:${process.env.PORT ?? 3000}` } as Config,
   } as unknown as AppDeps;
 

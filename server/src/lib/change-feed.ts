@@ -50,7 +50,8 @@ class ChangeFeed {
   private async connect() {
     this.retry = null;
     if (this.stopped) return;
-    const client = new pg.Client({ connectionString: this.deps.config.DATABASE_URL, connectionTimeoutMillis: 3_000 });
+    // LISTEN needs a session of its own: past a transaction pooler, straight to the primary (DATABASE_DIRECT_URL).
+    const client = new pg.Client({ connectionString: this.deps.config.DATABASE_DIRECT_URL ?? this.deps.config.DATABASE_URL, connectionTimeoutMillis: 3_000 });
     const fail = (err?: Error) => {
       if (this.client !== client) return;
       this.client = null;

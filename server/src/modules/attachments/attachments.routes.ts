@@ -71,7 +71,7 @@ export function createAttachmentsRouter(deps: AppDeps) {
 
   router.get('/attachments/:id', async (req, res) => {
     const id = parse(uuidSchema, req.params.id, 'path');
-    const { summary, handle } = await openAttachment(deps, caller(req), id);
+    const { summary, body } = await openAttachment(deps, caller(req), id);
     try {
       res.setHeader('Content-Type', summary.contentType);
       res.setHeader('Content-Length', String(summary.sizeBytes));
@@ -81,13 +81,13 @@ export function createAttachmentsRouter(deps: AppDeps) {
       res.setHeader('Content-Security-Policy', "default-src 'none'; img-src 'self'; style-src 'unsafe-inline'; sandbox");
       res.setHeader('Cache-Control', 'private, no-store');
       res.setHeader('ETag', `"${summary.sha256}"`);
-      await pipeline(handle.createReadStream({ autoClose: false }), res);
+      await pipeline(body, res);
     } catch (err) {
       // Once bytes are on their way there is no error shape to send; a dropped download just ends.
       if (!res.headersSent) throw err;
       req.log?.info({ err: (err as Error).message, attachmentId: id }, 'download ended early');
     } finally {
-      await handle.close();
+      body.destroy();
     }
   });
 

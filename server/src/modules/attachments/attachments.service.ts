@@ -1,6 +1,5 @@
 import { createHash, randomUUID } from 'node:crypto';
-import { mkdir, open, rm, writeFile, type FileHandle } from 'node:fs/promises';
-import { join } from 'node:path';
+import type { Readable } from 'node:stream';
 import { QueryTypes, type Sequelize } from 'sequelize';
 import { isInlineContentType, type AttachmentsQuery, type UploadAttachmentFields } from '@shared/schemas/attachment.schema';
 import type { AttachmentSummary } from '@shared/types/attachments';
@@ -11,6 +10,7 @@ import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { authorizeRecord } from '../../lib/authorize';
+import { objectStorage } from '../../lib/storage';
 import { appendAudit } from '../audit/audit.service';
 import { auditActor, type CallerContext } from '../../lib/caller';
 import { findPermit, type PermitRow } from '../permits/permits.repository';
@@ -61,10 +61,16 @@ const withLinks = (row: Omit<AttachmentSummary<Date>, 'downloadUrl' | 'inline'>)
   inline: isInlineContentType(row.contentType),
 });
 
+/** Where an attachment's bytes are stored: by tenant, permit and the attachment's own id. */
+export const storageKey = (tenantId: string, permitId: string, attachmentId: string) => `${tenantId}/${permitId}/${attachmentId}`;
+const uuid = '[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}';
+// Files stored before keys named tenant and permit are a bare UUID in the upload folder.
+const storedKeyPattern = new RegExp(`^(${uuid}/${uuid}/)?${uuid}$`);
+
 /**
- * Checks the file, then in one transaction records the row and the audit event and, last, writes the
- * bytes under a random name. Nothing reaches the disk unless every check passed; if the transaction
- * fails after the write (at commit, say), the file is removed again.
+ * Checks the file, then in one transaction records the row and the audit event and, last, stores the
+ * bytes (see lib/storage). Nothing is stored unless every check passed; if the transaction fails after
+ * the write (at commit, say), the stored file is removed again.
  */
 export async function addAttachment(deps: AppDeps, caller: CallerContext, permitId: string, file: IncomingFile | undefined, fields: UploadAttachmentFields): Promise<AttachmentSummary<Date>> {
   if (!file) throw AppError.validation('Choose a file to upload.', [{ path: 'file', message: 'Send the file in the form field "file".' }]);
@@ -73,9 +79,9 @@ export async function addAttachment(deps: AppDeps, caller: CallerContext, permit
   const sniffed = await sniffContentType(file.buffer, originalName);
   if (!sniffed.ok) throw new AppError('unsupported_media_type', sniffed.message, [{ path: 'file', message: sniffed.message }]);
   const sha256 = createHash('sha256').update(file.buffer).digest('hex');
-  const storedName = randomUUID();
-  const uploadDir = deps.config.UPLOAD_DIR;
-  const target = join(uploadDir, storedName);
+  const id = randomUUID();
+  const storedName = storageKey(caller.actor.tenantId, permitId, id);
+  const storage = objectStorage(deps.config);
   let written = false;
   try {
     return await withTenant(deps.sequelize, caller.actor.tenantId, async () => {
@@ -85,10 +91,10 @@ export async function addAttachment(deps: AppDeps, caller: CallerContext, permit
       const entityId = await entityBelongs(deps.sequelize, tenantId, permitId, fields);
       const now = deps.clock.now();
       const [row] = await deps.sequelize.query<{ id: string }>(
-        `INSERT INTO attachments (tenant_id, permit_id, entity_type, entity_id, original_name, stored_name, content_type, size_bytes, sha256, uploaded_by, created_at)
-         VALUES (:tenantId, :permitId, :entityType, :entityId, :originalName, :storedName, :contentType, :size, :sha256, :userId, :now) RETURNING id`,
+        `INSERT INTO attachments (id, tenant_id, permit_id, entity_type, entity_id, original_name, stored_name, content_type, size_bytes, sha256, uploaded_by, created_at)
+         VALUES (:id, :tenantId, :permitId, :entityType, :entityId, :originalName, :storedName, :contentType, :size, :sha256, :userId, :now) RETURNING id`,
         {
-          replacements: { tenantId, permitId, entityType: fields.entityType, entityId, originalName, storedName, contentType: sniffed.contentType, size: file.buffer.length, sha256, userId: caller.user.id, now },
+          replacements: { id, tenantId, permitId, entityType: fields.entityType, entityId, originalName, storedName, contentType: sniffed.contentType, size: file.buffer.length, sha256, userId: caller.user.id, now },
           type: QueryTypes.SELECT,
         },
       );
@@ -97,13 +103,11 @@ export async function addAttachment(deps: AppDeps, caller: CallerContext, permit
         data: { name: originalName, contentType: sniffed.contentType, sizeBytes: file.buffer.length, sha256, attachedTo: { entityType: fields.entityType, entityId } },
         occurredAt: now,
       });
-      await mkdir(uploadDir, { recursive: true, mode: 0o700 });
       try {
-        // 'wx': never overwrite; a name collision fails instead of replacing someone's evidence.
-        await writeFile(target, file.buffer, { flag: 'wx', mode: 0o600 });
+        await storage.put(storedName, file.buffer, sniffed.contentType);
       } catch (err) {
-        if ((err as NodeJS.ErrnoException).code !== 'EEXIST') await rm(target, { force: true }).catch(() => undefined);
-        throw err;
+        deps.logger.error({ err: (err as Error).message, file: storedName }, 'could not store an upload');
+        throw new AppError('service_unavailable', 'The file store is not reachable right now. Try the upload again in a minute.');
       }
       written = true;
       const [summary] = await deps.sequelize.query<Omit<AttachmentSummary<Date>, 'downloadUrl' | 'inline'>>(
@@ -113,7 +117,7 @@ export async function addAttachment(deps: AppDeps, caller: CallerContext, permit
       return withLinks(summary);
     });
   } catch (err) {
-    if (written) await rm(target, { force: true }).catch((e: Error) => deps.logger.error({ err: e.message, file: storedName }, 'could not remove an orphaned upload'));
+    if (written) await storage.remove(storedName).catch((e: Error) => deps.logger.error({ err: e.message, file: storedName }, 'could not remove an orphaned upload'));
     throw err;
   }
 }
@@ -144,10 +148,10 @@ export async function listAttachments(deps: AppDeps, caller: CallerContext, perm
 
 export interface OpenedAttachment {
   summary: AttachmentSummary<Date>;
-  handle: FileHandle;
+  body: Readable;
 }
 
-/** Finds the attachment the caller may read (another tenant's, or one they may not see: 404) and opens its file. */
+/** Finds the attachment the caller may read (another tenant's, or one they may not see: 404) and opens its stored bytes. */
 export async function openAttachment(deps: AppDeps, caller: CallerContext, id: string): Promise<OpenedAttachment> {
   const { tenantId } = caller.actor;
   const found = await withTenant(deps.sequelize, tenantId, async () => {
@@ -163,13 +167,18 @@ export async function openAttachment(deps: AppDeps, caller: CallerContext, id: s
     return row;
   });
   const { storedName, contractorOrganisationId: _c, ...summary } = found;
-  // The stored name is ours (a UUID), never the person's file name; still refuse anything else.
-  if (!/^[0-9a-f-]{36}$/.test(storedName)) throw AppError.notFound('attachment');
+  // The stored name is ours (ids), never the person's file name; still refuse anything else.
+  if (!storedKeyPattern.test(storedName)) throw AppError.notFound('attachment');
+  let body: Readable | null;
   try {
-    const handle = await open(join(deps.config.UPLOAD_DIR, storedName), 'r');
-    return { summary: withLinks(summary), handle };
+    body = await objectStorage(deps.config).get(storedName);
   } catch (err) {
-    deps.logger.error({ err: (err as Error).message, attachmentId: id }, 'attachment file missing');
+    deps.logger.error({ err: (err as Error).message, attachmentId: id }, 'file store not reachable');
+    throw new AppError('service_unavailable', 'The file store is not reachable right now. Try again in a minute.');
+  }
+  if (!body) {
+    deps.logger.error({ attachmentId: id }, 'attachment file missing');
     throw new AppError('not_found', 'The file of that attachment is missing from storage. Tell your administrator.');
   }
+  return { summary: withLinks(summary), body };
 }

@@ -1,4 +1,5 @@
 import { setTimeout as sleep } from 'node:timers/promises';
+import { createHash } from 'node:crypto';
 import type { AppDeps } from '../../deps';
 import { AppError } from '../../errors/app-error';
 
@@ -37,15 +38,16 @@ export function tooManyResetRequests(retryAfterSeconds: number) {
   return new AppError('rate_limited', `Too many reset requests for this address. Wait ${waitText(retryAfterSeconds * 1000)} and try again.`);
 }
 
-interface Failures {
-  count: number;
-  /** The first failure of the current run (signatures) or the latest one (sign-in). */
-  at: number;
-}
+const WINDOW_SQL = `$2::timestamptz - $3::double precision * interval '1 millisecond'`;
+
+/** Counters are kept under a hash: the table holds no address and no person's id. */
+const counterKey = (kind: 'sign-in' | 'signature', who: string) => `${kind}:${createHash('sha256').update(who).digest('base64url')}`;
 
 /**
- * Failed-attempt limits of one server, kept in one place so they can move to PostgreSQL (several
- * processes) without touching the code that calls them. Times come from the injected clock.
+ * Failed-attempt limits, kept in PostgreSQL (`auth_attempts`, migration 0170) so that every server
+ * process counts the same attempts. Times come from the injected clock. The counters go through the
+ * plain pool, outside any transaction the caller has open: a failure counts even when the request's
+ * own transaction rolls back.
  *
  * Sign-in never locks an account. A lock-out (refusing an account for a while after N failures)
  * lets anyone who knows an address keep its owner out; refusing only *wrong* passwords while the
@@ -58,20 +60,13 @@ interface Failures {
  *
  * Signatures (the password typed again to approve, accept or hand over a permit) come from someone
  * already signed in, so a hard limit is safe there: after `signatureFailures` wrong passwords the
- * person's signatures are refused until the window has passed.
+ * person's signatures are refused until the window (from the first of them) has passed.
  */
 export class AttemptLimits {
-  private readonly signIns = new Map<string, Failures>();
-  private readonly signatures = new Map<string, Failures>();
-
   constructor(
-    private readonly clock: AppDeps['clock'],
+    private readonly deps: Pick<AppDeps, 'clock' | 'pgPool'>,
     readonly limits: Required<AuthLimits>,
   ) {}
-
-  private now() {
-    return this.clock.now().getTime();
-  }
 
   /** The delay before answering the `count`-th failure in a row. */
   failureDelayMs(count: number) {
@@ -81,48 +76,55 @@ export class AttemptLimits {
     return Math.min(baseMs * 2 ** Math.min(over - 1, 30), maxMs);
   }
 
+  /** Adds a failure; a run older than the window (from its `since` column) starts again at one. */
+  private async count(key: string, since: 'first_at' | 'last_at') {
+    const now = this.deps.clock.now();
+    const { rows } = await this.deps.pgPool.query<{ failures: number }>(
+      `INSERT INTO auth_attempts (key, failures, first_at, last_at) VALUES ($1, 1, $2, $2)
+       ON CONFLICT (key) DO UPDATE SET
+         failures = CASE WHEN auth_attempts.${since} <= ${WINDOW_SQL} THEN 1 ELSE auth_attempts.failures + 1 END,
+         first_at = CASE WHEN auth_attempts.${since} <= ${WINDOW_SQL} THEN $2 ELSE auth_attempts.first_at END,
+         last_at = $2
+       RETURNING failures`,
+      [key, now, this.limits.windowMs],
+    );
+    // Keeps the table small when many addresses are tried: now and then, forget runs long over.
+    if (Math.random() < 0.02) await this.deps.pgPool.query(`DELETE FROM auth_attempts WHERE last_at <= $1::timestamptz - $2::double precision * interval '1 millisecond'`, [now, this.limits.windowMs]);
+    return rows[0].failures;
+  }
+
+  private forget(key: string) {
+    return this.deps.pgPool.query(`DELETE FROM auth_attempts WHERE key = $1`, [key]);
+  }
+
   /** Records a failed sign-in of `account` and waits as long as its failures so far call for. */
   async signInFailed(account: string) {
-    const key = account.trim().toLowerCase();
-    const now = this.now();
-    const known = this.signIns.get(key);
-    const count = known && now - known.at < this.limits.windowMs ? known.count + 1 : 1;
-    this.signIns.set(key, { count, at: now });
-    this.forgetOld(this.signIns, now);
+    const count = await this.count(counterKey('sign-in', account.trim().toLowerCase()), 'last_at');
     const delay = this.failureDelayMs(count);
     if (delay > 0) await sleep(delay);
   }
 
-  signInSucceeded(account: string) {
-    this.signIns.delete(account.trim().toLowerCase());
+  async signInSucceeded(account: string) {
+    await this.forget(counterKey('sign-in', account.trim().toLowerCase()));
   }
 
-  /** Refuses (429) while this person has had too many wrong signature passwords. */
-  checkSignature(userId: string) {
-    const known = this.signatures.get(userId);
-    if (!known) return;
-    const left = known.at + this.limits.windowMs - this.now();
-    if (left <= 0) this.signatures.delete(userId);
-    else if (known.count >= this.limits.signatureFailures)
+  /** Refuses (429) while this person has had too many wrong signature passwords; true when some are on record. */
+  async checkSignature(userId: string): Promise<boolean> {
+    const { rows } = await this.deps.pgPool.query<{ failures: number; first_at: Date }>(`SELECT failures, first_at FROM auth_attempts WHERE key = $1`, [counterKey('signature', userId)]);
+    const known = rows[0];
+    if (!known) return false;
+    const left = known.first_at.getTime() + this.limits.windowMs - this.deps.clock.now().getTime();
+    if (left > 0 && known.failures >= this.limits.signatureFailures)
       throw new AppError('rate_limited', `Too many wrong passwords when signing. Wait ${waitText(left)} and try again.`);
+    return true;
   }
 
-  signatureFailed(userId: string) {
-    const now = this.now();
-    const known = this.signatures.get(userId);
-    if (known && now - known.at < this.limits.windowMs) known.count++;
-    else this.signatures.set(userId, { count: 1, at: now });
-    this.forgetOld(this.signatures, now);
+  async signatureFailed(userId: string) {
+    await this.count(counterKey('signature', userId), 'first_at');
   }
 
-  signatureSucceeded(userId: string) {
-    this.signatures.delete(userId);
-  }
-
-  /** Keeps memory bounded when many addresses are tried: old entries go once the map grows. */
-  private forgetOld(map: Map<string, Failures>, now: number) {
-    if (map.size < 10_000) return;
-    for (const [key, f] of map) if (now - f.at >= this.limits.windowMs) map.delete(key);
+  async signatureSucceeded(userId: string) {
+    await this.forget(counterKey('signature', userId));
   }
 }
 
@@ -130,13 +132,13 @@ export class AttemptLimits {
 const perApp = new WeakMap<object, AttemptLimits>();
 
 /** Called once by the auth router with the app's limits. */
-export function setUpAttemptLimits(deps: Pick<AppDeps, 'config' | 'clock'>, limits: Partial<AuthLimits> = {}) {
+export function setUpAttemptLimits(deps: Pick<AppDeps, 'config' | 'clock' | 'pgPool'>, limits: Partial<AuthLimits> = {}) {
   const merged: Required<AuthLimits> = { ...defaultAuthLimits, perIp: deps.config.SIGN_IN_LIMIT_PER_IP, ...limits };
-  const made = new AttemptLimits(deps.clock, merged);
+  const made = new AttemptLimits(deps, merged);
   perApp.set(deps.config, made);
   return made;
 }
 
-export function attemptLimits(deps: Pick<AppDeps, 'config' | 'clock'>) {
+export function attemptLimits(deps: Pick<AppDeps, 'config' | 'clock' | 'pgPool'>) {
   return perApp.get(deps.config) ?? setUpAttemptLimits(deps);
 }

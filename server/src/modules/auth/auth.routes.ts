@@ -25,10 +25,11 @@ import { CSRF_COOKIE, issueCsrfToken } from '../../middleware/csrf';
 import { SECURE_SESSION_COOKIE, SESSION_COOKIE } from '../../middleware/session';
 import { acceptInvitation, forgotPassword, meOf, resetPassword, signIn, signOut, switchTenant } from './auth.service';
 import { setUpAttemptLimits, tooManyResetRequests, type AuthLimits } from './attempt-limits';
+import { PostgresRateLimitStore } from './rate-limit-store';
 
 export { defaultAuthLimits, type AuthLimits } from './attempt-limits';
 
-function limiter(max: number, windowMs: number, key: (req: import('express').Request) => string, message: string) {
+function limiter(store: PostgresRateLimitStore, max: number, windowMs: number, key: (req: import('express').Request) => string, message: string) {
   const minutes = Math.max(1, Math.ceil(windowMs / 60_000));
   return rateLimit({
     windowMs,
@@ -36,6 +37,8 @@ function limiter(max: number, windowMs: number, key: (req: import('express').Req
     standardHeaders: 'draft-8',
     legacyHeaders: false,
     keyGenerator: key,
+    // Counted in PostgreSQL, so every server process behind a balancer counts the same attempts.
+    store,
     // X-Forwarded-For from anyone but a proxy named in TRUST_PROXY is ignored on purpose, not a misconfiguration.
     validate: { xForwardedForHeader: false },
     handler: (_req, _res, next) => next(new AppError('rate_limited', `${message} Wait ${minutes} minute${minutes === 1 ? '' : 's'} and try again.`)),
@@ -53,7 +56,7 @@ export function createAuthRouter(deps: AppDeps, authLimits?: AuthLimits) {
     res.json({ csrfToken: token });
   });
 
-  const perIp = limiter(limits.perIp, limits.windowMs, (req) => `ip:${ipKeyGenerator(clientIp(req) ?? req.socket.remoteAddress ?? '')}`, 'Too many attempts from this network.');
+  const perIp = limiter(new PostgresRateLimitStore(deps, 'ip'), limits.perIp, limits.windowMs, (req) => `ip:${ipKeyGenerator(clientIp(req) ?? req.socket.remoteAddress ?? '')}`, 'Too many attempts from this network.');
   // Per account there is no hard limit on purpose (it would lock the real person out): see attempt-limits.ts.
   router.post('/auth/sign-in', perIp, async (req, res) => {
     const input = parse(signInInputSchema, req.body, 'sign-in');

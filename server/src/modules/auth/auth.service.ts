@@ -62,7 +62,7 @@ export async function signIn(deps: AppDeps, req: Request, input: SignInInput): P
     await limits.signInFailed(input.email);
     throw new AppError('unauthenticated', SIGN_IN_FAILED);
   }
-  limits.signInSucceeded(input.email);
+  await limits.signInSucceeded(input.email);
   const memberships = await membershipsOf(deps.sequelize, user.id);
   // Whoever held the session this browser carried may know its CSRF nonce: then the new session gets a fresh one.
   const carriedSession = Boolean(req.session.userId);

@@ -12,12 +12,13 @@ import { attemptLimits } from './attempt-limits';
  */
 export async function signerPasswordMatches(deps: AppDeps, userId: string, password: string | undefined): Promise<boolean> {
   const limits = attemptLimits(deps);
-  limits.checkSignature(userId);
+  const failedBefore = await limits.checkSignature(userId);
   if (!password) return false;
   const [row] = await deps.sequelize.query<{ password_hash: string | null }>(`SELECT password_hash FROM users WHERE id = :id`, { replacements: { id: userId }, type: QueryTypes.SELECT });
   const ok = await verifyPassword(row?.password_hash, password);
-  if (ok) limits.signatureSucceeded(userId);
-  else limits.signatureFailed(userId);
+  // A right password forgets earlier wrong ones (nothing to forget: no statement).
+  if (!ok) await limits.signatureFailed(userId);
+  else if (failedBefore) await limits.signatureSucceeded(userId);
   return ok;
 }
 

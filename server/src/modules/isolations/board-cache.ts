@@ -17,6 +17,16 @@ const gzipAsync = promisify(gzip);
  * time ("gas test due now") and edits outside the services.
  */
 export const BOARD_REUSE_MS = 5_000;
+/**
+ * The data version an answer was built from: the tenant's audit sequence number and the period of
+ * BOARD_REUSE_MS it falls in (periods counted from the epoch, so every process agrees on them).
+ * The ETag is made from it and the filter alone, so every server process gives the same ETag for
+ * the same data and answers 304 to a screen that got its board from another process.
+ */
+const periodOf = (ms: number) => Math.floor(ms / BOARD_REUSE_MS);
+const boardEtag = (key: string, seq: number, atMs: number) => `W/"${createHash('sha1').update(`${key}|${seq}|${periodOf(atMs)}`).digest('base64url').slice(0, 22)}"`;
+const cacheKey = (tenantId: string, q: BoardQuery) => `${tenantId}|${q.pipelineId ?? ''}|${q.permitState ?? ''}|${q.unacknowledged === 'true' ? 'unacknowledged' : ''}`;
+
 /** Answers kept per process, by their size; the full board of a large tenant is a few megabytes. */
 const MAX_CACHED_BYTES = 48 * 1024 * 1024;
 
@@ -37,14 +47,14 @@ class BoardCache {
 
   async get(tenantId: string, q: BoardQuery): Promise<BoardSnapshot> {
     const { sequelize, clock } = this.deps;
-    const key = `${tenantId}|${q.pipelineId ?? ''}|${q.permitState ?? ''}`;
+    const key = cacheKey(tenantId, q);
     const seq = await withTenant(sequelize, tenantId, async () => {
       const [head] = await sequelize.query<{ seq: number }>(`SELECT seq FROM audit_chain_heads WHERE tenant_id = :tenantId`, { replacements: { tenantId }, type: QueryTypes.SELECT });
       return Number(head?.seq ?? 0);
     });
     const now = clock.now().getTime();
     const hit = this.entries.get(key);
-    if (hit && hit.seq === seq && now >= hit.at && now - hit.at < BOARD_REUSE_MS) return hit;
+    if (hit && hit.seq === seq && periodOf(now) === periodOf(hit.at)) return hit;
     // Screens refetch together after a change: one query answers all of them.
     const buildKey = `${key}|${seq}`;
     let pending = this.building.get(buildKey);
@@ -64,7 +74,7 @@ class BoardCache {
     const now = this.deps.clock.now();
     const { json, total } = await withTenant(this.deps.sequelize, tenantId, () => boardItemsJson(this.deps.sequelize, tenantId, q, now));
     const body = Buffer.from(`{"items":${json},"total":${total},"generatedAt":"${now.toISOString()}"}`);
-    const etag = `W/"${createHash('sha1').update(`${tenantId}|${q.pipelineId ?? ''}|${q.permitState ?? ''}|${seq}|${now.getTime()}`).digest('base64url').slice(0, 22)}"`;
+    const etag = boardEtag(cacheKey(tenantId, q), seq, now.getTime());
     return { seq, at: now.getTime(), body, etag, gzipped: null };
   }
 
