@@ -17,6 +17,8 @@ export const subjects = [
   'Pipeline', 'IsolationPoint', 'Lock', 'Tag',
   'Permit', 'IsolationStep', 'GasTest', 'Instrument', 'Check', 'Attachment', 'AuditEvent', 'Board', 'Calculator',
   'IsolationCertificate',
+  // The management figures (issue 21): aggregates over the whole tenant, no single record.
+  'Report',
   'all',
 ] as const;
 export type SubjectName = (typeof subjects)[number];
@@ -62,6 +64,7 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
     can('read', ['Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment', 'AuditEvent', 'Board'], t);
     can('verify_chain', 'AuditEvent', t);
     can('read', 'IsolationCertificate', t);
+    can('read', 'Report', t);
   },
   authoriser(can, a) {
     const t = { tenantId: a.tenantId };
@@ -76,6 +79,7 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
     can('approve', 'IsolationStep', t);
     // Isolation certificates (HSE HSG253): marks one long-term, re-checks it, returns it.
     can(['read', 'update', 'record', 'close'], 'IsolationCertificate', t);
+    can('read', 'Report', t);
   },
   contractor_lead(can, a, m) {
     const scope = permitScope(a, m);
@@ -120,6 +124,7 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
     can('read', ['User', 'Membership', 'Qualification', 'Permit', 'IsolationStep', 'GasTest', 'Check', 'Attachment', 'AuditEvent', 'Board'], t);
     can('verify_chain', 'AuditEvent', t);
     can('read', 'IsolationCertificate', t);
+    can('read', 'Report', t);
   },
 };
 

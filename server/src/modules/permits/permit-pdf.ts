@@ -16,15 +16,16 @@ import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
 import { fontRuns, selectFont, type FontWeight } from './pdf-fonts';
 import { loadPrintRecord, type PrintRecord } from './permit-print-record';
+import { checkpointPrintBlock, drawCheckpoint, type CheckpointPrint } from '../audit/checkpoint-print';
 
 type TextOptions = PDFKit.Mixins.TextOptions & { x?: number; y?: number };
 
-const MARGIN = 40;
+export const MARGIN = 40;
 /** Room kept free at the foot of each page for the permit number, page count and audit position. */
 const FOOTER = 34;
 
 /** Writes text in Noto Sans, switching between the font's parts within one line where the text needs it. */
-function write(doc: PDFKit.PDFDocument, value: unknown, options: TextOptions = {}, weight: FontWeight = 400) {
+export function write(doc: PDFKit.PDFDocument, value: unknown, options: TextOptions = {}, weight: FontWeight = 400) {
   const { x, y, continued, ...rest } = options;
   // Empty text would leave a continued line open, so the next text would run on after it.
   const runs = fontRuns(value, weight);
@@ -38,12 +39,12 @@ function write(doc: PDFKit.PDFDocument, value: unknown, options: TextOptions = {
   return doc;
 }
 
-const readingKeys: Record<Gas, string> = { o2: 'o2Pct', lel: 'lelPct', h2s: 'h2sPpm', co: 'coPpm' };
-const gasNames: Record<Gas, string> = { o2: 'O2', lel: 'Flammable', h2s: 'H2S', co: 'CO' };
-const defaultUnits: Record<Gas, GasUnit> = { o2: '%vol', lel: '%LEL', h2s: 'ppm', co: 'ppm' };
+export const readingKeys: Record<Gas, string> = { o2: 'o2Pct', lel: 'lelPct', h2s: 'h2sPpm', co: 'coPpm' };
+export const gasNames: Record<Gas, string> = { o2: 'O2', lel: 'Flammable', h2s: 'H2S', co: 'CO' };
+export const defaultUnits: Record<Gas, GasUnit> = { o2: '%vol', lel: '%LEL', h2s: 'ppm', co: 'ppm' };
 const handoverStatusLabels: Record<string, string> = { pending: 'waiting for the incoming lead', accepted: 'accepted', superseded: 'replaced by a later handover' };
 
-function boundText(b: GasBound): string {
+export function boundText(b: GasBound): string {
   const u = gasUnitLabels[b.unit] ?? b.unit;
   if (b.min !== undefined && b.max !== undefined) return `${b.min} to ${b.max} ${u}`;
   if (b.max !== undefined) return `at most ${b.max} ${u}`;
@@ -61,10 +62,12 @@ export async function preparePermitPdf(deps: AppDeps, tenantId: string, p: Permi
   const record = await withTenant(deps.sequelize, tenantId, () => loadPrintRecord(deps, tenantId, p.id));
   const url = `${deps.config.PUBLIC_URL}/permits/${p.id}`;
   const qr = await QRCode.toBuffer(url, { errorCorrectionLevel: 'M', margin: 1, width: 180 });
-  return (out) => writePermitPdf(deps, p, record, url, qr, out);
+  // Every printed copy carries the audit trail's head signed at printing (issue 21).
+  const checkpoint = await checkpointPrintBlock(deps, tenantId);
+  return (out) => writePermitPdf(deps, p, record, url, qr, out, checkpoint);
 }
 
-async function writePermitPdf(deps: AppDeps, p: PermitDetail<Date>, record: PrintRecord, url: string, qr: Buffer, out: NodeJS.WritableStream) {
+async function writePermitPdf(deps: AppDeps, p: PermitDetail<Date>, record: PrintRecord, url: string, qr: Buffer, out: NodeJS.WritableStream, checkpoint: CheckpointPrint) {
   const doc = new PDFDocument({
     size: 'A4', bufferPages: true, margins: { top: MARGIN, left: MARGIN, right: MARGIN, bottom: MARGIN + FOOTER },
     info: { Title: `Permit to work ${p.number}`, Author: 'Holdpoint', Subject: p.title },
@@ -78,11 +81,15 @@ async function writePermitPdf(deps: AppDeps, p: PermitDetail<Date>, record: Prin
   });
   doc.pipe(out);
   drawPermit(doc, deps, p, record, url, qr);
+  drawCheckpoint(doc, checkpoint, MARGIN);
+  stampPages(doc, p.number, record.chain);
+  doc.end();
   await finished;
 }
 
-function drawPermit(doc: PDFKit.PDFDocument, deps: AppDeps, p: PermitDetail<Date>, record: PrintRecord, url: string, qr: Buffer) {
-  const { settings, steps, provings, gas, checks, handovers, chain } = record;
+/** The permit's whole record, drawn into `doc` from where it stands; the dossier draws it first and adds its own parts. */
+export function drawPermit(doc: PDFKit.PDFDocument, deps: AppDeps, p: PermitDetail<Date>, record: PrintRecord, url: string, qr: Buffer) {
+  const { settings, steps, provings, gas, checks, handovers } = record;
   // Times on the posted copy are the tenant's local times, with the zone named.
   const { timeZone } = settings;
   const unit: LocationUnit = settings.locationUnit;
@@ -254,18 +261,20 @@ function drawPermit(doc: PDFKit.PDFDocument, deps: AppDeps, p: PermitDetail<Date
     text(`No. ${e.seq}  ${when(e.occurredAt)}  ${auditActionLabel(e.action)}${change}${label}  ${e.actorName ?? 'Holdpoint'}${role}${e.reason ? ` - ${e.reason}` : ''}`);
   }
   doc.fontSize(9.5);
+}
 
-  // Every page says whose it is, where it sits, and where the record stood in the audit chain.
-  const chainText = chain ? `audit trail up to entry no. ${chain.seq}, hash ${chain.hash.slice(0, 12)}` : 'no audit entries yet';
+/** Every page says whose it is, where it sits, and where the record stood in the audit chain. Call once, after the last page. */
+export function stampPages(doc: PDFKit.PDFDocument, permitNumber: string, chain: PrintRecord['chain'], chainWords?: string) {
+  const width = doc.page.width - 2 * MARGIN;
+  const chainText = chainWords ?? (chain ? `audit trail up to entry no. ${chain.seq}, hash ${chain.hash.slice(0, 12)}` : 'no audit entries yet');
   const range = doc.bufferedPageRange();
   for (let i = range.start; i < range.start + range.count; i++) {
     doc.switchToPage(i);
     const bottom = doc.page.margins.bottom;
     doc.page.margins.bottom = 0;
     doc.fontSize(7.5).fillColor('#3d4b57');
-    write(doc, `Permit ${p.number}  -  page ${i - range.start + 1} of ${range.count}  -  ${chainText}`, { x: MARGIN, y: doc.page.height - MARGIN - 12, width, lineBreak: false });
+    write(doc, `Permit ${permitNumber}  -  page ${i - range.start + 1} of ${range.count}  -  ${chainText}`, { x: MARGIN, y: doc.page.height - MARGIN - 12, width, lineBreak: false });
     doc.page.margins.bottom = bottom;
   }
   doc.flushPages();
-  doc.end();
 }
