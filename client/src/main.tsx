@@ -5,6 +5,7 @@ import '@fontsource/noto-sans/400.css';
 import '@fontsource/noto-sans/600.css';
 import '@fontsource/noto-sans/700.css';
 import './index.css';
+import './app/prefetch-me';
 import { AppProviders } from './app/providers';
 import { router } from './app/router';
 
@@ -15,3 +16,7 @@ createRoot(document.getElementById('root')!).render(
     </AppProviders>
   </StrictMode>,
 );
+
+// The service worker and its update prompt: loaded a moment after the page, off the first screen's path.
+if (import.meta.env.PROD)
+  window.addEventListener('load', () => setTimeout(() => void import('./app/app-update').then((m) => m.registerAppShell()), 1_500), { once: true });

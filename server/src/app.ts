@@ -1,12 +1,14 @@
 import express, { Router } from 'express';
 import helmet from 'helmet';
 import { pinoHttp } from 'pino-http';
+import expressStaticGzip from 'express-static-gzip';
 import { existsSync } from 'node:fs';
-import { join, resolve } from 'node:path';
+import { join, resolve, sep } from 'node:path';
 import { randomUUID } from 'node:crypto';
 import type { AppDeps } from './deps';
 import { errorHandler, notFoundApi } from './middleware/error-handler';
 import { sessionMiddleware } from './middleware/session';
+import { readYourWrites } from './lib/read-replica';
 import { csrfProtection } from './middleware/csrf';
 import { authenticate } from './middleware/authenticate';
 import { idempotency } from './middleware/idempotency';
@@ -39,6 +41,8 @@ export function createApp(deps: AppDeps, options: AppOptions = {}) {
           imgSrc: ["'self'", 'data:', 'blob:'],
           fontSrc: ["'self'"],
           connectSrc: ["'self'"],
+          workerSrc: ["'self'"],
+          manifestSrc: ["'self'"],
           objectSrc: ["'none'"],
           frameAncestors: ["'none'"],
           baseUri: ["'self'"],
@@ -53,7 +57,7 @@ export function createApp(deps: AppDeps, options: AppOptions = {}) {
     pinoHttp({
       logger: deps.logger,
       genReqId: (req) => (req.headers['x-request-id'] as string)?.slice(0, 64) || randomUUID(),
-      autoLogging: { ignore: (req) => req.url === '/api/health' || req.url?.startsWith('/assets/') === true },
+      autoLogging: { ignore: (req) => req.url?.startsWith('/api/health') === true || req.url?.startsWith('/assets/') === true },
       serializers: { req: (req) => ({ id: req.id, method: req.method, url: req.url }), res: (res) => ({ statusCode: res.statusCode }) },
     }),
   );
@@ -70,6 +74,8 @@ export function createApp(deps: AppDeps, options: AppOptions = {}) {
   api.use(createHealthRouter(deps));
   api.use(sessionMiddleware(deps));
   api.use(csrfProtection(deps.config.SESSION_SECRET));
+  // After a change, this browser's reads skip the standby for a few seconds (lib/read-replica.ts).
+  if (deps.replica) api.use(readYourWrites(deps.config.SESSION_SECRET));
   api.use(authenticate(deps));
   api.use(idempotency(deps));
   api.use(createAuthRouter(deps, options.authLimits));
@@ -82,8 +88,31 @@ export function createApp(deps: AppDeps, options: AppOptions = {}) {
 
   const dist = resolve(deps.config.CLIENT_DIST);
   if (existsSync(join(dist, 'index.html'))) {
-    app.use(express.static(dist, { index: false, maxAge: '1h', setHeaders: (res, path) => path.includes('/assets/') && res.setHeader('Cache-Control', 'public, max-age=31536000, immutable') }));
-    app.get('/{*splat}', (_req, res) => res.sendFile(join(dist, 'index.html')));
+    // The build writes brotli and gzip files beside each text asset; they are sent as they are, by what the
+    // browser accepts (Vary: Accept-Encoding). Hashed assets never change under their name; the page, the
+    // service worker and the web app manifest are checked again each time, so a new version reaches the device.
+    const assets = join(dist, 'assets') + sep;
+    const alwaysCheck = /[\\/](index\.html|sw\.js|manifest\.webmanifest)(\.br|\.gz)?$/;
+    app.use(
+      expressStaticGzip(dist, {
+        enableBrotli: true,
+        orderPreference: ['br', 'gzip'],
+        index: false,
+        serveStatic: {
+          index: false,
+          maxAge: '1h',
+          setHeaders: (res, path) => {
+            if (path.startsWith(assets)) res.setHeader('Cache-Control', 'public, max-age=31536000, immutable');
+            else if (alwaysCheck.test(path)) res.setHeader('Cache-Control', 'no-cache');
+          },
+        },
+      }),
+    );
+    app.get('/{*splat}', (_req, res) => {
+      res.setHeader('Cache-Control', 'no-cache');
+      // Relative to its root: a build folder under a dot-folder (as a test's own build is) is still served.
+      res.sendFile('index.html', { root: dist });
+    });
   }
   app.use(errorHandler());
   return app;

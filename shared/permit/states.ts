@@ -96,6 +96,10 @@ export const workOpenStates: readonly PermitState[] = ['accepted', 'isolated', '
 export const workUnderWayStates: readonly PermitState[] = ['live', 'suspended'];
 /** Work is going on: repeat gas tests fall due, and a failing test or check suspends the permit. */
 export const liveStates: readonly PermitState[] = ['live'];
+/** Work is stopped and waits to go on: the reason it stopped and who stopped it are shown with the permit. */
+export const suspendedStates: readonly PermitState[] = ['suspended'];
+/** Waiting for the authoriser's re-validation: expired before work started, or suspended (which ones, `awaitsAuthoriser` in suspension.ts). */
+export const revalidationStates: readonly PermitState[] = ['suspended', 'expired'];
 /** The isolations are signed in place and not handed back: vent and plug checks fall due whether the work is going on or stopped. */
 export const isolationCheckStates: readonly PermitState[] = ['isolated', 'live', 'suspended'];
 /** Before the isolations are signed in place (an expired permit may go back to one of these when re-validated). */
@@ -114,3 +118,8 @@ export const checklistOpenStates: Record<'checklist' | 'walkdown', readonly Perm
   checklist: workOpenStates,
   walkdown: ['work_complete'],
 };
+
+/** Not on the week-ahead plan: a draft is not sent yet, a cancelled permit will not happen. */
+export const notPlannedStates: readonly PermitState[] = ['draft', 'cancelled'];
+/** The moments a permit's stage times are measured between (the management report): sent, issued, work started, returned. */
+export const stageMilestones = { requested: 'requested', approved: 'approved', live: 'live', returned: 'returned_to_service' } as const satisfies Record<string, PermitState>;

@@ -1,3 +1,5 @@
+import { revalidationStates, suspendedStates, type PermitState } from './states';
+
 /**
  * Who stopped the work on a suspended permit. It decides who may start it again: a permit the lead
  * stopped may be resumed by the lead; one stopped by the control room, an authoriser or Holdpoint
@@ -16,6 +18,15 @@ export const suspendedByLabels: Record<SuspendedByKind, string> = {
 
 /** Whether only an authoriser, with a reason, may resume a permit suspended this way. */
 export const resumeNeedsAuthoriser = (kind: SuspendedByKind | null | undefined) => kind !== 'lead';
+
+/**
+ * Waiting for the authoriser's re-validation before work may go on: a permit that expired before work
+ * started, or a suspended one whose time ran out or which someone other than the lead stopped.
+ */
+export function awaitsAuthoriser(state: PermitState, expiredFlag: boolean, suspendedByKind: SuspendedByKind | null | undefined): boolean {
+  if (!revalidationStates.includes(state)) return false;
+  return !suspendedStates.includes(state) || expiredFlag || resumeNeedsAuthoriser(suspendedByKind);
+}
 
 /** The kind a person's suspension is recorded as: their strongest role that may suspend. */
 export function suspendedByKindFor(roles: readonly string[]): SuspendedByKind {

@@ -1,19 +1,12 @@
 import { z } from 'zod';
 import { readingColumns } from '../gas-tests/csv-readings';
+import { gasTestPlaces } from '../gas-tests/places';
 import { isoDateField, isoDateTimeField, requiredText, textField, uuidSchema } from './common.schema';
 
 const isoDateTime = isoDateTimeField();
 const isoDate = isoDateField();
 
-export const gasTestPlaces = ['inside_pipe_upstream', 'inside_pipe_downstream', 'work_area', 'vent_outlet', 'other'] as const;
-export type GasTestPlace = (typeof gasTestPlaces)[number];
-export const gasTestPlaceLabels: Record<GasTestPlace, string> = {
-  inside_pipe_upstream: 'Inside the pipe, upstream of the plug',
-  inside_pipe_downstream: 'Inside the pipe, downstream of the plug',
-  work_area: 'Work area',
-  vent_outlet: 'Vent outlet',
-  other: 'Other (say where)',
-};
+export { gasTestPlaces, gasTestPlaceLabels, type GasTestPlace } from '../gas-tests/places';
 
 export const gasTestPurposes = ['before_cleaning', 'before_work', 'repeat'] as const;
 export type GasTestPurpose = (typeof gasTestPurposes)[number];

@@ -4,10 +4,10 @@ import { AS_BUILT_MAX_LB, AS_BUILT_MAX_LENGTH_IN } from '../calc/mud-plug';
 import { MAX_PIPE_DIAMETER_IN, MIN_PIPE_DIAMETER_IN } from '../calc/pipe-dimensions';
 import { KG_PER_LB } from '../calc/units';
 import { boardPermitStates } from '../permit/states';
+import { stepKinds, type StepKind } from '../isolations/step-kinds';
 import { isoDateTimeField, requiredText, textField, uuidSchema } from './common.schema';
 
-export const stepKinds = ['block_valve', 'vent', 'drain', 'plug', 'blind', 'isolator', 'line_stop'] as const;
-export type StepKind = (typeof stepKinds)[number];
+export { stepKinds, stepKindLabels, type StepKind } from '../isolations/step-kinds';
 export const stepConditions = ['closed_locked_tagged', 'drained', 'vent_open', 'plug_built', 'blind_fitted', 'energy_isolated', 'line_stop_set'] as const;
 export type StepCondition = (typeof stepConditions)[number];
 
@@ -19,15 +19,6 @@ export const conditionLabels: Record<StepCondition, string> = {
   blind_fitted: 'Blind fitted',
   energy_isolated: 'Energy isolated',
   line_stop_set: 'Line stop set and holding',
-};
-export const stepKindLabels: Record<StepKind, string> = {
-  block_valve: 'Block valve',
-  vent: 'Vent',
-  drain: 'Drain',
-  plug: 'Mud plug',
-  blind: 'Blind',
-  isolator: 'Isolator',
-  line_stop: 'Line stop / mechanical plug',
 };
 
 /** The condition each kind of step must reach. */
@@ -147,6 +138,8 @@ export const verifyStepInputSchema = z
     reading: z.number().min(-100).max(100_000).optional(),
     unit: z.enum(pressureUnits).optional(),
     notes: textField(1000, 'Notes').optional(),
+    /** When it was verified on site, for a verification written down or sent later. */
+    verifiedAt: isoDateTime.optional(),
   })
   .refine((v) => !['pressure_reading', 'plug_length'].includes(v.method) || (v.reading !== undefined && v.unit !== undefined), {
     message: 'Give the reading and its unit.',
@@ -192,5 +185,7 @@ export type AcknowledgeStepInput = z.infer<typeof acknowledgeStepInputSchema>;
 export const boardQuerySchema = z.strictObject({
   pipelineId: uuidSchema.optional(),
   permitState: z.enum(boardPermitStates).optional(),
+  /** Only isolations the control room has still to acknowledge: as applied, or a remote valve's remote operation as inhibited. */
+  unacknowledged: z.enum(['true', 'false'], { message: 'Use true or false.' }).optional(),
 });
 export type BoardQuery = z.infer<typeof boardQuerySchema>;

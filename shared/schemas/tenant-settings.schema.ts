@@ -39,6 +39,10 @@ export const tenantSettingsSchema = z.object({
   // often: locks and tags intact, valves still closed, no pressure build-up (HSE HSG253). A week is
   // common practice, no published source.
   isolationRecheckHours: z.number().int().min(1).max(24 * 31).default(168),
+  // Where the signed audit checkpoints are mailed (the operator's records office); none: stored only.
+  recordsEmail: z.email().max(254).optional(),
+  // How often the chain head is signed; daily by default.
+  auditCheckpointHours: z.number().int().min(1).max(24 * 31).default(24),
 });
 export type TenantSettings = z.infer<typeof tenantSettingsSchema>;
 

@@ -12,7 +12,8 @@ import { DEMO_PASSWORD, startTestServer, type ApiClient, type TestServer } from 
 import { readAnswer, registeredApiRoutes } from '../fixtures/registered-routes';
 import {
   instrumentBody, inventoryBody, monitorOf, onePixelPng, permitBody, pipelineBody, pointBody, sampleAttachment, sampleHandover, sampleHeldPermit, sampleInstrument,
-  sampleAbsentCrew, sampleCrewHandOver, sampleCertificate, certificateLinkBody, sampleCrewOn, sampleHeldStep, sampleInventory, sampleLockedStep, sampleMembership, samplePermit, samplePipeline, samplePoint, sampleProving, sampleStep, tokenFor,
+  sampleAbsentCrew, sampleCrewHandOver, sampleCertificate, certificateLinkBody, sampleCrewOn, sampleHeldStep, sampleInventory, sampleLabel, sampleLockedStep, sampleMembership, samplePermit, samplePipeline, samplePoint, sampleProving, sampleStep, tokenFor,
+  sampleDossier,
   type Keepers, type MatrixContext, type SampleFactory, type SampleRecord, type TenantIds,
 } from '../fixtures/matrix-samples';
 
@@ -48,7 +49,8 @@ interface RouteCase {
   access: Access;
   /** A body that is valid for a caller who is allowed (an allowed caller must never get a 4xx). */
   body?: (c: MatrixContext, sample?: SampleRecord) => unknown;
-  query?: string;
+  /** A query string; a function when it names the sample record (GET /api/stream?permitId=…). */
+  query?: string | ((params: Record<string, string>) => string);
   /** The call ends or replaces the session: run it on a throwaway sign-in of the same person. */
   ownSession?: true;
   /** The answer is an endless event stream: read the status and the first bytes, then hang up. */
@@ -88,6 +90,8 @@ const ofContractor = (_a: Actor, c: MatrixContext) => ({ contractorOrganisationI
 const routes: RouteCase[] = [
   // health
   { method: 'GET', path: '/api/health', access: open },
+  { method: 'GET', path: '/api/health/live', access: open },
+  { method: 'GET', path: '/api/health/ready', access: open },
   { method: 'GET', path: '/api/meta', access: open },
 
   // auth
@@ -158,6 +162,11 @@ const routes: RouteCase[] = [
     body: () => ({ csv: 'record_type,pipeline_code\n' }),
   },
   { method: 'GET', path: '/api/exports/assets.csv', access: all(can('read', 'Pipeline'), can('read', 'IsolationPoint')) },
+  // QR labels for locks and tags (issue 18)
+  { method: 'GET', path: '/api/labels', query: '?kind=tag', access: can('read', 'Tag') },
+  { method: 'GET', path: '/api/permits/:id/labels', access: onRecord('read', 'Permit', sampleLockedStep) },
+  { method: 'GET', path: '/api/scan/lock/:code', access: onRecord('read', 'Lock', sampleLabel('/api/locks')) },
+  { method: 'GET', path: '/api/scan/tag/:code', access: onRecord('read', 'Tag', sampleLabel('/api/tags')) },
 
   // permits
   { method: 'GET', path: '/api/permits', access: canSome('read', 'Permit') },
@@ -178,6 +187,9 @@ const routes: RouteCase[] = [
   },
   { method: 'POST', path: '/api/permits/:id/hot-work-stopped', access: onRecord('hand_back', 'Permit', samplePermit('live', ['hot_work'])) },
   { method: 'GET', path: '/api/permits/:id/pdf', access: onRecord('read', 'Permit', samplePermit('draft')) },
+  { method: 'POST', path: '/api/permits/:id/dossier', access: onRecord('read', 'Permit', samplePermit('approved')) },
+  { method: 'GET', path: '/api/permits/:id/dossier/:jobId', access: onRecord('read', 'Permit', sampleDossier) },
+  { method: 'GET', path: '/api/permits/:id/dossier/:jobId/pdf', access: onRecord('read', 'Permit', sampleDossier) },
 
   // isolations
   { method: 'GET', path: '/api/permits/:id/isolations', access: onRecord('read', 'Permit', samplePermit('draft')) },
@@ -257,10 +269,25 @@ const routes: RouteCase[] = [
   { method: 'POST', path: '/api/certificates/:id/return', access: onRecord('close', 'IsolationCertificate', sampleCertificate()), body: () => ({}) },
   { method: 'GET', path: '/api/board', access: can('read', 'Board') },
   { method: 'GET', path: '/api/board/stream', access: can('read', 'Board'), stream: true },
+  // The week ahead (issue 21): whoever reads the board reads the plan.
+  { method: 'GET', path: '/api/plan', access: can('read', 'Board') },
+  { method: 'GET', path: '/api/reports/overview', access: can('read', 'Report') },
+  // live status: any reader of the named permit (an unreadable one is left out; none left answers 404)
+  { method: 'GET', path: '/api/stream', access: onRecord('read', 'Permit', samplePermit('draft')), query: (p) => `?permitId=${p.id}`, stream: true },
+  // "My work" (issue 18): every member of the tenant; each list follows the caller's own rules.
+  { method: 'GET', path: '/api/my-work', access: signedIn },
 
   // audit trail
   { method: 'GET', path: '/api/audit/verify', access: can('verify_chain', 'AuditEvent') },
   { method: 'GET', path: '/api/audit/events', access: can('read', 'AuditEvent') },
+  // the tenant-wide audit log (issue 21): the public key is public so a checkpoint can be checked without an account
+  { method: 'GET', path: '/api/audit/actors', access: can('read', 'AuditEvent') },
+  { method: 'GET', path: '/api/audit/export', access: can('read', 'AuditEvent'), query: '?format=csv&kind=reject' },
+  { method: 'POST', path: '/api/audit/chain-checks', access: can('verify_chain', 'AuditEvent') },
+  { method: 'GET', path: '/api/audit/chain-checks/latest', access: can('verify_chain', 'AuditEvent') },
+  { method: 'GET', path: '/api/audit/checkpoints', access: can('read', 'AuditEvent') },
+  { method: 'POST', path: '/api/audit/checkpoints', access: can('verify_chain', 'AuditEvent') },
+  { method: 'GET', path: '/api/audit/public-key', access: open },
 
   // attachments
   {
@@ -339,8 +366,8 @@ function contextFor(email: string | null): MatrixContext {
 const withParams = (path: string, params: Record<string, string>) => path.replace(/:([A-Za-z_]+)/g, (_m, name: string) => params[name] ?? `:${name}`);
 
 // eslint-disable-next-line @typescript-eslint/no-explicit-any -- answers of every route, read loosely
-async function send(client: ApiClient, route: RouteCase, path: string, body: unknown): Promise<{ status: number; body: Record<string, any> }> {
-  const url = path + (route.query ?? '');
+async function send(client: ApiClient, route: RouteCase, path: string, body: unknown, params: Record<string, string> = {}): Promise<{ status: number; body: Record<string, any> }> {
+  const url = path + (typeof route.query === 'function' ? route.query(params) : (route.query ?? ''));
   if (route.stream) {
     // An endless event stream: read the status and the first bytes, then hang up.
     const answer = await readAnswer(client.agent.get(url) as unknown as Parameters<typeof readAnswer>[0]);
@@ -467,7 +494,7 @@ for (const route of routes) {
         }
 
         const body = route.body ? await route.body(c, sample) : undefined;
-        const res = await send(client, route, path, body);
+        const res = await send(client, route, path, body, sample?.params);
         // GET /api/auth/csrf hands out a new token (and cookie): keep the client's copy in step.
         if (typeof res.body?.csrfToken === 'string') client.csrf = res.body.csrfToken;
         pairs++;
@@ -483,7 +510,7 @@ for (const route of routes) {
         if (access.kind === 'record' && c.actor) {
           const foreign = await access.sample(c, c.other);
           const again = route.body ? await route.body(c, foreign) : undefined;
-          const res2 = await send(client, route, withParams(route.path, foreign.params), again);
+          const res2 = await send(client, route, withParams(route.path, foreign.params), again, foreign.params);
           foreignCalls++;
           expect(res2.status, `${caller.key} → ${route.method} with ${c.other.slug}'s record: ${JSON.stringify(res2.body)}`).toBe(404);
           expect(res2.body.error.code).toBe('not_found');

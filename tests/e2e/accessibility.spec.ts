@@ -32,7 +32,8 @@ const mainPages: MainPage[] = [
   { name: 'forgot-password', role: 'anonymous', path: () => '/forgot-password' },
   { name: 'overview', role: 'lead', path: () => '/' },
   { name: 'permits-list', role: 'lead', path: () => '/permits', ready: (p) => p.locator('[data-testid="permit-row"]:visible, [data-testid="permit-card"]:visible').first() },
-  { name: 'permit-page', role: 'lead', path: () => `/permits/${permitId}`, ready: (p) => p.getByTestId('isolation-step').first() },
+  { name: 'permit-page', role: 'lead', path: () => `/permits/${permitId}`, ready: (p) => p.getByTestId('permit-summary') },
+  { name: 'permit-isolation-plan', role: 'lead', path: () => `/permits/${permitId}/isolations`, ready: (p) => p.getByTestId('isolation-step').first() },
   { name: 'new-permit', role: 'lead', path: () => '/permits/new', ready: (p) => p.getByRole('heading', { name: /Step 1 of 5/ }) },
   { name: 'pipelines-list', role: 'authoriser', path: () => '/pipelines', ready: (p) => p.getByTestId('pipeline-row').first() },
   { name: 'pipeline-page', role: 'authoriser', path: () => `/pipelines/${pipelineId}`, ready: (p) => p.getByTestId('schematic-strip') },
@@ -194,7 +195,7 @@ test('when someone uses only the keyboard, then they sign in, open a live permit
     await tabTo(page, row.getByRole('link'));
     await page.keyboard.press('Enter');
     await expect(page).toHaveURL(new RegExp(`/permits/${permitId}$`));
-    await expect(page.getByTestId('isolation-step').first()).toBeVisible();
+    await expect(page.getByTestId('permit-summary')).toBeVisible();
 
     const actions = page.getByRole('list', { name: 'Actions' });
     const action = actions.getByRole('button').and(page.locator(':enabled')).first();

@@ -150,12 +150,20 @@ export async function bumpTestedMonitor(authoriser?: ApiUser): Promise<{ id: str
  */
 export async function livePermit(title: string, tagCodes: string[]): Promise<{ id: string; number: string }> {
   const permit = await acceptedPermit(title, tagCodes);
+  await takeLive(permit.id);
+  return permit;
+}
+
+/** An accepted permit taken live as livePermit does; steps already applied or verified (through the screens, say) are left as they are. */
+export async function takeLive(permitId: string) {
+  const permit = { id: permitId };
   const [lead, authoriser, tech, tech2, control] = await Promise.all(
     ['lead@oxbow-repair.example', 'authoriser@bramblecote.example', 'tech@oxbow-repair.example', 'tech2@oxbow-repair.example', 'control@bramblecote.example'].map(apiAs),
   );
   try {
-    const plan = await ok<{ items: { id: string; kind: string; remotelyOperable: boolean }[] }>(tech.get(`/api/permits/${permit.id}/isolations`));
+    const plan = await ok<{ items: { id: string; kind: string; remotelyOperable: boolean; status: string; remoteAckAt: string | null }[] }>(tech.get(`/api/permits/${permit.id}/isolations`));
     for (const step of plan.items) {
+      if (step.status === 'verified') continue;
       const body: Record<string, unknown> = {};
       if (step.kind === 'block_valve' || step.kind === 'isolator') {
         const [lock] = (await ok<{ items: { id: string }[] }>(tech.get('/api/locks?state=in_store&pageSize=1'))).items;
@@ -163,8 +171,8 @@ export async function livePermit(title: string, tagCodes: string[]): Promise<{ i
         Object.assign(body, { lockId: lock.id, tagId: tag.id });
       }
       if (step.kind === 'plug') body.asBuilt = { bentoniteLb: 31, waterLb: 31, lengthIn: 15.5 };
-      await ok(tech.post(`/api/permits/${permit.id}/isolations/${step.id}/apply`, body));
-      if (step.remotelyOperable) await ok(control.post(`/api/permits/${permit.id}/isolations/${step.id}/acknowledge`, { what: 'remote_inhibited' }));
+      if (step.status === 'planned') await ok(tech.post(`/api/permits/${permit.id}/isolations/${step.id}/apply`, body));
+      if (step.remotelyOperable && !step.remoteAckAt) await ok(control.post(`/api/permits/${permit.id}/isolations/${step.id}/acknowledge`, { what: 'remote_inhibited' }));
       await ok(tech2.post(`/api/permits/${permit.id}/isolations/${step.id}/verify`, { method: 'position_checked' }));
     }
     await proveAndSign(permit.id);
@@ -178,7 +186,6 @@ export async function livePermit(title: string, tagCodes: string[]): Promise<{ i
     );
     expect(test.verdict).toBe('pass');
     expect((await transition(lead, permit.id, 'start_work')).state).toBe('live');
-    return permit;
   } finally {
     await Promise.all([lead, authoriser, tech, tech2, control].map((u) => u.close()));
   }

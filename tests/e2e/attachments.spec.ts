@@ -1,6 +1,6 @@
 import { expect, test } from '@playwright/test';
 import { crc32, deflateSync } from 'node:zlib';
-import { signIn, shot } from './helpers';
+import { openPermitSection, shot, signIn } from './helpers';
 import { apiAs, ok } from './api-helpers';
 
 /** A real 1×1 PNG (PNG specification, ISO/IEC 15948): signature, IHDR, IDAT, IEND with CRCs. */
@@ -45,6 +45,7 @@ test('when the lead uploads a photo on a permit, then progress ends in the list 
   const id = await draftPermit('Photograph the coating defect at MP 22');
   await signIn(page, 'lead@oxbow-repair.example');
   await page.goto(`/permits/${id}`);
+  await openPermitSection(page, 'Attachments');
   const files = page.getByLabel('File to add');
   await files.setInputFiles({ name: 'coating defect.png', mimeType: 'image/png', buffer: png() });
   await page.getByRole('button', { name: 'Upload' }).click();
@@ -71,6 +72,7 @@ test('when the permit is opened on a phone, then the files section fits without 
   await signIn(page, 'lead@oxbow-repair.example');
   await page.setViewportSize({ width: 390, height: 844 });
   await page.goto(`/permits/${id}`);
+  await openPermitSection(page, 'Attachments');
   await expect(page.getByLabel('File to add')).toBeVisible();
   const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
   expect(overflow).toBeLessThanOrEqual(0);

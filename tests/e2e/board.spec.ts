@@ -1,6 +1,6 @@
 import { expect, test } from '@playwright/test';
 import { acceptedPermit } from './api-helpers';
-import { noSideScroll, shot, signedInPage } from './helpers';
+import { noSideScroll, openPermitSection, shot, signedInPage } from './helpers';
 
 const TECH = 'tech@oxbow-repair.example';
 const CONTROL = 'control@bramblecote.example';
@@ -22,6 +22,7 @@ test('when the technician applies a lock on an accepted permit, then the control
 
   const tech = await signedInPage(browser, TECH);
   await tech.goto(`/permits/${permit.id}`);
+  await openPermitSection(tech, 'Isolation plan');
   const step = tech.getByTestId('isolation-step').filter({ hasText: 'CR-BV-252' });
   await expect(step).toHaveAttribute('data-status', 'planned');
   await step.getByRole('button', { name: 'Apply', exact: true }).click();

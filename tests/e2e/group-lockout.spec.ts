@@ -1,7 +1,7 @@
 import { expect, test, type Locator, type Page } from '@playwright/test';
 import pg from 'pg';
 import { acceptedPermit, apiAs, ok, proveAndSign } from './api-helpers';
-import { noSideScroll, signedInPage } from './helpers';
+import { noSideScroll, openPermitSection, signedInPage } from './helpers';
 
 // OSHA 29 CFR 1910.147(f)(3)(ii)(D): each person working puts a personal lock on the group lockbox when
 // they begin and takes it off when they stop. On a phone (390 px wide) the technician signs on and off
@@ -50,6 +50,7 @@ test('finding GL-1 and issue 16 shift change: when the site locks per person, th
     const page = await signedInPage(browser, 'tech@oxbow-repair.example');
     await page.setViewportSize({ width: 390, height: 844 });
     await page.goto(`/permits/${permit.id}`);
+    await openPermitSection(page, 'Crew and lockbox');
     const box = page.locator('section, div').filter({ has: page.getByRole('heading', { name: 'Lockbox', exact: true }) }).last();
     await expect(box).toContainText('Nobody is signed on.');
     const field = box.getByLabel('Your personal lock number');
@@ -113,6 +114,7 @@ test('issue 16 GL-10 (OSHA 29 CFR 1910.147(e)(3)): when a crew member left with 
     const authoriser = await signedInPage(browser, 'authoriser@bramblecote.example');
     await authoriser.setViewportSize({ width: 390, height: 844 });
     await authoriser.goto(`/permits/${permit.id}`);
+    await openPermitSection(authoriser, 'Crew and lockbox');
     let box = boxOn(authoriser);
     const record = box.getByRole('button', { name: "Record exception for Rory Kilbride's lock" });
     await tall(record);
@@ -143,6 +145,7 @@ test('issue 16 GL-10 (OSHA 29 CFR 1910.147(e)(3)): when a crew member left with 
     const tech = await signedInPage(browser, 'tech@oxbow-repair.example');
     await tech.setViewportSize({ width: 390, height: 844 });
     await tech.goto(`/permits/${permit.id}`);
+    await openPermitSection(tech, 'Crew and lockbox');
     box = boxOn(tech);
     await expect(box.getByRole('button', { name: /Record exception/ })).toHaveCount(0);
     const remove = box.getByRole('button', { name: "Remove Rory Kilbride's lock under the exception" });

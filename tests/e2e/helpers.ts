@@ -10,6 +10,15 @@ export async function signIn(page: Page, email: string, password = DEMO_PASSWORD
   await expect(page.getByTestId('who')).toBeVisible();
 }
 
+/** Signing in on a phone: the header's name sits behind the menu there, so the menu button tells the shell is open. */
+export async function signInOnPhone(page: Page, email: string, password = DEMO_PASSWORD) {
+  await page.goto('/sign-in');
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password', { exact: true }).fill(password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await expect(page.getByRole('button', { name: 'Menu' })).toBeVisible();
+}
+
 /** Screenshots refresh the committed ones in docs/ only when asked (`SCREENSHOTS=docs`); otherwise they land in .tmp/. */
 const shotDir = process.env.SCREENSHOTS === 'docs' ? 'docs/screenshots' : '.tmp/screenshots';
 
@@ -50,6 +59,9 @@ export function wallTime(at: Date, timeZone: string) {
 /** Opens a permit action from the "What you can do now" list, lets `fill` complete its dialog, and confirms it. */
 export async function takeAction(page: Page, action: string, fill?: (dialog: Locator) => Promise<void>) {
   await page.getByTestId('permit-state').first().waitFor();
+  // The actions are on the permit's summary; from one of its sections, go back to it first.
+  const summary = page.getByRole('navigation', { name: 'Permit sections' }).getByRole('link', { name: 'Summary', exact: true });
+  if ((await summary.count()) && (await summary.getAttribute('aria-current')) !== 'page') await openPermitSection(page, 'Summary');
   await page.getByRole('button', { name: action, exact: true }).click();
   const dialog = page.getByRole('dialog');
   await expect(dialog).toBeVisible();
@@ -79,4 +91,11 @@ export async function mailTo(browser: Browser, to: string, subject: string | Reg
   const text = await mail.first().innerText();
   await mailbox.context().close();
   return text;
+}
+
+/** Opens one section of the permit page (its summary shows none of them): the link in the permit's section bar. */
+export async function openPermitSection(page: Page, name: string) {
+  const link = page.getByRole('navigation', { name: 'Permit sections' }).getByRole('link', { name, exact: true });
+  await link.click();
+  await expect(link).toHaveAttribute('aria-current', 'page');
 }

@@ -1,7 +1,7 @@
 import { readFile } from 'node:fs/promises';
 import { expect, test, type Locator, type Page } from '@playwright/test';
 import { apiAs, bumpTestedMonitor, holdTestAsIfWaited, livePermit, ok } from './api-helpers';
-import { guideShot, mailTo, signAs, signedInPage, takeAction, wallTime } from './helpers';
+import { guideShot, mailTo, openPermitSection, signAs, signedInPage, takeAction, wallTime } from './helpers';
 
 // The whole job in a real browser, each person in a browser of their own. Journeys 1–4 follow one
 // hot-work cut-out from request to live work. Journey 5 takes a cold-work permit of its own (made live
@@ -86,6 +86,7 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     number = (await lead.getByRole('heading', { level: 1 }).innerText()).match(/PW-\d{4}-\d{4}/)![0];
 
     // Holdpoint proposes the isolations for the cut; nothing is saved until the planner saves it.
+    await openPermitSection(lead, 'Isolation plan');
     const editor = lead.getByTestId('plan-editor');
     await editor.getByRole('button', { name: 'Propose a plan for the cut' }).click();
     const rows = editor.getByTestId('plan-row');
@@ -120,8 +121,10 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     await authoriser.goto(permitUrl);
     await expect(state(authoriser)).toHaveText('Requested');
     // The plan is frozen once sent: the authoriser reviews the steps, not an editor.
+    await openPermitSection(authoriser, 'Isolation plan');
     await expect(authoriser.getByTestId('plan-editor')).toHaveCount(0);
     await expect(authoriser.getByTestId('isolation-step')).toHaveCount(5);
+    await openPermitSection(authoriser, 'Summary');
     await authoriser.getByRole('button', { name: 'Send back with reasons', exact: true }).click();
     await authoriser.getByRole('dialog').getByLabel('Reason').fill(reason);
     await guideShot(authoriser, 'review-send-back');
@@ -144,7 +147,9 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     await lead.getByRole('button', { name: 'Next' }).click();
     await lead.getByRole('button', { name: 'Save changes' }).click();
     await expect(lead).toHaveURL(permitUrl);
+    await openPermitSection(lead, 'Job');
     await expect(lead.getByText('Face shield', { exact: true })).toBeVisible();
+    await openPermitSection(lead, 'Isolation plan');
     await expect(lead.getByTestId('isolation-step').or(lead.getByTestId('plan-row'))).toHaveCount(5);
     await takeAction(lead, 'Send for approval');
     await expect(state(lead)).toHaveText('Requested');
@@ -179,6 +184,7 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
 
     const tech = await signedInPage(browser, TECH);
     await tech.goto(permitUrl);
+    await openPermitSection(tech, 'Isolation plan');
     // The plug step says what to build before anyone builds it (same source as journey 1).
     await expect(step(tech, 'Plug upstream of cut').getByTestId('plug-target-bentonite')).toHaveText('31.4 lb');
     await expect(step(tech, 'Plug upstream of cut').getByTestId('plug-target-water')).toHaveText('31.4 lb (3.77 US gal)');
@@ -215,6 +221,7 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     await expect(ours.and(control.locator('[data-unacknowledged="true"]'))).toHaveCount(0);
     const controlPermit = await control.context().newPage();
     await controlPermit.goto(permitUrl);
+    await openPermitSection(controlPermit, 'Isolation plan');
     await step(controlPermit, 'CR-BV-197').getByRole('button', { name: 'Acknowledge remote inhibition' }).click();
     await confirmDialog(controlPermit, 'Acknowledge');
     await expect(step(controlPermit, 'CR-BV-197')).toContainText('Jo Hartnell');
@@ -229,6 +236,7 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     await expect(step(tech, 'CR-BV-197')).toHaveAttribute('data-status', 'applied');
     const tech2 = await signedInPage(browser, TECH2);
     await tech2.goto(permitUrl);
+    await openPermitSection(tech2, 'Isolation plan');
     for (const label of plan) {
       await step(tech2, label).getByRole('button', { name: 'Verify', exact: true }).click();
       await confirmDialog(tech2, 'Record verification', async (d) => {
@@ -264,6 +272,7 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     await authoriser.goto(permitUrl);
     await takeAction(authoriser, 'Sign isolations in place', signAs('Priya Castellan'));
     await expect(state(authoriser)).toHaveText('Isolated');
+    await openPermitSection(authoriser, 'Isolation plan');
     await expect(authoriser.getByTestId('isolation-signature')).toContainText('Priya Castellan');
 
     // On the board (still not reloaded) the permit has left "Accepted"; under "Isolated" every step is verified and acknowledged.
@@ -283,6 +292,7 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     await expect(state(lead)).toHaveText('Isolated');
     // Start work waits for the checks and a passing gas test, and says so.
     await expect(lead.getByTestId('action-start_work')).toContainText('Record a passing gas test first.');
+    await openPermitSection(lead, 'Checklist');
     for (const item of [
       'Crew briefed on the permit, its limits and the isolation plan',
       'Section drained and the pipe interior cleaned and dry',
@@ -298,6 +308,7 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
 
     const tester = await signedInPage(browser, TECH);
     await tester.goto(permitUrl);
+    await openPermitSection(tester, 'Gas tests');
     const section = tester.getByTestId('gas-tests-section');
     // A pass wherever the regime needs one: inside the pipe on each side of the work, and the work area.
     let form = section.getByRole('form', { name: 'Record a gas test' });
@@ -350,6 +361,7 @@ test.describe.serial('one hot-work cut-out, from request to live work', () => {
     await expect(state(authoriser)).toHaveText('Live work');
     await lead.reload();
     await expect(state(lead)).toHaveText('Live work');
+    await openPermitSection(lead, 'Timeline');
     await expect(lead.getByTestId('timeline')).toContainText('Resume work');
     await expect(lead.getByTestId('timeline')).toContainText('Vapour traced to an open drain');
     await Promise.all([lead, tester, authoriser].map((p) => p.context().close()));
@@ -371,6 +383,7 @@ test('journey 5: when the lead hands back, the isolations come off in reverse or
   // The valve went on first, so it comes off last: Holdpoint says so before anything is taken off.
   const tech = await signedInPage(browser, TECH);
   await tech.goto(url);
+  await openPermitSection(tech, 'Isolation plan');
   await step(tech, 'CR-BV-149').getByRole('button', { name: 'Remove', exact: true }).click();
   const early = tech.getByRole('dialog');
   await expect(early.getByRole('status').filter({ hasText: 'Out of order' })).toContainText('first CR-VT-150');
@@ -385,6 +398,7 @@ test('journey 5: when the lead hands back, the isolations come off in reverse or
 
   const control = await signedInPage(browser, CONTROL);
   await control.goto(url);
+  await openPermitSection(control, 'Isolation plan');
   for (const label of ['CR-VT-150', 'CR-BV-149']) {
     await step(control, label).getByRole('button', { name: 'Acknowledge removed' }).click();
     await confirmDialog(control, 'Acknowledge');
@@ -395,6 +409,7 @@ test('journey 5: when the lead hands back, the isolations come off in reverse or
   const authoriser = await signedInPage(browser, AUTHORISER);
   await authoriser.goto(url);
   await expect(authoriser.getByTestId('action-return_to_service')).toContainText('Complete the walk-down checklist.');
+  await openPermitSection(authoriser, 'Checklist');
   for (const item of ['Crew, tools and equipment clear of the line', 'Every plug removed or recorded as left to be displaced by product', 'Vents and drains closed and capped', 'Block valves back in their normal position', 'Site tidied and waste removed']) {
     await authoriser.getByLabel(item).click();
     await expect(authoriser.getByLabel(item)).toBeChecked();
@@ -418,6 +433,7 @@ test('journey 5: when the lead hands back, the isolations come off in reverse or
   await auditor.goto(url);
   await expect(state(auditor)).toHaveText('Closed');
   await expect(auditor.getByText('There is nothing for you to do on this permit now.')).toBeVisible();
+  await openPermitSection(auditor, 'Timeline');
   const timeline = auditor.getByTestId('timeline');
   const entries = await timeline.locator(':scope > li > p:first-child').allInnerTexts();
   const order = [
@@ -435,6 +451,7 @@ test('journey 5: when the lead hands back, the isolations come off in reverse or
   await expect(timeline).toContainText('Jo Hartnell');
   await guideShot(auditor, 'close-timeline', timeline.locator(':scope > li').last());
 
+  await openPermitSection(auditor, 'Summary');
   const [download] = await Promise.all([auditor.waitForEvent('download'), auditor.getByRole('link', { name: 'Print permit' }).click()]);
   expect(download.suggestedFilename()).toBe(`${permit.number}.pdf`);
   const pdf = await readFile(await download.path());

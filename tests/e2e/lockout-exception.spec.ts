@@ -1,6 +1,6 @@
 import { expect, test, type Page } from '@playwright/test';
 import { acceptedPermit, apiAs, ok, transition } from './api-helpers';
-import { DEMO_PASSWORD, mailTo, signedInPage } from './helpers';
+import { DEMO_PASSWORD, mailTo, openPermitSection, signedInPage } from './helpers';
 
 // OSHA 29 CFR 1910.147(e)(3): a lock comes off by the hand that put it on; (e)(3)(i)–(iii) the exception
 // when its owner is not on site. Ana Lisgar (second technician) locks CR-BV-000 and goes home; the permit
@@ -33,6 +33,7 @@ test('finding I-1: when a technician did not put the lock on, then the step offe
   // Sam did not put the lock on: no plain "Remove"; the exception procedure says what an authoriser must record first.
   const tech = await signedInPage(browser, TECH);
   await tech.goto(url);
+  await openPermitSection(tech, 'Isolation plan');
   await expect(step(tech)).toHaveAttribute('data-status', 'applied');
   await expect(step(tech).getByRole('button', { name: 'Remove', exact: true })).toHaveCount(0);
   await step(tech).getByRole('button', { name: 'Remove under the exception procedure' }).click();
@@ -46,6 +47,7 @@ test('finding I-1: when a technician did not put the lock on, then the step offe
   // The authoriser records it, signed.
   const authoriser = await signedInPage(browser, AUTHORISER);
   await authoriser.goto(url);
+  await openPermitSection(authoriser, 'Isolation plan');
   await step(authoriser).getByRole('button', { name: 'Remove under the exception procedure' }).click();
   const form = authoriser.getByTestId('exception-form');
   await form.getByLabel('How you checked Ana Lisgar is not on site').fill('Not on the gate log since 14:00; site radio unanswered.');
@@ -62,6 +64,8 @@ test('finding I-1: when a technician did not put the lock on, then the step offe
 
   // Sam goes on to take it off, and signs for it.
   await tech.reload();
+  // The plan kept on the device shows first; wait for the server's, with the exception in it.
+  await expect(step(tech)).toContainText('Exception recorded');
   await step(tech).getByRole('button', { name: 'Remove under the exception procedure' }).click();
   dialog = tech.getByRole('dialog');
   await expect(dialog.getByTestId('exception-recorded')).toContainText('Priya Castellan recorded it');

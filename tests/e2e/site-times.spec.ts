@@ -1,6 +1,6 @@
 import { expect, test } from '@playwright/test';
 import { acceptedPermit, apiAs, ok } from './api-helpers';
-import { signedInPage } from './helpers';
+import { openPermitSection, signedInPage } from './helpers';
 
 // Issue 17: every time on screen is the site's, with its zone; the check form offers only what the
 // permit has, and its default "all vents of this permit" records a check.
@@ -43,6 +43,7 @@ test('issue 17: when a permit has a vent in place and no plug, then only the ven
 
   const page = await signedInPage(browser, 'tech@oxbow-repair.example');
   await page.goto(`/permits/${permit.id}`);
+  await openPermitSection(page, 'Checks');
   const kinds = page.getByRole('group', { name: 'What was checked' });
   await expect(kinds.getByLabel('Vent check')).toBeVisible();
   await expect(kinds.getByLabel('Plug check')).toHaveCount(0);

@@ -5,9 +5,10 @@ import { describe, expect, it } from 'vitest';
 import { addMinutes, subMinutes } from 'date-fns';
 import {
   beforeIsolatedStates, boardPermitStates, certificateLinkStates, certificateReleaseStates, crewSignOnStates, checklistOpenStates, closedStates, editableStates, finishedStates, holdsIsolations, limitsFixedStates, liveStates, permitStates,
-  workOpenStates, workUnderWayStates, type PermitState,
+  revalidationStates, suspendedStates, workOpenStates, workUnderWayStates, type PermitState,
 } from '@shared/permit/states';
 import { eventsFrom, statesFrom, targetOf } from '@shared/permit/state-machine';
+import { awaitsAuthoriser, suspendedByKinds } from '@shared/permit/suspension';
 import { dueTimes, nextGasTestDue } from '@shared/permit/due-times';
 import {
   acknowledgementAction, applyStates, isInPlace, removeStates, stepActionNames, stepActionRefusal, stepActions, stepKindForPoint, takesLock, type StepRecord,
@@ -59,6 +60,22 @@ describe('finding 1: the lists of permit states agree with the state machine', (
     for (const s of closedStates) expect(eventsFrom(s), s).toEqual([]);
     for (const s of closedStates) expect(finishedStates).toContain(s);
     for (const s of [...finishedStates, 'expired' as const]) expect(limitsFixedStates).toContain(s);
+  });
+});
+
+describe('finding 1: the lists the new screens and streams use (my work, live alarms) agree with the state machine', () => {
+  it('when work is suspended, then it is the one state work resumes from; re-validation fires from the expired and suspended states', () => {
+    sameStates(suspendedStates, statesFrom('resume'));
+    sameStates(revalidationStates, statesFrom('revalidate'));
+  });
+
+  it('when a permit expired before work, or time ran out, or someone but the lead stopped it, then it waits for the authoriser; a lead\'s own stop does not', () => {
+    for (const state of permitStates)
+      for (const flag of [false, true])
+        for (const kind of [...suspendedByKinds, null]) {
+          const waits = state === 'expired' || (state === 'suspended' && (flag || kind !== 'lead'));
+          expect(awaitsAuthoriser(state, flag, kind), `${state} ${flag} ${kind}`).toBe(waits);
+        }
   });
 });
 

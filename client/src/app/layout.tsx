@@ -4,8 +4,26 @@ import { roleLabels } from '@shared/abilities/roles';
 import { useMe } from '@client/features/auth/api/get-me';
 import { useSignOut, useSwitchTenant } from '@client/features/auth/api/auth-mutations';
 import { AbilityProvider, useAbility } from '@client/lib/ability';
+import { AlarmProvider } from '@client/lib/live';
 import { Loading } from '@client/components/ui/page';
-import { visibleNav } from './navigation';
+import { ConnectionStatus } from '@client/components/connection-status';
+import { useMyWorkCounts } from '@client/features/my-work';
+import { navCount, visibleNav } from './navigation';
+
+/** A count beside a menu entry: read out as the link's description, so the link keeps its name. */
+function NavBadge({ id, count }: { id: string; count: number }) {
+  if (!count) return null;
+  return (
+    <>
+      <span aria-hidden data-testid="nav-count" className="ml-2 inline-flex min-w-6 items-center justify-center rounded-full bg-signal px-1.5 text-sm font-bold text-ink">
+        {count}
+      </span>
+      <span id={id} hidden>
+        {count === 1 ? '1 waiting for you' : `${count} waiting for you`}
+      </span>
+    </>
+  );
+}
 
 function Logo() {
   return (
@@ -26,7 +44,9 @@ export function AppLayout() {
   const { data: me } = useMe();
   return (
     <AbilityProvider rules={me?.rules}>
-      <Shell />
+      <AlarmProvider userId={me?.user.id} tenantId={me?.activeTenantId} timeZone={me?.activeTenant?.timeZone}>
+        <Shell />
+      </AlarmProvider>
     </AbilityProvider>
   );
 }
@@ -39,6 +59,8 @@ function Shell() {
   const signOut = useSignOut();
   const switchTenant = useSwitchTenant();
   const [menuOpen, setMenuOpen] = useState(false);
+  // The same query as the "My work" page: refreshed every 30 s and on window focus.
+  const work = useMyWorkCounts(Boolean(me?.activeTenantId));
 
   if (isPending) return <Loading label="Opening Holdpoint…" />;
   if (!me) return <Navigate to={`/sign-in?next=${encodeURIComponent(location.pathname + location.search)}`} replace />;
@@ -52,24 +74,31 @@ function Shell() {
       <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:top-2 focus:left-2 focus:z-50 focus:bg-surface focus:p-2">
         Skip to content
       </a>
-      <header className="bg-brand text-white">
+      <header className="bg-brand text-white print:hidden">
         <div className="mx-auto flex max-w-7xl flex-wrap items-center gap-3 px-4 py-2">
           <Logo />
-          <button type="button" className="ml-auto min-h-11 rounded-md border border-white/40 px-3 md:hidden" aria-expanded={menuOpen} aria-controls="main-nav" onClick={() => setMenuOpen((o) => !o)}>
+          <button type="button" className="ml-auto min-h-11 rounded-md border border-white/40 px-3 md:hidden" aria-expanded={menuOpen} aria-controls="main-nav" aria-describedby={work.data?.total ? 'menu-count' : undefined} onClick={() => setMenuOpen((o) => !o)}>
             Menu
+            <NavBadge id="menu-count" count={work.data?.total ?? 0} />
           </button>
           <nav id="main-nav" aria-label="Main" className={`${menuOpen ? 'flex' : 'hidden'} w-full flex-col gap-1 md:flex md:w-auto md:flex-row md:flex-wrap md:items-center`}>
-            {nav.map((item) => (
-              <NavLink
-                key={item.to}
-                to={item.to}
-                end={item.to === '/'}
-                onClick={() => setMenuOpen(false)}
-                className={({ isActive }) => `flex min-h-11 items-center rounded-md px-3 font-medium whitespace-nowrap text-white no-underline hover:bg-white/10 ${isActive ? 'bg-white/15 underline decoration-signal decoration-2 underline-offset-4' : ''}`}
-              >
-                {item.label}
-              </NavLink>
-            ))}
+            {nav.map((item) => {
+              const count = navCount(item, work.data);
+              const countId = `nav-count-${item.to.replace(/\W+/g, '-')}`;
+              return (
+                <NavLink
+                  key={item.to}
+                  to={item.to}
+                  end={item.to === '/'}
+                  aria-describedby={count ? countId : undefined}
+                  onClick={() => setMenuOpen(false)}
+                  className={({ isActive }) => `flex min-h-11 items-center rounded-md px-3 font-medium whitespace-nowrap text-white no-underline hover:bg-white/10 ${isActive ? 'bg-white/15 underline decoration-signal decoration-2 underline-offset-4' : ''}`}
+                >
+                  {item.label}
+                  <NavBadge id={countId} count={count} />
+                </NavLink>
+              );
+            })}
           </nav>
           <div className={`${menuOpen ? 'flex' : 'hidden'} w-full flex-wrap items-center gap-2 md:ml-auto md:flex md:w-auto`}>
             {tenants.length > 1 ? (
@@ -99,6 +128,7 @@ function Shell() {
           </div>
         </div>
       </header>
+      {me.activeTenant ? <ConnectionStatus userId={me.user.id} timeZone={me.activeTenant.timeZone} /> : null}
       <main id="main" className="mx-auto w-full max-w-7xl flex-1 px-4 py-6">
         <Outlet />
       </main>

@@ -1,4 +1,5 @@
 import type { ApiErrorBody, ErrorDetail } from '@shared/errors/error-codes';
+import { markOffline, markOnline } from './connection';
 
 export class ApiError extends Error {
   constructor(
@@ -24,15 +25,30 @@ export function setUnauthenticatedHandler(fn: () => void) {
 }
 
 async function fetchCsrf() {
-  const res = await fetch('/api/auth/csrf', { credentials: 'same-origin' });
+  let res: Response;
+  try {
+    res = await fetch('/api/auth/csrf', { credentials: 'same-origin' });
+  } catch {
+    markOffline();
+    throw new ApiError(0, 'network', 'No connection to Holdpoint. Check the signal and try again.');
+  }
   csrfToken = (await res.json()).csrfToken;
   return csrfToken!;
 }
 
 type Method = 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE';
 
-async function request<T>(method: Method, path: string, body?: unknown, retried = false): Promise<T> {
+export interface RequestOptions {
+  /** Sent as `Idempotency-Key`: the server answers a repeat with the first answer instead of acting twice. */
+  idempotencyKey?: string;
+}
+
+/** The request reached no server (no signal, or the server out of reach): worth keeping and sending later. */
+export const isNetworkError = (err: unknown) => err instanceof ApiError && err.status === 0 && err.code === 'network';
+
+async function request<T>(method: Method, path: string, body?: unknown, retried = false, options: RequestOptions = {}): Promise<T> {
   const headers: Record<string, string> = { accept: 'application/json' };
+  if (options.idempotencyKey) headers['idempotency-key'] = options.idempotencyKey;
   const isForm = typeof FormData !== 'undefined' && body instanceof FormData;
   if (body !== undefined && !isForm) headers['content-type'] = 'application/json';
   if (method !== 'GET') headers['x-csrf-token'] = csrfToken ?? (await fetchCsrf());
@@ -40,8 +56,10 @@ async function request<T>(method: Method, path: string, body?: unknown, retried 
   try {
     res = await fetch(path, { method, headers, credentials: 'same-origin', body: body === undefined ? undefined : isForm ? (body as FormData) : JSON.stringify(body) });
   } catch {
+    markOffline();
     throw new ApiError(0, 'network', 'No connection to Holdpoint. Check the signal and try again.');
   }
+  markOnline();
   if (res.status === 204) return undefined as T;
   const text = await res.text();
   const data = text ? safeJson(text) : null;
@@ -49,7 +67,7 @@ async function request<T>(method: Method, path: string, body?: unknown, retried 
   const err = (data as ApiErrorBody | null)?.error;
   if (err?.code === 'csrf_failed' && !retried) {
     await fetchCsrf();
-    return request<T>(method, path, body, true);
+    return request<T>(method, path, body, true, options);
   }
   if (res.status === 401 && onUnauthenticated && !path.startsWith('/api/auth/')) onUnauthenticated();
   const { code, message, details, ...rest } = (err ?? {}) as ApiErrorBody['error'] & Record<string, unknown>;
@@ -66,7 +84,7 @@ function safeJson(text: string) {
 
 export const api = {
   get: <T>(path: string) => request<T>('GET', path),
-  post: <T>(path: string, body?: unknown) => request<T>('POST', path, body ?? {}),
+  post: <T>(path: string, body?: unknown, options?: RequestOptions) => request<T>('POST', path, body ?? {}, false, options),
   patch: <T>(path: string, body?: unknown) => request<T>('PATCH', path, body ?? {}),
   put: <T>(path: string, body?: unknown) => request<T>('PUT', path, body ?? {}),
   delete: <T>(path: string) => request<T>('DELETE', path),

@@ -1,22 +1,17 @@
 import { Link } from 'react-router-dom';
-import { roleLabels } from '@shared/abilities/roles';
-import { useMe } from '@client/features/auth/api/get-me';
 import { useAbility } from '@client/lib/ability';
-import { Card, PageHeader } from '@client/components/ui/page';
-import { SafetyCaution } from '@client/components/ui/notice';
+import MyWorkPage from '@client/features/my-work/pages/my-work-page';
 import { visibleNav } from '../navigation';
 
+/** The start page after sign-in: "My work", with the other places lower down. */
 export default function OverviewPage() {
-  const { data: me } = useMe();
   const ability = useAbility();
-  const roles = me?.memberships.filter((m) => m.tenantId === me.activeTenantId) ?? [];
   return (
-    <>
-      <PageHeader title={me?.activeTenant?.name ?? 'Holdpoint'} subtitle={`Signed in as ${me?.user.name} — ${roles.map((r) => `${roleLabels[r.role]} (${r.organisationName})`).join(', ')}`} />
-      <div className="grid gap-4 md:grid-cols-2">
-        <Card>
+    <MyWorkPage
+      whereToGo={
+        <>
           <h2 className="mb-2 text-lg font-semibold">Where to go</h2>
-          <ul className="flex flex-col gap-1">
+          <ul className="grid gap-1 sm:grid-cols-2">
             {visibleNav(ability)
               .filter((n) => n.to !== '/')
               .map((n) => (
@@ -27,9 +22,8 @@ export default function OverviewPage() {
                 </li>
               ))}
           </ul>
-        </Card>
-        <SafetyCaution />
-      </div>
-    </>
+        </>
+      }
+    />
   );
 }

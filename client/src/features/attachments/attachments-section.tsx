@@ -13,6 +13,8 @@ import { useMe } from '@client/features/auth';
 import { ApiError } from '@client/lib/api-client';
 import { useAttachments } from './api/get-attachments';
 import { useUploadAttachment } from './api/upload-attachment';
+import { isQueued, QUEUED_MESSAGE } from '@client/lib/outbox/send-or-queue';
+import { sizeText } from '@client/lib/outbox/outbox-rules';
 
 /** The fields of a permit this section needs; the permit page's record has them all. */
 export interface AttachmentsPermit {
@@ -162,7 +164,8 @@ function UploadForm({ permitId, onUploaded }: { permitId: string; onUploaded: ()
       { file },
       {
         onSuccess: (added) => {
-          toast('success', `Added “${added.originalName}”.`);
+          if (isQueued(added)) toast('success', `${QUEUED_MESSAGE}${added.sizes ? ` Photo made smaller: ${sizeText(added.sizes.before)} → ${sizeText(added.sizes.after)}.` : ''}`);
+          else toast('success', `Added “${added.originalName}”.`);
           setFile(null);
           if (inputRef.current) inputRef.current.value = '';
           onUploaded();

@@ -2,3 +2,4 @@
 export { GasTestsSection } from './components/gas-tests-section';
 export { ChecksSection } from './components/checks-section';
 export { HandoverSection } from './components/handover-section';
+export { CheckTask, DueNext, GasTestTask, useGasTaskOffers } from './components/task-screens';

@@ -7,6 +7,7 @@ import type { CertificateActionState, IsolationCertificate, PermitCertificateRef
 import { formatInZone } from '@shared/time/zone';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
+import { notifyChange } from '../isolations/isolation-queries';
 import { AppError } from '../../errors/app-error';
 import { authorizeRecord } from '../../lib/authorize';
 import { auditActor, type CallerContext } from '../../lib/caller';
@@ -179,6 +180,8 @@ export async function recordRecheck(deps: AppDeps, caller: CallerContext, id: st
     await audit(deps, caller, row, failure ? 'certificate_recheck_failed' : 'certificate_recheck_passed', {
       recheck: recheck.id, gauge: formatPressure(input.gaugeReading, input.gaugeUnit), locksAndTagsIntact: input.locksAndTagsIntact, valvesStillClosed: input.valvesStillClosed,
     }, failure ?? undefined);
+    // Open screens of the permits working under it raise the alarm (GET /api/stream).
+    await notifyChange(deps.sequelize, { tenantId, kind: 'certificate', certificateId: id, action: failure ? 'certificate_recheck_failed' : 'certificate_recheck_passed' });
     return detail(deps, (await findCertificate(deps.sequelize, tenantId, id, now))!);
   });
 }

@@ -3,6 +3,7 @@ import { formatInZone } from '@shared/time/zone';
 import { liveCertificateState } from '@shared/isolations/certificate-states';
 import type { AppDeps } from '../../deps';
 import { withTenant } from '../../db/sequelize';
+import { notifyChange } from '../isolations/isolation-queries';
 import { appendAudit } from '../audit/audit.service';
 import { loadTenantSettings } from '../tenants/tenant-settings';
 import { queueCertificateAlert } from './certificate-alerts';
@@ -48,6 +49,7 @@ export async function markOverdueRechecks(deps: AppDeps): Promise<number> {
             ],
             publicUrl: deps.config.PUBLIC_URL,
           });
+          await notifyChange(deps.sequelize, { tenantId, kind: 'certificate', certificateId: cert.id, action: 'certificate_recheck_overdue' });
         }
         return due.length;
       });

@@ -17,7 +17,7 @@ const isoUtc = (col: string) => `to_char(${col} AT TIME ZONE 'UTC', 'YYYY-MM-DD"
  */
 export async function boardItemsJson(sequelize: Sequelize, tenantId: string, q: BoardQuery, now: Date): Promise<{ json: string; total: number }> {
   // Unfiltered, the steps in place are all the holders there are; filtered, the points' other holders are looked up.
-  const filtered = Boolean(q.pipelineId || q.permitState);
+  const filtered = Boolean(q.pipelineId || q.permitState || q.unacknowledged === 'true');
   const holdersOfLivePoints = `(SELECT s.point_id, s.permit_id, p.number, p.state AS permit_state
        FROM isolation_steps s JOIN permits p ON p.tenant_id = s.tenant_id AND p.id = s.permit_id
        WHERE s.tenant_id = :tenantId AND s.status IN (:inPlace) AND s.point_id IN (SELECT point_id FROM live WHERE point_id IS NOT NULL))`;
@@ -30,6 +30,7 @@ export async function boardItemsJson(sequelize: Sequelize, tenantId: string, q: 
        WHERE s.tenant_id = :tenantId AND s.status IN (:inPlace)
          AND (CAST(:pipelineId AS uuid) IS NULL OR p.pipeline_id = CAST(:pipelineId AS uuid))
          AND (CAST(:permitState AS text) IS NULL OR p.state = CAST(:permitState AS text))
+         AND (NOT CAST(:unacknowledged AS boolean) OR s.control_room_ack_applied_at IS NULL OR (s.remotely_operable AND s.remote_ack_at IS NULL))
      ), holders AS (
        -- Every permit holding the point, whatever the filters: a filtered board must not hide a group lockout.
        SELECT h.point_id, jsonb_agg(DISTINCT jsonb_build_object('id', h.permit_id, 'number', h.number, 'state', h.permit_state)) AS permits
@@ -65,7 +66,7 @@ export async function boardItemsJson(sequelize: Sequelize, tenantId: string, q: 
                 THEN ${isoUtc('coalesce(last_pass + make_interval(mins => gas_test_interval_minutes), CAST(:now AS timestamptz))')} END
             ) ORDER BY pipeline_name, pos, number)::text, '[]') AS json
      FROM rows`,
-    { replacements: { tenantId, pipelineId: q.pipelineId ?? null, permitState: q.permitState ?? null, now, inPlace: inPlaceStatuses, live: liveStates }, type: QueryTypes.SELECT },
+    { replacements: { tenantId, pipelineId: q.pipelineId ?? null, permitState: q.permitState ?? null, unacknowledged: q.unacknowledged === 'true', now, inPlace: inPlaceStatuses, live: liveStates }, type: QueryTypes.SELECT },
   );
   return row;
 }

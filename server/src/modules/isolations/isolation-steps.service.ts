@@ -185,12 +185,27 @@ export async function verifyStep(deps: AppDeps, caller: CallerContext, permitId:
     if (step.appliedBy === caller.user.id) throw AppError.unprocessable('You applied this isolation, so someone else must verify it (two-person rule).');
     await requireQualification(deps, caller, 'isolation_verifier', 'verify isolations');
     const now = deps.clock.now();
+    // A verification made without signal arrives later, carrying the time it was made on site.
+    const verifiedAt = input.verifiedAt ? new Date(input.verifiedAt) : now;
+    let enteredLate = false;
+    if (input.verifiedAt) {
+      enteredLate = checkObservedTime(await observationBounds(deps, permit), verifiedAt, 'verifiedAt').enteredLate;
+      if (step.appliedAt && verifiedAt.getTime() < startOfMinute(new Date(step.appliedAt))) {
+        const message = 'The verification time is before the isolation was applied. Give the time it was verified.';
+        throw AppError.unprocessable(message, [{ path: 'verifiedAt', message }]);
+      }
+    }
     await deps.sequelize.query(
-      `UPDATE isolation_steps SET status = 'verified', verified_by = :userId, verified_at = :now, verification_method = :method, verification_reading = :reading,
+      `UPDATE isolation_steps SET status = 'verified', verified_by = :userId, verified_at = :verifiedAt, verification_method = :method, verification_reading = :reading,
          verification_unit = :unit, verification_notes = :notes, updated_at = :now WHERE tenant_id = :tenantId AND id = :stepId`,
-      { replacements: { tenantId, stepId, userId: caller.user.id, now, method: input.method, reading: input.reading ?? null, unit: input.unit ?? null, notes: input.notes ?? null } },
+      { replacements: { tenantId, stepId, userId: caller.user.id, now, verifiedAt, method: input.method, reading: input.reading ?? null, unit: input.unit ?? null, notes: input.notes ?? null } },
     );
-    await audit(deps, caller, permit, step, 'isolation_verified', { method: input.method, reading: input.reading ?? null, unit: input.unit ?? null });
+    await audit(deps, caller, permit, step, 'isolation_verified', {
+      method: input.method,
+      reading: input.reading ?? null,
+      unit: input.unit ?? null,
+      ...(enteredLate ? { verifiedAt: verifiedAt.toISOString(), enteredLate } : {}),
+    });
     return findStep(deps.sequelize, tenantId, permitId, stepId);
   });
   return result;
@@ -302,3 +317,5 @@ export async function removeStep(deps: AppDeps, caller: CallerContext, permitId:
     return findStep(deps.sequelize, tenantId, permitId, stepId);
   });
 }
+
+const startOfMinute = (d: Date) => Math.floor(d.getTime() / 60_000) * 60_000;

@@ -24,6 +24,7 @@ import { parse } from '../../middleware/validate';
 import { authorizeType } from '../../lib/authorize';
 import { changeFeed } from '../../lib/change-feed';
 import { clientIp } from '../../lib/client-ip';
+import { drainState } from '../../lib/draining';
 import type { CallerContext } from '../../lib/caller';
 import { getPlan, proposePlan, savePlan } from './isolation-plan.service';
 import { acknowledgeStep, applyStep, removeStep, verifyStep } from './isolation-steps.service';
@@ -32,6 +33,7 @@ import { transferLock } from './lock-transfer.service';
 import { lockTransferInputSchema } from '@shared/schemas/lock-transfer.schema';
 import { endProving, startProving } from './isolation-proving.service';
 import { boardSnapshot, sendBoardSnapshot } from './board-cache';
+import { onReadPool } from '../../lib/read-replica';
 
 export function createIsolationsRouter(deps: AppDeps) {
   const router = Router();
@@ -85,7 +87,8 @@ export function createIsolationsRouter(deps: AppDeps) {
     const { actor, ability } = actorOf(req);
     authorizeType(ability, 'read', 'Board', { tenantId: actor.tenantId }, 'the isolation board');
     const q = parse(boardQuerySchema, req.query, 'query');
-    await sendBoardSnapshot(req, res, await boardSnapshot(deps, actor.tenantId, q));
+    // A read that tolerates a little lag: on the standby when it is caught up (lib/read-replica.ts).
+    await sendBoardSnapshot(req, res, await onReadPool(deps, req, actor.tenantId, (d) => boardSnapshot(d, actor.tenantId, q)));
   });
 
   router.get('/board/stream', async (req, res) => {
@@ -95,14 +98,22 @@ export function createIsolationsRouter(deps: AppDeps) {
     const unsubscribe = feed.subscribe((change) => {
       // Only this tenant's changes; "resync" goes to everyone after the feed reconnects.
       if (change.tenantId !== actor.tenantId && change.tenantId !== '*') return;
+      // Every audit event is announced too (for the permit screens' live stream); the board's own changes
+      // are announced by the services that change what it shows, so these would only refetch it twice.
+      if (change.kind === 'audit') return;
       const { tenantId: _t, ...rest } = change;
       res.write(`event: change\ndata: ${JSON.stringify(rest)}\n\n`);
     });
     const heartbeat = setInterval(() => res.write(`: keep-alive\n\n`), 25_000);
+    // A process shutting down ends the stream with a retry hint: the screen reconnects (to another process) and refetches on "ready".
+    const undrain = drainState(deps.config).onDrain(() => {
+      if (!res.writableEnded) res.end(`retry: 1000\nevent: closing\ndata: {}\n\n`);
+    });
     // The response's close, not the request's: a request without a body can report "close" as soon as it is read.
     res.on('close', () => {
       clearInterval(heartbeat);
       unsubscribe();
+      undrain();
     });
     res.writeHead(200, { 'Content-Type': 'text/event-stream', 'Cache-Control': 'no-store', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
     res.flushHeaders();

@@ -19,6 +19,7 @@ import { createPermit, listPermitsFor, recordHotWorkStopped, transitionPermit, u
 import { permitDetail } from './permit-view';
 import { preparePermitPdf } from './permit-pdf';
 import type { Request } from 'express';
+import { onReadPool } from '../../lib/read-replica';
 
 export function createPermitsRouter(deps: AppDeps) {
   const router = Router();
@@ -28,7 +29,9 @@ export function createPermitsRouter(deps: AppDeps) {
   const detail = (c: CallerContext, id: string) => permitDetail(deps, c, id);
 
   router.get('/permits', async (req, res) => {
-    res.json(await listPermitsFor(deps, caller(req), parse(permitsQuerySchema, req.query, 'query')));
+    const c = caller(req);
+    const q = parse(permitsQuerySchema, req.query, 'query');
+    res.json(await onReadPool(deps, req, c.actor.tenantId, (d) => listPermitsFor(d, c, q)));
   });
 
   router.post('/permits', async (req, res) => {

@@ -281,7 +281,17 @@ export async function applyTransition(
       { replacements: { tenantId, id: permit.id, event, userId: who.caller.user.id, name: who.caller.user.name, now } },
     );
   }
-  const audit = await appendAudit(sequelize, {
+  // The tenant's audit chain head stays locked from the append to the end of the transaction, and every
+  // writer of the tenant queues on it: the mail, the overlap check, the notification and the answer's
+  // read come first, the append last (with the certificate's own events, which follow it in the trail).
+  await queuePermitMail(sequelize, permit, event, verdict.to, {
+    actorName: who.caller?.user.name ?? 'Holdpoint', reason: input.reason ?? who.system, publicUrl: deps.config.PUBLIC_URL, transitionKey: `${permit.id}:${permit.version + 1}`, excludeUserEmail: who.caller?.user.email,
+  });
+  // Overlapping work on the same line is flagged to both permits' authorisers when first found (HSE HSG250).
+  if (event === 'submit' || event === 'approve') await mailNewOverlaps(sequelize, permit, event === 'approve' ? (who.caller?.user.email ?? null) : null, deps.config.PUBLIC_URL);
+  await sequelize.query(`SELECT pg_notify('holdpoint_changes', :payload)`, { replacements: { payload: JSON.stringify({ tenantId, kind: 'permit', id: permit.id, state: verdict.to }) } });
+  const changed = (await findPermit(sequelize, tenantId, permit.id))!;
+  await appendAudit(sequelize, {
     tenantId, entityType: 'permit', entityId: permit.id, permitId: permit.id, action: event, fromState: permit.state, toState: verdict.to,
     actor: who.caller ? auditActor(who.caller, eventAction[event]) : null, reason: input.reason ?? (who.system ? who.system : null), ip: who.caller?.ip ?? null,
     data: who.caller && signedEvents.includes(event)
@@ -299,13 +309,7 @@ export async function applyTransition(
   });
   // The isolations-in-place signature issues the isolation certificate; a permit finished or cancelled no longer relies on one (HSE HSG253).
   await certificateAfterTransition(sequelize, permit, event, verdict.to, who.caller ? { userId: who.caller.user.id, name: who.caller.user.name } : null, now);
-  await queuePermitMail(sequelize, permit, event, verdict.to, {
-    actorName: who.caller?.user.name ?? 'Holdpoint', reason: input.reason ?? who.system, publicUrl: deps.config.PUBLIC_URL, auditSeq: audit.seq, excludeUserEmail: who.caller?.user.email,
-  });
-  // Overlapping work on the same line is flagged to both permits' authorisers when first found (HSE HSG250).
-  if (event === 'submit' || event === 'approve') await mailNewOverlaps(sequelize, permit, event === 'approve' ? (who.caller?.user.email ?? null) : null, deps.config.PUBLIC_URL);
-  await sequelize.query(`SELECT pg_notify('holdpoint_changes', :payload)`, { replacements: { payload: JSON.stringify({ tenantId, kind: 'permit', id: permit.id, state: verdict.to }) } });
-  return (await findPermit(sequelize, tenantId, permit.id))!;
+  return changed;
 }
 
 export async function updateChecklist(deps: AppDeps, caller: CallerContext, id: string, list: 'checklist' | 'walkdown', key: string, confirmed: boolean) {

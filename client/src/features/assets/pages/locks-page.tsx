@@ -26,6 +26,11 @@ const stateTone: Record<InventoryState, string> = {
 // The server's list query, plus which of the two registers this page shows (a path there, a parameter here).
 const locksPageQuerySchema = inventoryQuerySchema.extend({ kind: z.enum(['lock', 'tag']).default('lock') });
 
+const printLinkClass = 'inline-flex min-h-11 items-center justify-center gap-2 rounded-md border border-line bg-surface px-4 font-semibold text-ink no-underline hover:bg-brand-soft';
+
+/** The A4 sheet of QR labels for the locks or tags the list shows now (its filters, every page). */
+const labelSheetHref = (kind: 'lock' | 'tag', state?: string, q?: string) => `/api/labels?${new URLSearchParams({ kind, ...(state ? { state } : {}), ...(q ? { q } : {}) })}`;
+
 export default function LocksPage() {
   const { query, set } = useListQuery(locksPageQuerySchema);
   const { kind, ...listQuery } = query;
@@ -74,9 +79,14 @@ export default function LocksPage() {
         title="Locks and tags"
         subtitle="The numbered padlocks and danger tags of this tenant: where each one is and who holds it. The isolation work puts them on and takes them off."
         actions={
-          <Can I="create" a={subject}>
-            <Button onClick={() => edit('new')}>Add a {kind}</Button>
-          </Can>
+          <div className="flex flex-wrap gap-2">
+            <a href={labelSheetHref(kind, state, q)} download className={printLinkClass}>
+              Print labels for these {kind}s
+            </a>
+            <Can I="create" a={subject}>
+              <Button onClick={() => edit('new')}>Add a {kind}</Button>
+            </Can>
+          </div>
         }
       />
       <div className="flex flex-col gap-4">

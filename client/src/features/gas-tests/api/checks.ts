@@ -1,20 +1,27 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Page } from '@shared/schemas/common.schema';
-import type { CheckData } from '@shared/schemas/timed-checks.schema';
+import { checkKindLabels, type CheckData } from '@shared/schemas/timed-checks.schema';
 import type { IsolationPlan } from '@shared/types/isolations';
 import type { CheckRow, RecordedCheck } from '@shared/types/timed-checks';
 import { isInPlace } from '@shared/isolations/step-rules';
 import { api, qs } from '@client/lib/api-client';
-import { gasKeys } from './keys';
+import { sendOrQueue } from '@client/lib/outbox/send-or-queue';
+import { gasKeys, permitsPrefix } from './keys';
 
 export const getChecksQueryOptions = (permitId: string) =>
   queryOptions({ queryKey: gasKeys.checks(permitId), queryFn: () => api.get<Page<CheckRow>>(`/api/permits/${encodeURIComponent(permitId)}/checks${qs({ pageSize: 20 })}`) });
 export const useChecks = (permitId: string) => useQuery(getChecksQueryOptions(permitId));
 
+/** Offline, the check is kept on the device with the time it was made and sent when there is signal. */
 export function useRecordCheck(permitId: string) {
   const qc = useQueryClient();
+  const path = `/api/permits/${encodeURIComponent(permitId)}/checks`;
   return useMutation({
-    mutationFn: (input: CheckData) => api.post<RecordedCheck>(`/api/permits/${encodeURIComponent(permitId)}/checks`, input),
+    mutationFn: (input: CheckData) =>
+      sendOrQueue(
+        { kind: 'check', title: checkKindLabels[input.kind], permitId, path, body: input, observedAt: input.checkedAt, invalidate: [gasKeys.permit(permitId), permitsPrefix] },
+        (key) => api.post<RecordedCheck>(path, input, { idempotencyKey: key }),
+      ),
     onSuccess: () => qc.invalidateQueries({ queryKey: gasKeys.permit(permitId) }),
   });
 }

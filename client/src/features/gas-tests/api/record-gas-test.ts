@@ -1,15 +1,30 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
-import type { GasTestData } from '@shared/schemas/gas-tests.schema';
+import { gasTestPlaceLabels, type GasTestData } from '@shared/schemas/gas-tests.schema';
 import type { GasTestResult } from '@shared/types/gas-tests';
 import { api } from '@client/lib/api-client';
+import { sendOrQueue } from '@client/lib/outbox/send-or-queue';
 import { gasKeys, permitsPrefix } from './keys';
 
-export const recordGasTest = (permitId: string, input: GasTestData) => api.post<GasTestResult>(`/api/permits/${encodeURIComponent(permitId)}/gas-tests`, input);
+const gasTestsPath = (permitId: string) => `/api/permits/${encodeURIComponent(permitId)}/gas-tests`;
+export const recordGasTest = (permitId: string, input: GasTestData, idempotencyKey?: string) => api.post<GasTestResult>(gasTestsPath(permitId), input, { idempotencyKey });
 
+/** Offline, the test is kept on the device with the time it was taken and sent when there is signal. */
 export function useRecordGasTest(permitId: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (input: GasTestData) => recordGasTest(permitId, input),
+    mutationFn: (input: GasTestData) =>
+      sendOrQueue(
+        {
+          kind: 'gas_test',
+          title: `Gas test, ${gasTestPlaceLabels[input.place].toLowerCase()}`,
+          permitId,
+          path: gasTestsPath(permitId),
+          body: input,
+          observedAt: input.testedAt,
+          invalidate: [gasKeys.permit(permitId), permitsPrefix],
+        },
+        (key) => recordGasTest(permitId, input, key),
+      ),
     onSuccess: () => Promise.all([qc.invalidateQueries({ queryKey: gasKeys.permit(permitId) }), qc.invalidateQueries({ queryKey: permitsPrefix })]),
   });
 }

@@ -6,6 +6,7 @@ import {
   type CheckData, type CheckInput, type CheckKind,
 } from '@shared/schemas/timed-checks.schema';
 import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
+import { isQueued } from '@client/lib/outbox/send-or-queue';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
@@ -14,7 +15,7 @@ import { usePlanSteps, useRecordCheck } from '../api/checks';
 
 const yesNo = { setValueAs: (v: string) => (v === 'yes' ? true : v === 'no' ? false : undefined) };
 
-function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckKind; timeZone: string }) {
+function KindForm({ permitId, kind, timeZone, screen }: { permitId: string; kind: CheckKind; timeZone: string; screen: boolean }) {
   const steps = usePlanSteps(permitId);
   const record = useRecordCheck(permitId);
   const toast = useToast();
@@ -32,7 +33,8 @@ function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckK
   const submit = form.handleSubmit((v) =>
     record.mutate({ ...v, checkedAt: timeTouched ? v.checkedAt : new Date().toISOString(), isolationStepId: v.isolationStepId || undefined, actionTaken: v.actionTaken || undefined, notes: v.notes || undefined } as CheckData, {
       onSuccess: (row) => {
-        toast(row.ok ? 'success' : 'error', row.ok ? `${checkKindLabels[kind]} recorded.` : `${checkKindLabels[kind]} recorded: problem reported to the lead and authoriser.`);
+        if (isQueued(row)) toast('success', 'Saved on this device; it will send when you have signal.');
+        else toast(row.ok ? 'success' : 'error', row.ok ? `${checkKindLabels[kind]} recorded.` : `${checkKindLabels[kind]} recorded: problem reported to the lead and authoriser.`);
         const w = isoToWallTime(new Date(), timeZone);
         setWall(w);
         setTimeTouched(false);
@@ -115,8 +117,8 @@ function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckK
       </div>
       <TextAreaField label={problem ? 'Action taken (required)' : 'Action taken (if any)'} {...form.register('actionTaken')} error={errors.actionTaken?.message} />
       <TextAreaField label="Notes (optional)" {...form.register('notes')} error={errors.notes?.message} />
-      <div>
-        <Button type="submit" busy={record.isPending}>
+      <div className={screen ? 'sticky bottom-0 z-10 border-t border-line bg-surface py-3' : ''}>
+        <Button type="submit" busy={record.isPending} className={screen ? 'min-h-12 w-full' : ''}>
           Record {checkKindLabels[kind].toLowerCase()}
         </Button>
       </div>
@@ -124,9 +126,12 @@ function KindForm({ permitId, kind, timeZone }: { permitId: string; kind: CheckK
   );
 }
 
-/** Choose what was checked, then the form for that kind of check. */
-export function CheckForm({ permitId, kinds, timeZone }: { permitId: string; kinds: CheckKind[]; timeZone: string }) {
-  const [kind, setKind] = useState<CheckKind>(kinds[0]);
+/**
+ * Choose what was checked, then the form for that kind of check. `initialKind`: the check the person
+ * came to record; `screen`: on its own screen, with the submit button kept within thumb reach.
+ */
+export function CheckForm({ permitId, kinds, timeZone, initialKind, screen = false }: { permitId: string; kinds: CheckKind[]; timeZone: string; initialKind?: CheckKind; screen?: boolean }) {
+  const [kind, setKind] = useState<CheckKind>(initialKind && kinds.includes(initialKind) ? initialKind : kinds[0]);
   return (
     <div className="flex flex-col gap-3">
       <fieldset className="flex flex-wrap gap-2">
@@ -138,7 +143,7 @@ export function CheckForm({ permitId, kinds, timeZone }: { permitId: string; kin
           </label>
         ))}
       </fieldset>
-      <KindForm key={kind} permitId={permitId} kind={kind} timeZone={timeZone} />
+      <KindForm key={kind} permitId={permitId} kind={kind} timeZone={timeZone} screen={screen} />
     </div>
   );
 }

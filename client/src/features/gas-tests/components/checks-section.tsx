@@ -6,7 +6,6 @@ import { workUnderWayStates } from '@shared/permit/states';
 import { offeredCheckKinds } from '@shared/gas-tests/check-kinds';
 import { useAbility } from '@client/lib/ability';
 import { Card, EmptyState, Loading } from '@client/components/ui/page';
-import { SafetyCaution } from '@client/components/ui/notice';
 import { EnteredLate } from '@client/components/ui/entered-late';
 import { useChecks, usePlanSteps } from '../api/checks';
 import { useRegime } from '../api/get-regime';
@@ -39,7 +38,6 @@ export function ChecksSection({ permit }: { permit: PermitLike }) {
   return (
     <Card className="flex min-w-0 flex-col gap-4">
       <h2 className="text-xl font-bold text-brand-strong">Vent, plug and fire-watch checks</h2>
-      <SafetyCaution>Vents must carry vapour away from the work with no pressure building behind a plug; plugs crack and shrink as they dry. </SafetyCaution>
       <div className="flex flex-col gap-2">
         <h3 className="text-lg font-semibold">Next due</h3>
         {regime.data ? <DueList due={regime.data.due} kinds={['vent', 'plug', 'fire_watch']} timeZone={timeZone} testId="checks-due-list" /> : <Loading />}

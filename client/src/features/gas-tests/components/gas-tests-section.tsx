@@ -4,7 +4,7 @@ import { formatInZone } from '@shared/time/zone';
 import { editableStates, limitsFixedStates, liveStates } from '@shared/permit/states';
 import { useAbility } from '@client/lib/ability';
 import { Card, Loading } from '@client/components/ui/page';
-import { Notice, SafetyCaution } from '@client/components/ui/notice';
+import { Notice } from '@client/components/ui/notice';
 import { useRegime } from '../api/get-regime';
 import { useGasSeries } from '../api/get-gas-tests';
 import { scopeOf, workOpen, type PermitLike } from '../lib/permit-like';
@@ -51,7 +51,6 @@ export function GasTestsSection({ permit }: { permit: PermitLike }) {
         <h2 className="text-xl font-bold text-brand-strong" id={`gas-${permit.id}`}>
           Gas tests
         </h2>
-        <SafetyCaution>Test the atmosphere inside the pipe and around the work before cleaning, before hot work starts and at every repeat interval. Stop the work at any failing reading. </SafetyCaution>
         {regime.isPending ? (
           <Loading label="Loading the gas-test regime…" />
         ) : regime.isError ? (

@@ -1,4 +1,4 @@
-import { useMemo, useState } from 'react';
+import { useEffect, useMemo, useState } from 'react';
 import { useForm, useWatch } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { assessAtmosphere, CalcInputError, type AtmosphereLimits } from '@shared/calc';
@@ -12,15 +12,18 @@ import {
   type GasTestData, type GasTestInput,
 } from '@shared/schemas/gas-tests.schema';
 import type { GasTestResult } from '@shared/types/gas-tests';
+import { isQueued } from '@client/lib/outbox/send-or-queue';
 import { ApiError } from '@client/lib/api-client';
 import { AtmosphereReadout } from '@client/components/atmosphere/atmosphere-readout';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
+import { useMe } from '@client/features/auth';
 import { useInstruments } from '../api/get-instruments';
 import { useRecordGasTest } from '../api/record-gas-test';
 import type { PermitLike } from '../lib/permit-like';
+import { readLastUsed, writeLastUsed } from '../lib/last-used';
 
 const READINGS = [
   { field: 'o2Pct', label: 'Oxygen, O₂ (% vol)', hint: 'Fresh air is about 20.9.' },
@@ -31,9 +34,22 @@ const READINGS = [
 
 type ReadingField = (typeof READINGS)[number]['field'];
 
+interface Props {
+  permit: PermitLike;
+  limits: AtmosphereLimits;
+  timeZone: string;
+  requireDailyBumpTest: boolean;
+  /** On its own screen on a phone: the submit button stays at the bottom of the screen, within thumb reach. */
+  screen?: boolean;
+}
+
 /** Record one gas test; the verdict is worked out live as the readings are typed, against this permit's limits. */
-export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTest }: { permit: PermitLike; limits: AtmosphereLimits; timeZone: string; requireDailyBumpTest: boolean }) {
+export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTest, screen = false }: Props) {
   const instruments = useInstruments();
+  const userId = useMe().data?.user.id ?? '';
+  // The last instrument and place used on this device start the next test (read once, when the form opens).
+  const [lastUsed] = useState(() => readLastUsed(userId));
+  const [queued, setQueued] = useState(false);
   const record = useRecordGasTest(permit.id);
   const toast = useToast();
   const [wall, setWall] = useState(() => isoToWallTime(new Date(), timeZone));
@@ -44,7 +60,7 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
   const form = useForm<GasTestInput, unknown, GasTestData>({
     resolver: zodResolver(gasTestInputSchema),
     defaultValues: {
-      instrumentId: '', place: 'work_area', placeNote: '', purpose: live ? 'repeat' : 'before_work', testedAt: wallTimeToIso(isoToWallTime(new Date(), timeZone), timeZone),
+      instrumentId: '', place: lastUsed?.place ?? 'work_area', placeNote: lastUsed?.placeNote ?? '', purpose: live ? 'repeat' : 'before_work', testedAt: wallTimeToIso(isoToWallTime(new Date(), timeZone), timeZone),
       readings: { o2Pct: '', lelPct: '', h2sPpm: '', coPpm: '' }, notes: '',
     },
   });
@@ -73,15 +89,32 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
   const now = new Date();
   const options = (instruments.data?.items ?? []).map((i) => ({ ...i, status: instrumentStatus(i, now, timeZone, requireDailyBumpTest) }));
 
+  // The remembered monitor is chosen once the list has come, and only while it is still usable today.
+  const rememberedUsable = options.some((i) => i.id === lastUsed?.instrumentId && i.status.usable);
+  useEffect(() => {
+    if (rememberedUsable && lastUsed && !form.getValues('instrumentId')) form.setValue('instrumentId', lastUsed.instrumentId);
+  }, [rememberedUsable, lastUsed, form]);
+
   const submit = form.handleSubmit((values) => {
+    setQueued(false);
     record.mutate(
       { ...values, testedAt: timeTouched ? values.testedAt : new Date().toISOString(), placeNote: values.place === 'other' ? values.placeNote : undefined, notes: values.notes || undefined },
       {
         onSuccess: (result) => {
+          writeLastUsed(userId, { instrumentId: values.instrumentId, place: values.place, placeNote: values.place === 'other' ? (values.placeNote ?? '') : '' });
+          const w = isoToWallTime(new Date(), timeZone);
+          if (isQueued(result)) {
+            setLast(null);
+            setQueued(true);
+            toast('success', 'Saved on this device; it will send when you have signal.');
+            setWall(w);
+            setTimeTouched(false);
+            form.reset({ ...values, testedAt: wallTimeToIso(w, timeZone), readings: { o2Pct: '', lelPct: '', h2sPpm: '', coPpm: '' }, notes: '' });
+            return;
+          }
           setLast(result);
           if (result.suspended) toast('error', `Gas test failed: ${permit.number} is suspended.`);
           else toast(result.verdict === 'pass' ? 'success' : 'error', result.verdict === 'pass' ? 'Gas test recorded: pass.' : 'Gas test recorded: FAIL.');
-          const w = isoToWallTime(new Date(), timeZone);
           setWall(w);
           setTimeTouched(false);
           form.reset({ ...values, testedAt: wallTimeToIso(w, timeZone), readings: { o2Pct: '', lelPct: '', h2sPpm: '', coPpm: '' }, notes: '' });
@@ -97,7 +130,7 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
 
   return (
     <form noValidate onSubmit={submit} className="flex flex-col gap-3" aria-label="Record a gas test">
-      <h3 className="text-lg font-semibold">Record a gas test</h3>
+      {screen ? null : <h3 className="text-lg font-semibold">Record a gas test</h3>}
       <div className="grid gap-3 sm:grid-cols-2">
         <SelectField label="Instrument" {...form.register('instrumentId')} error={errors.instrumentId?.message}>
           <option value="">Choose the monitor…</option>
@@ -109,7 +142,7 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
           ))}
         </SelectField>
         <TextField
-          label="Tested at (site time)"
+          label={`Tested at (site time, ${timeZone})`}
           type="datetime-local"
           value={wall}
           onChange={(e) => {
@@ -141,11 +174,18 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
           <TextField key={r.field} label={r.label} hint={r.hint} inputMode="decimal" autoComplete="off" {...form.register(`readings.${r.field}`)} error={errors.readings?.[r.field]?.message} />
         ))}
       </fieldset>
-      {verdict ? <AtmosphereReadout result={verdict} /> : <p className="text-sm text-ink-soft">Type the readings to see the verdict against this permit&apos;s limits.</p>}
+      <div aria-live="polite" data-testid="gas-verdict-live">
+        {verdict ? <AtmosphereReadout result={verdict} /> : <p className="text-sm text-ink-soft">Type the readings to see the verdict against this permit&apos;s limits.</p>}
+      </div>
       <TextAreaField label="Notes (optional)" {...form.register('notes')} error={errors.notes?.message} />
       {errors.root?.message ? (
         <Notice tone="danger" role="alert">
           {errors.root.message}
+        </Notice>
+      ) : null}
+      {queued ? (
+        <Notice tone="info" role="status" title="Saved on this device">
+          It will send when you have signal.
         </Notice>
       ) : null}
       {last ? (
@@ -159,8 +199,8 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
           Recording this test suspends the permit at once and tells the lead, the authoriser and the control room.
         </Notice>
       ) : null}
-      <div>
-        <Button type="submit" busy={record.isPending}>
+      <div className={screen ? 'sticky bottom-0 z-10 border-t border-line bg-surface py-3' : ''}>
+        <Button type="submit" busy={record.isPending} className={screen ? 'min-h-12 w-full' : ''}>
           Record gas test
         </Button>
       </div>

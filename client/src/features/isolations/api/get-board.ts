@@ -8,7 +8,7 @@ export const boardKey = ['board'] as const;
 export const getBoardQueryOptions = (filters: BoardQuery) =>
   queryOptions({
     queryKey: [...boardKey, filters],
-    queryFn: () => api.get<Board>(`/api/board${qs({ pipelineId: filters.pipelineId, permitState: filters.permitState })}`),
+    queryFn: () => api.get<Board>(`/api/board${qs({ pipelineId: filters.pipelineId, permitState: filters.permitState, unacknowledged: filters.unacknowledged })}`),
     placeholderData: keepPreviousData,
   });
 

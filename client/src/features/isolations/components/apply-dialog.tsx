@@ -4,14 +4,15 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { BENTONITE_WEIGH_NOTE, checkAsBuiltPlug, type PlugWarning } from '@shared/calc';
 import { conditionLabels } from '@shared/schemas/isolation.schema';
 import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
+import { isQueued } from '@client/lib/outbox/send-or-queue';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
-import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
+import { TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
 import { useToast } from '@client/components/ui/toast';
 import { ModalDialog } from '@client/components/ui/dialog';
 import type { IsolationStep } from '@shared/types/isolations';
-import { useInStore } from '../api/get-inventory';
+import { LockTagFields } from './lock-tag-fields';
 import { useStepAction } from '../api/step-mutations';
 import { takesLock } from '@shared/isolations/step-rules';
 import { earlierNotApplied } from '@shared/isolations/lockout-rules';
@@ -31,6 +32,14 @@ interface Props {
   onClose: () => void;
 }
 
+interface FormProps extends Omit<Props, 'onClose'> {
+  /** Recorded (or kept on the device to send later). */
+  onDone: () => void;
+  onCancel: () => void;
+  /** On its own screen on a phone: the buttons stay at the bottom of the screen, within thumb reach. */
+  screen?: boolean;
+}
+
 function liveWarnings(diameterIn: number | null, v: { bentoniteLb?: number; waterLb?: number; lengthIn?: number }): PlugWarning[] {
   if (!diameterIn || !v.bentoniteLb || !v.waterLb || !v.lengthIn) return [];
   try {
@@ -40,12 +49,19 @@ function liveWarnings(diameterIn: number | null, v: { bentoniteLb?: number; wate
   }
 }
 
+/** Applying one step: the dialog on the plan and the technician's task screen both use it. */
 export function ApplyDialog({ permitId, step, steps, timeZone, onClose }: Props) {
+  return (
+    <ModalDialog title={`Apply ${step.label}`} onClose={onClose} description={<p>Required condition: {conditionLabels[step.condition]}.</p>}>
+      <ApplyStepForm permitId={permitId} step={step} steps={steps} timeZone={timeZone} onDone={onClose} onCancel={onClose} />
+    </ModalDialog>
+  );
+}
+
+export function ApplyStepForm({ permitId, step, steps, timeZone, onDone, onCancel, screen = false }: FormProps) {
   const lockNeeded = takesLock(step.kind);
   const isPlug = step.kind === 'plug';
   const showLockFields = !isPlug;
-  const locks = useInStore('lock');
-  const tags = useInStore('tag');
   const apply = useStepAction('apply');
   const toast = useToast();
   const [confirmed, setConfirmed] = useState(false);
@@ -74,8 +90,9 @@ export function ApplyDialog({ permitId, step, steps, timeZone, onClose }: Props)
       { permitId, stepId: step.id, body: toApplyInput(step.kind, v, appliedAt) },
       {
         onSuccess: (saved) => {
-          toast('success', `${saved.label} recorded as applied${saved.lockNumber ? ` with lock ${saved.lockNumber}` : ''}.`);
-          onClose();
+          if (isQueued(saved)) toast('success', 'Saved on this device; it will send when you have signal.');
+          else toast('success', `${saved.label} recorded as applied${saved.lockNumber ? ` with lock ${saved.lockNumber}` : ''}.`);
+          onDone();
         },
         onError: (err) => {
           // A lock or tag already on another isolation: say so beside the field chosen.
@@ -92,41 +109,13 @@ export function ApplyDialog({ permitId, step, steps, timeZone, onClose }: Props)
   });
 
   return (
-    <ModalDialog title={`Apply ${step.label}`} onClose={onClose} description={<p>Required condition: {conditionLabels[step.condition]}.</p>}>
-      <form noValidate onSubmit={submit} className="flex flex-col gap-3" data-testid="apply-form">
+    <form noValidate onSubmit={submit} className="flex flex-col gap-3" data-testid="apply-form">
         {problem ? (
           <Notice tone="danger" role="alert" title="Not recorded">
             {problem}
           </Notice>
         ) : null}
-        {showLockFields ? (
-          <>
-            <SelectField
-              label={lockNeeded ? 'Lock' : 'Lock (if one is used)'}
-              data-autofocus
-              {...register('lockId')}
-              error={formState.errors.lockId?.message}
-              hint={locks.data && locks.data.total > locks.data.items.length ? `Showing the first ${locks.data.items.length} of ${locks.data.total} locks in the store.` : undefined}
-            >
-              <option value="">{locks.isPending ? 'Loading locks…' : lockNeeded ? 'Choose a lock…' : 'No lock'}</option>
-              {locks.data?.items.map((l) => (
-                <option key={l.id} value={l.id}>
-                  {l.number}
-                  {l.holderName ? ` (held by ${l.holderName})` : ''}
-                </option>
-              ))}
-            </SelectField>
-            <SelectField label={lockNeeded ? 'Danger tag' : 'Danger tag (if one is hung)'} {...register('tagId')} error={formState.errors.tagId?.message}>
-              <option value="">{tags.isPending ? 'Loading tags…' : lockNeeded ? 'Choose a tag…' : 'No tag'}</option>
-              {tags.data?.items.map((t) => (
-                <option key={t.id} value={t.id}>
-                  {t.number}
-                </option>
-              ))}
-            </SelectField>
-            {locks.data && !locks.data.items.length ? <Notice tone="caution">No locks are in the store. Return or add locks in the register first.</Notice> : null}
-          </>
-        ) : null}
+        {showLockFields ? <LockTagFields register={register} errors={formState.errors} lockNeeded={lockNeeded} /> : null}
         <TextField label={`Time applied (${timeZone})`} type="datetime-local" {...register('appliedAt')} error={formState.errors.appliedAt?.message} data-autofocus={showLockFields ? undefined : true} />
         {isPlug ? (
           <fieldset className="flex flex-col gap-3 rounded-md border border-line p-3">
@@ -179,8 +168,8 @@ export function ApplyDialog({ permitId, step, steps, timeZone, onClose }: Props)
         <ConfirmBox checked={confirmed} onChange={setConfirmed}>
           I confirm {step.label} is in the required condition ({conditionLabels[step.condition].toLowerCase()}) and the record above is what I did.
         </ConfirmBox>
-        <div className="flex flex-wrap justify-end gap-2">
-          <Button type="button" variant="secondary" onClick={onClose}>
+        <div className={screen ? 'sticky bottom-0 z-10 flex gap-2 border-t border-line bg-surface py-3 [&>button]:min-h-12 [&>button]:flex-1' : 'flex flex-wrap justify-end gap-2'}>
+          <Button type="button" variant="secondary" onClick={onCancel}>
             Cancel
           </Button>
           <Button type="submit" busy={apply.isPending} disabled={!confirmed}>
@@ -188,6 +177,5 @@ export function ApplyDialog({ permitId, step, steps, timeZone, onClose }: Props)
           </Button>
         </div>
       </form>
-    </ModalDialog>
   );
 }

@@ -4,7 +4,7 @@ import type { LocationUnit } from '@shared/schemas/assets.schema';
 import type { BoardItem } from '@shared/types/board';
 import { boardEntries, groupByPipeline, type BoardEntry } from '../lib/board-entries';
 import { BoardGroupHeading } from './board-group-heading';
-import { BoardRow } from './board-row';
+import { BoardRow, type BoardAcknowledgement } from './board-row';
 
 interface Props {
   items: BoardItem[];
@@ -12,7 +12,7 @@ interface Props {
   unit: LocationUnit;
   timeZone: string;
   now: Date;
-  onAcknowledge: (item: BoardItem) => void;
+  onAcknowledge: (item: BoardItem, what: BoardAcknowledgement) => void;
 }
 
 type Layout = 'wide' | 'medium' | 'narrow';

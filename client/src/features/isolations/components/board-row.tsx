@@ -19,8 +19,14 @@ interface Props extends VirtualSlot {
   unit: LocationUnit;
   timeZone: string;
   now: Date;
-  onAcknowledge: (item: BoardItem) => void;
+  onAcknowledge: (item: BoardItem, what: BoardAcknowledgement) => void;
 }
+
+/** What the control room acknowledges from the board: an isolation as applied, a remote valve's remote operation as inhibited. */
+export type BoardAcknowledgement = 'applied' | 'remote_inhibited';
+
+/** Not yet acknowledged in one way or the other: what "Not acknowledged only" keeps. */
+export const awaitsAcknowledgement = (item: BoardItem) => !item.controlRoomAckAppliedAt || (item.remotelyOperable && !item.remoteAckAt);
 
 /** The board's columns, shown as a header on wide screens; each cell also carries its own label for narrow ones. */
 export const boardColumns = ['Point', 'Condition', 'Lock / tag', 'Permits holding it', 'Applied', 'Gas test', 'Control room'] as const;
@@ -39,7 +45,8 @@ const ago = (now: Date, iso: string) => formatSpan(now.getTime() - new Date(iso)
 
 /** One isolation in place: the point, its lock, the permits relying on it, how long it has been on, what is due. */
 export const BoardRow = memo(function BoardRow({ item, last, tenantId, unit, timeZone, now, onAcknowledge, ...slot }: Props) {
-  const unacknowledged = !item.controlRoomAckAppliedAt;
+  const unacknowledged = awaitsAcknowledgement(item);
+  const appliedUnacknowledged = !item.controlRoomAckAppliedAt;
   const gas = item.nextGasTestDue ? describeGasDue(now, item.nextGasTestDue) : null;
   return (
     <li
@@ -47,7 +54,8 @@ export const BoardRow = memo(function BoardRow({ item, last, tenantId, unit, tim
       data-testid="board-row"
       data-label={item.label}
       data-permit={item.permit.number}
-      data-unacknowledged={unacknowledged ? 'true' : undefined}
+      data-unacknowledged={appliedUnacknowledged ? 'true' : undefined}
+      data-awaits-control-room={unacknowledged ? 'true' : undefined}
       className={`${slotClass} grid grid-cols-1 gap-x-4 gap-y-2 border-x border-t border-line px-3 py-3 sm:grid-cols-2 ${boardGrid} ${last ? 'rounded-b-card border-b' : ''} ${
         unacknowledged ? 'border-l-8 border-l-caution bg-caution-soft' : 'bg-surface'
       }`}
@@ -61,7 +69,14 @@ export const BoardRow = memo(function BoardRow({ item, last, tenantId, unit, tim
           item.remoteAckAt ? (
             <span className="block text-ink-soft">Remote operation inhibited</span>
           ) : (
-            <span className="block font-semibold text-danger">Remote operation not yet inhibited</span>
+            <span className="flex flex-col items-start gap-1">
+              <span className="block font-semibold text-danger">Remote operation not yet inhibited</span>
+              <Can I="acknowledge" this={subject('IsolationStep', { tenantId })}>
+                <Button variant="secondary" aria-label={`Acknowledge remote inhibition of ${item.label} on ${item.permit.number}`} onClick={() => onAcknowledge(item, 'remote_inhibited')}>
+                  Acknowledge remote inhibition
+                </Button>
+              </Can>
+            </span>
           )
         ) : null}
       </Cell>
@@ -107,11 +122,11 @@ export const BoardRow = memo(function BoardRow({ item, last, tenantId, unit, tim
         )}
       </Cell>
       <Cell label="Control room">
-        {unacknowledged ? (
+        {appliedUnacknowledged ? (
           <div className="flex flex-col items-start gap-1">
             <span className="font-semibold">Newly applied, not acknowledged</span>
             <Can I="acknowledge" this={subject('IsolationStep', { tenantId })}>
-              <Button variant="secondary" aria-label={`Acknowledge ${item.label} on ${item.permit.number}`} onClick={() => onAcknowledge(item)}>
+              <Button variant="secondary" aria-label={`Acknowledge ${item.label} on ${item.permit.number}`} onClick={() => onAcknowledge(item, 'applied')}>
                 Acknowledge
               </Button>
             </Can>

@@ -5,7 +5,7 @@ import { isInPlace } from '@shared/isolations/step-rules';
 import { noDeadEnds } from '@shared/isolations/readiness';
 import { useAbility } from '@client/lib/ability';
 import { Button } from '@client/components/ui/button';
-import { Notice, SafetyCaution } from '@client/components/ui/notice';
+import { Notice } from '@client/components/ui/notice';
 import { Card, Loading } from '@client/components/ui/page';
 import { SchematicStrip } from '@client/components/schematic/schematic-strip';
 import { useMe } from '@client/features/auth';
@@ -18,6 +18,7 @@ import { ApplyDialog } from './apply-dialog';
 import { PlanEditor } from './plan-editor';
 import { PlanNeighbours } from './plan-neighbours';
 import { IsolationReadinessPanel } from './isolation-readiness-panel';
+import { PrintLabelsLink } from './print-labels-link';
 import { RemovalExceptionDialog } from './removal-exception-dialog';
 import { RemoveDialog } from './remove-dialog';
 import { StepItem, type StepDialog } from './step-item';
@@ -80,10 +81,6 @@ export function IsolationPlanSection({ permit }: { permit: IsolationPlanPermit }
             </p>
           ) : null}
         </div>
-        <SafetyCaution>
-          Apply and verify each isolation in the plan&apos;s order and take them off in reverse. Each lock belongs to the person who put it on; check an isolation on
-          site before relying on it.{' '}
-        </SafetyCaution>
 
         {pipeline.data ? (
           <SchematicStrip
@@ -126,6 +123,7 @@ export function IsolationPlanSection({ permit }: { permit: IsolationPlanPermit }
           <p className="rounded-card border border-dashed border-line bg-paper px-3 py-4 text-sm text-ink-soft">No isolation plan yet. The planner adds it while the permit is a draft.</p>
         )}
         {!editing && plan.data ? <IsolationReadinessPanel permit={permit} steps={steps} readiness={plan.data.readiness} timeZone={timeZone} /> : null}
+        {!editing ? <PrintLabelsLink permitId={permit.id} steps={steps} /> : null}
       </div>
 
       {dialog?.kind === 'apply' ? <ApplyDialog permitId={permit.id} step={dialog.step} steps={steps} timeZone={timeZone} onClose={close} /> : null}

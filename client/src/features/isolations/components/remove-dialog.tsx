@@ -3,6 +3,7 @@ import { signatureMessages, signedNameMatches } from '@shared/permit/signed-name
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { removeStepInputSchema, type RemoveStepInput } from '@shared/schemas/isolation.schema';
+import { isQueued } from '@client/lib/outbox/send-or-queue';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
 import { TextAreaField, TextField } from '@client/components/ui/field';
@@ -39,7 +40,26 @@ interface Props {
   onClose: () => void;
 }
 
+export const removeTitle = (step: IsolationStep, signer?: string) => (signer ? `Remove ${step.label} under the exception procedure` : `Remove ${step.label}`);
+export const removeIntro = 'Taking an isolation off is recorded and cannot be undone. Each device comes off in reverse order of application.';
+
 export function RemoveDialog({ permitId, step, steps, signer, onClose }: Props) {
+  return (
+    <ModalDialog title={removeTitle(step, signer)} onClose={onClose} description={<p>{removeIntro}</p>}>
+      <RemoveStepForm permitId={permitId} step={step} steps={steps} signer={signer} onDone={onClose} onCancel={onClose} />
+    </ModalDialog>
+  );
+}
+
+interface FormProps extends Omit<Props, 'onClose'> {
+  onDone: () => void;
+  onCancel: () => void;
+  /** On its own screen on a phone: the buttons stay at the bottom of the screen, within thumb reach. */
+  screen?: boolean;
+}
+
+/** Removing one step: the dialog on the plan and the task screen both use it. */
+export function RemoveStepForm({ permitId, step, steps, signer, onDone, onCancel, screen = false }: FormProps) {
   const remove = useStepAction('remove');
   const toast = useToast();
   const isPlug = step.kind === 'plug';
@@ -57,8 +77,9 @@ export function RemoveDialog({ permitId, step, steps, signer, onClose }: Props) 
       { permitId, stepId: step.id, body: v },
       {
         onSuccess: (saved) => {
-          toast('success', `${saved.label} removed${saved.lockNumber ? `; lock ${saved.lockNumber} is back in the store` : ''}.`);
-          onClose();
+          if (isQueued(saved)) toast('success', 'Saved on this device; it will send when you have signal.');
+          else toast('success', `${saved.label} removed${saved.lockNumber ? `; lock ${saved.lockNumber} is back in the store` : ''}.`);
+          onDone();
         },
         onError: (err) => {
           // Out of order: the server names what comes off first; ask for the reason beside its message.
@@ -74,11 +95,6 @@ export function RemoveDialog({ permitId, step, steps, signer, onClose }: Props) 
   });
 
   return (
-    <ModalDialog
-      title={signer ? `Remove ${step.label} under the exception procedure` : `Remove ${step.label}`}
-      onClose={onClose}
-      description={<p>Taking an isolation off is recorded and cannot be undone. Each device comes off in reverse order of application.</p>}
-    >
       <form noValidate onSubmit={submit} className="flex flex-col gap-3" data-testid="remove-form">
         {problem ? (
           <Notice tone="danger" role="alert" title="Not removed">
@@ -127,8 +143,8 @@ export function RemoveDialog({ permitId, step, steps, signer, onClose }: Props) 
         <ConfirmBox checked={confirmed} onChange={setConfirmed}>
           I have checked that people are clear and that those affected know {step.label} is coming off.
         </ConfirmBox>
-        <div className="flex flex-wrap justify-end gap-2">
-          <Button type="button" variant="secondary" onClick={onClose}>
+        <div className={screen ? 'sticky bottom-0 z-10 flex gap-2 border-t border-line bg-surface py-3 [&>button]:min-h-12 [&>button]:flex-1' : 'flex flex-wrap justify-end gap-2'}>
+          <Button type="button" variant="secondary" onClick={onCancel}>
             Cancel
           </Button>
           <Button type="submit" variant="danger" busy={remove.isPending} disabled={!confirmed}>
@@ -136,6 +152,5 @@ export function RemoveDialog({ permitId, step, steps, signer, onClose }: Props) 
           </Button>
         </div>
       </form>
-    </ModalDialog>
   );
 }

@@ -3,6 +3,7 @@ import { useForm, useWatch } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { conditionLabels, pressureUnits, verificationLabels, verificationMethods, verifyStepInputSchema, type VerifyStepInput } from '@shared/schemas/isolation.schema';
 import { formatInZone } from '@shared/time/zone';
+import { isQueued } from '@client/lib/outbox/send-or-queue';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice } from '@client/components/ui/notice';
@@ -17,7 +18,26 @@ import { ConfirmBox } from './confirm-box';
 const fields = ['method', 'reading', 'unit', 'notes'] as const;
 const pressureOnly = pressureUnits.filter((u) => u !== 'in' && u !== 'mm');
 
+/** What the verifier is asked to check, read out with the dialog's title or shown at the top of the task screen. */
+export function VerifyIntro({ step, timeZone }: { step: IsolationStep; timeZone: string }) {
+  return (
+    <p>
+      {conditionLabels[step.condition]}. Applied by {step.appliedByName ?? 'someone'} {formatInZone(step.appliedAt, timeZone)}
+      {step.lockNumber ? ` with lock ${step.lockNumber}` : ''}. Someone other than the person who applied it must verify it.
+    </p>
+  );
+}
+
 export function VerifyDialog({ permitId, step, timeZone, onClose }: { permitId: string; step: IsolationStep; timeZone: string; onClose: () => void }) {
+  return (
+    <ModalDialog title={`Verify ${step.label}`} onClose={onClose} description={<VerifyIntro step={step} timeZone={timeZone} />}>
+      <VerifyStepForm permitId={permitId} step={step} onDone={onClose} onCancel={onClose} />
+    </ModalDialog>
+  );
+}
+
+/** Verifying one step: the dialog on the plan and the task screen both use it. `screen`: the buttons stay within thumb reach. */
+export function VerifyStepForm({ permitId, step, onDone, onCancel, screen = false }: { permitId: string; step: IsolationStep; onDone: () => void; onCancel: () => void; screen?: boolean }) {
   const verify = useStepAction('verify');
   const toast = useToast();
   const [confirmed, setConfirmed] = useState(false);
@@ -38,8 +58,8 @@ export function VerifyDialog({ permitId, step, timeZone, onClose }: { permitId: 
       { permitId, stepId: step.id, body },
       {
         onSuccess: (saved) => {
-          toast('success', `${saved.label} verified.`);
-          onClose();
+          toast('success', isQueued(saved) ? 'Saved on this device; it will send when you have signal.' : `${saved.label} verified.`);
+          onDone();
         },
         onError: (err) => setProblem(placeServerErrors(err, setError, (p) => fields.find((f) => f === p) ?? null)),
       },
@@ -47,16 +67,6 @@ export function VerifyDialog({ permitId, step, timeZone, onClose }: { permitId: 
   });
 
   return (
-    <ModalDialog
-      title={`Verify ${step.label}`}
-      onClose={onClose}
-      description={
-        <p>
-          {conditionLabels[step.condition]}. Applied by {step.appliedByName ?? 'someone'} {formatInZone(step.appliedAt, timeZone)}
-          {step.lockNumber ? ` with lock ${step.lockNumber}` : ''}. Someone other than the person who applied it must verify it.
-        </p>
-      }
-    >
       <form noValidate onSubmit={submit} className="flex flex-col gap-3" data-testid="verify-form">
         {problem ? (
           <Notice tone="danger" role="alert" title="Not verified">
@@ -94,8 +104,8 @@ export function VerifyDialog({ permitId, step, timeZone, onClose }: { permitId: 
         <ConfirmBox checked={confirmed} onChange={setConfirmed}>
           I checked {step.label} myself and it is in the required condition.
         </ConfirmBox>
-        <div className="flex flex-wrap justify-end gap-2">
-          <Button type="button" variant="secondary" onClick={onClose}>
+        <div className={screen ? 'sticky bottom-0 z-10 flex gap-2 border-t border-line bg-surface py-3 [&>button]:min-h-12 [&>button]:flex-1' : 'flex flex-wrap justify-end gap-2'}>
+          <Button type="button" variant="secondary" onClick={onCancel}>
             Cancel
           </Button>
           <Button type="submit" busy={verify.isPending} disabled={!confirmed}>
@@ -103,6 +113,5 @@ export function VerifyDialog({ permitId, step, timeZone, onClose }: { permitId: 
           </Button>
         </div>
       </form>
-    </ModalDialog>
   );
 }

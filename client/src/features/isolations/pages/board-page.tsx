@@ -1,4 +1,4 @@
-import { useMemo, useState } from 'react';
+import { useCallback, useMemo, useState } from 'react';
 import { boardQuerySchema, type BoardQuery } from '@shared/schemas/isolation.schema';
 import type { BoardItem } from '@shared/types/board';
 import { formatInZone } from '@shared/time/zone';
@@ -11,6 +11,7 @@ import { useNow } from '@client/features/permits';
 import { LongTermRechecks } from '@client/features/certificates';
 import { useBoard } from '../api/get-board';
 import { AcknowledgeDialog } from '../components/acknowledge-dialog';
+import { awaitsAcknowledgement, type BoardAcknowledgement } from '../components/board-row';
 import { BoardFilters } from '../components/board-filters';
 import { LiveIndicator } from '../components/live-indicator';
 import { BoardList } from '../components/board-list';
@@ -22,15 +23,16 @@ export default function BoardPage() {
   const status = useBoardStream();
   const now = useNow(30_000);
   const { data: me } = useMe();
-  const [acknowledging, setAcknowledging] = useState<BoardItem | null>(null);
+  const [acknowledging, setAcknowledging] = useState<{ item: BoardItem; what: BoardAcknowledgement } | null>(null);
   const timeZone = me?.activeTenant?.timeZone ?? 'UTC';
   const unit = me?.activeTenant?.locationUnit ?? 'mi';
   const tenantId = me?.activeTenantId ?? '';
 
-  const setFilters = (next: BoardQuery) => set({ pipelineId: next.pipelineId, permitState: next.permitState });
+  const setFilters = (next: BoardQuery) => set({ pipelineId: next.pipelineId, permitState: next.permitState, unacknowledged: next.unacknowledged });
 
   const items = useMemo(() => board.data?.items ?? [], [board.data]);
-  const unacknowledged = useMemo(() => items.filter((i) => !i.controlRoomAckAppliedAt).length, [items]);
+  const unacknowledged = useMemo(() => items.filter(awaitsAcknowledgement).length, [items]);
+  const onAcknowledge = useCallback((item: BoardItem, what: BoardAcknowledgement) => setAcknowledging({ item, what }), []);
 
   return (
     <>
@@ -59,16 +61,20 @@ export default function BoardPage() {
             </Button>
           </Notice>
         ) : !items.length ? (
-          <EmptyState title="No isolations in place.">{filters.pipelineId || filters.permitState ? 'None match these filters.' : 'Isolations appear here as soon as they are applied.'}</EmptyState>
+          <EmptyState title="No isolations in place.">{filters.unacknowledged === 'true' && !filters.pipelineId && !filters.permitState
+              ? 'Every isolation in place has been acknowledged.'
+              : filters.pipelineId || filters.permitState || filters.unacknowledged
+                ? 'None match these filters.'
+                : 'Isolations appear here as soon as they are applied.'}</EmptyState>
         ) : (
-          <BoardList items={items} tenantId={tenantId} unit={unit} timeZone={timeZone} now={now} onAcknowledge={setAcknowledging} />
+          <BoardList items={items} tenantId={tenantId} unit={unit} timeZone={timeZone} now={now} onAcknowledge={onAcknowledge} />
         )}
       </div>
       {acknowledging ? (
         <AcknowledgeDialog
-          permitId={acknowledging.permit.id}
-          step={{ id: acknowledging.stepId, label: acknowledging.label, condition: acknowledging.condition }}
-          what="applied"
+          permitId={acknowledging.item.permit.id}
+          step={{ id: acknowledging.item.stepId, label: acknowledging.item.label, condition: acknowledging.item.condition }}
+          what={acknowledging.what}
           onClose={() => setAcknowledging(null)}
         />
       ) : null}

@@ -4,6 +4,7 @@ import { fireWatchEnd } from '@shared/calc';
 import { formatInZone } from '@shared/time/zone';
 import { workUnderWayStates } from '@shared/permit/states';
 import { useAbility } from '@client/lib/ability';
+import { useConnection } from '@client/lib/connection';
 import { Button } from '@client/components/ui/button';
 import { ModalDialog } from '@client/components/ui/dialog';
 import { Notice } from '@client/components/ui/notice';
@@ -20,6 +21,7 @@ export function HotWorkPanel({ permit, timeZone }: { permit: PermitDetail; timeZ
   const toast = useToast();
   const now = useNow();
   const [confirming, setConfirming] = useState(false);
+  const { online } = useConnection();
   if (!permit.kinds.includes('hot_work')) return null;
 
   if (permit.hotWorkEndedAt) {
@@ -43,9 +45,14 @@ export function HotWorkPanel({ permit, timeZone }: { permit: PermitDetail; timeZ
   }
   return (
     <>
-      <Button type="button" variant="secondary" className="w-full" onClick={() => setConfirming(true)}>
+      <Button type="button" variant="secondary" className="w-full" disabled={!online} aria-describedby={online ? undefined : 'hot-work-offline'} onClick={() => setConfirming(true)}>
         Hot work stopped
       </Button>
+      {online ? null : (
+        <p id="hot-work-offline" className="text-sm font-medium">
+          Needs a connection: the fire watch runs from the time Holdpoint records.
+        </p>
+      )}
       {confirming ? (
         <ModalDialog
           title={`Hot work stopped — ${permit.number}`}

@@ -7,6 +7,7 @@ import { crewSignOnInputSchema, type CrewSignOnInput } from '@shared/schemas/cre
 import type { PermitDetail } from '@shared/types/permits';
 import { formatInZone } from '@shared/time/zone';
 import { ApiError } from '@client/lib/api-client';
+import { isQueued } from '@client/lib/outbox/send-or-queue';
 import { useAbility } from '@client/lib/ability';
 import { Button } from '@client/components/ui/button';
 import { TextField } from '@client/components/ui/field';
@@ -97,7 +98,8 @@ export function LockboxSection({ permit, userId, userName, timeZone }: { permit:
             busy={signOff.isPending}
             onClick={() =>
               signOff.mutate(undefined, {
-                onSuccess: () => toast('success', `Signed off: take personal lock ${mine.personalLockNumber} off the lockbox.`),
+                onSuccess: (result) =>
+                  toast('success', isQueued(result) ? 'Saved on this device; it will send when you have signal.' : `Signed off: take personal lock ${mine.personalLockNumber} off the lockbox.`),
                 onError: (e) => toast('error', e.message),
               })
             }
@@ -111,8 +113,8 @@ export function LockboxSection({ permit, userId, userName, timeZone }: { permit:
           className="flex flex-col gap-3 sm:flex-row sm:items-end"
           onSubmit={form.handleSubmit((v) =>
             signOn.mutate(v, {
-              onSuccess: () => {
-                toast('success', `Signed on with personal lock ${v.personalLockNumber}.`);
+              onSuccess: (result) => {
+                toast('success', isQueued(result) ? 'Saved on this device; it will send when you have signal.' : `Signed on with personal lock ${v.personalLockNumber}.`);
                 form.reset();
               },
               onError: (e) =>

@@ -2,6 +2,7 @@ import { useId, useState } from 'react';
 import type { PermitEvent } from '@shared/permit/state-machine';
 import { permitStateLabels } from '@shared/permit/states';
 import { Button } from '@client/components/ui/button';
+import { useConnection } from '@client/lib/connection';
 import { useToast } from '@client/components/ui/toast';
 import type { PermitAction, PermitDetail } from '@shared/types/permits';
 import { TransitionDialog, type TransitionOutcome } from './transition-dialog';
@@ -13,15 +14,20 @@ interface Props {
   onConflict: () => void;
 }
 
+// Each of these lets people work (or says the line is safe again): only the server, there and then, may decide it.
+const grantsPermission: readonly PermitEvent[] = ['approve', 'accept', 'confirm_isolated', 'start_work', 'resume', 'revalidate', 'hand_back', 'return_to_service', 'acknowledge_return', 'close'];
+export const offlineReason = (event: PermitEvent) => (grantsPermission.includes(event) ? 'Needs a connection: this grants permission to work.' : 'Needs a connection to Holdpoint.');
+
 function ActionItem({ action, refusal, onOpen }: { action: PermitAction; refusal?: string[]; onOpen: () => void }) {
   const reasonsId = useId();
-  const reasons = action.allowed ? refusal : action.reasons;
+  const { online } = useConnection();
+  const reasons = !online ? [offlineReason(action.event)] : action.allowed ? refusal : action.reasons;
   return (
     <li className="flex flex-col gap-1" data-testid={`action-${action.event}`}>
       <Button
         type="button"
         variant={action.event === 'cancel' || action.event === 'suspend' ? 'danger' : action.event === 'reject' ? 'secondary' : 'primary'}
-        disabled={!action.allowed}
+        disabled={!action.allowed || !online}
         aria-describedby={reasons?.length ? reasonsId : undefined}
         onClick={onOpen}
         className="w-full justify-center"
@@ -30,7 +36,7 @@ function ActionItem({ action, refusal, onOpen }: { action: PermitAction; refusal
       </Button>
       {reasons?.length ? (
         <div id={reasonsId} role={refusal ? 'alert' : undefined} className={`rounded-md border-l-4 px-3 py-2 text-sm ${refusal ? 'border-danger bg-danger-soft' : 'border-caution bg-caution-soft'}`}>
-          <p className="font-semibold">{refusal ? 'Holdpoint refused this step:' : 'Not possible yet:'}</p>
+          <p className="font-semibold">{!online ? 'Not available offline:' : refusal ? 'Holdpoint refused this step:' : 'Not possible yet:'}</p>
           <ul className="list-disc pl-5">
             {reasons.map((r) => (
               <li key={r} className="break-words">
