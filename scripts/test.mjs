@@ -95,6 +95,13 @@ stage('e2e', () => {
   run('npx', ['playwright', 'test'], { PLAYWRIGHT_JSON_OUTPUT_NAME: file });
   return playwrightCounts(file);
 });
+// The several-process shape on loopback (HAProxy, PgBouncer, a hot standby, three server processes):
+// scripts/test-cluster.mjs starts it on spare ports, runs tests/cluster and stops it (docs/scaling.md).
+stage('cluster', () => {
+  const file = join(out, 'cluster.json');
+  run('node', ['scripts/test-cluster.mjs', '--reporter=default', '--reporter=json', `--outputFile.json=${file}`]);
+  return vitestCounts(file);
+});
 
 if (failures.length) console.log(`\nFailures:\n  ${failures.join('\n  ')}`);
 console.log(`\n${passed} passed, ${failed} failed`);
