@@ -9,6 +9,7 @@ export interface MyWorkPermitRef {
   number: string;
   title: string;
   state: PermitState;
+  pipelineId: string;
   pipelineName: string;
 }
 

@@ -138,7 +138,7 @@ test('the control room lands on My work, sees the isolation and its remote inhib
   await expect(item).toBeVisible();
   await expect(list(page, 'to-acknowledge').getByRole('link', { name: /Acknowledge remote inhibition MW-BV-1/ }).filter({ hasText: made.toApply.number })).toBeVisible();
   await item.tap();
-  await expect(page).toHaveURL(/\/board\?unacknowledged=true$/);
+  await expect(page).toHaveURL(/\/board\?unacknowledged=true&pipelineId=[0-9a-f-]{36}$/);
   const filter = page.getByRole('checkbox', { name: 'Not acknowledged only' });
   await expect(filter).toBeChecked();
   await noSideScroll(page);

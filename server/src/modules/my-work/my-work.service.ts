@@ -58,6 +58,7 @@ interface PermitRowFacts {
   number: string;
   title: string;
   state: PermitState;
+  pipeline_id: string;
   pipeline_name: string;
   valid_to: Date;
   kinds: WorkKind[];
@@ -91,6 +92,7 @@ interface StepRowFacts {
   number: string;
   title: string;
   permit_state: PermitState;
+  pipeline_id: string;
   pipeline_name: string;
   label: string;
   kind: StepKind;
@@ -137,7 +139,7 @@ async function permitRows(sequelize: Sequelize, tenantId: string, userId: string
        FROM permits p
        WHERE p.tenant_id = :tenantId AND p.state IN (:states)
      )
-     SELECT c.id, c.number, c.title, c.state, pl.name AS pipeline_name, c.valid_to, c.kinds, c.rejection_reason, c.suspension_reason, c.suspended_by_kind, c.expired_flag,
+     SELECT c.id, c.number, c.title, c.state, c.pipeline_id, pl.name AS pipeline_name, c.valid_to, c.kinds, c.rejection_reason, c.suspension_reason, c.suspended_by_kind, c.expired_flag,
             c.gas_test_interval_minutes, c.hot_work_ended_at, c.fire_watch_minutes,
             c.to_accept, c.sent_back, c.live_work, c.gas_due, c.to_approve, c.to_revalidate, c.return_ack,
             ${facts(`SELECT max(g.tested_at) FROM gas_tests g WHERE g.tenant_id = c.tenant_id AND g.permit_id = c.id AND g.verdict = 'pass'`)} AS last_pass,
@@ -169,7 +171,7 @@ async function permitRows(sequelize: Sequelize, tenantId: string, userId: string
  */
 async function stepRows(sequelize: Sequelize, tenantId: string, userId: string, s: ReturnType<typeof scopes>) {
   return sequelize.query<StepRowFacts>(
-    `SELECT st.id, st.permit_id, p.number, p.title, p.state AS permit_state, pl.name AS pipeline_name, coalesce(ip.tag_code, st.temp_label) AS label,
+    `SELECT st.id, st.permit_id, p.number, p.title, p.state AS permit_state, p.pipeline_id, pl.name AS pipeline_name, coalesce(ip.tag_code, st.temp_label) AS label,
             st.kind, st.condition, st.status, st.lock_id, st.tag_id, coalesce(st.held_by, st.applied_by) AS held_by, st.applied_by,
             st.remotely_operable, st.remote_ack_at, st.control_room_ack_applied_at, st.control_room_ack_removed_at, st.plug_warnings, st.plug_warnings_ack_at,
             EXISTS (SELECT 1 FROM lock_removal_exceptions e WHERE e.tenant_id = st.tenant_id AND e.permit_id = st.permit_id AND e.step_id = st.id AND e.remover_user_id = :userId) AS removal_exception,
@@ -196,8 +198,8 @@ async function stepRows(sequelize: Sequelize, tenantId: string, userId: string, 
   );
 }
 
-const permitRef = (r: { permit_id?: string; id: string; number: string; title: string; pipeline_name: string }, state: PermitState): MyWorkPermitRef => ({
-  id: r.permit_id ?? r.id, number: r.number, title: r.title, state, pipelineName: r.pipeline_name,
+const permitRef = (r: { permit_id?: string; id: string; number: string; title: string; pipeline_id: string; pipeline_name: string }, state: PermitState): MyWorkPermitRef => ({
+  id: r.permit_id ?? r.id, number: r.number, title: r.title, state, pipelineId: r.pipeline_id, pipelineName: r.pipeline_name,
 });
 
 /** What the caller has to do now, per role they hold in the active tenant. */

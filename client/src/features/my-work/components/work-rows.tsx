@@ -124,7 +124,8 @@ const stepAddress = (item: MyWorkStepItem) => {
       return `/permits/${item.permit.id}/steps/${item.stepId}/${item.action}`;
     case 'applied':
     case 'remote_inhibited':
-      return '/board?unacknowledged=true';
+      // The board narrowed to what waits for the control room on that line, so the row is near the top.
+      return `/board?unacknowledged=true&pipelineId=${item.permit.pipelineId}`;
     default:
       return `/permits/${item.permit.id}`;
   }
