@@ -4,6 +4,7 @@
 // Used by `npm run cluster` (scripts/cluster.mjs) and `npm run test:cluster` (scripts/test-cluster.mjs).
 // The engines run as unprivileged users (postgres, haproxy), as the PostgreSQL cluster of `npm start` does.
 import { spawn, spawnSync } from 'node:child_process';
+import { generateKeyPairSync } from 'node:crypto';
 import { chownSync, closeSync, openSync, existsSync, mkdirSync, readFileSync, rmSync, writeFileSync, appendFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { ensureAptPackages } from './apt.mjs';
@@ -256,6 +257,9 @@ ALTER ROLE holdpoint_app IN DATABASE holdpoint SET statement_timeout = '15s';
 
   // 6. The Holdpoint processes.
   const sessionSecret = keptSecret(join(secrets, 'session-secret'));
+  // One audit signing key for every process: a checkpoint signed by one must verify against the key the others publish.
+  const auditKeyFile = join(secrets, 'audit-signing-key.pem');
+  if (!existsSync(auditKeyFile)) writeFileSync(auditKeyFile, generateKeyPairSync('ed25519').privateKey.export({ type: 'pkcs8', format: 'pem' }), { mode: 0o600 });
   const publicUrl = `http://127.0.0.1:${ports.http}`;
   const backendEnv = (i) => ({
     ...process.env,
@@ -271,6 +275,7 @@ ALTER ROLE holdpoint_app IN DATABASE holdpoint SET statement_timeout = '15s';
     DATABASE_OWNER_URL: ownerUrl,
     DATA_DIR: join(dir, `app-${i + 1}`),
     SESSION_SECRET: sessionSecret,
+    AUDIT_SIGNING_KEY: process.env.AUDIT_SIGNING_KEY ?? auditKeyFile,
     PUBLIC_URL: publicUrl,
     TRUST_PROXY: '127.0.0.1',
     S3_URL: `http://127.0.0.1:${ports.s3}`,
