@@ -52,7 +52,13 @@ export async function transition(user: ApiUser, permitId: string, event: string,
  * A cold-work permit on the Cedar Run lateral (or another demo pipeline) whose plan is the given register
  * points, taken through request, approval and acceptance by the demo lead and authoriser: ready for its isolations.
  */
-export async function acceptedPermit(title: string, tagCodes: string[], pipelineCode = 'BM-10'): Promise<{ id: string; number: string }> {
+export async function acceptedPermit(
+  title: string,
+  tagCodes: string[],
+  pipelineCode = 'BM-10',
+  /** Plan steps after the register points: temporary ones (`tempLabel`, `tempPosition`), a plug, say. */
+  extraSteps: Record<string, unknown>[] = [],
+): Promise<{ id: string; number: string }> {
   const lead = await apiAs('lead@oxbow-repair.example');
   const authoriser = await apiAs('authoriser@bramblecote.example');
   try {
@@ -81,7 +87,7 @@ export async function acceptedPermit(title: string, tagCodes: string[], pipeline
       201,
     );
     const kindOf: Record<string, string> = { block_valve: 'block_valve', vent: 'vent', drain: 'drain' };
-    await ok(lead.put(`/api/permits/${created.id}/isolations`, { version: created.version, steps: chosen.map((p) => ({ pointId: p.id, kind: kindOf[p.kind] })) }));
+    await ok(lead.put(`/api/permits/${created.id}/isolations`, { version: created.version, steps: [...chosen.map((p) => ({ pointId: p.id, kind: kindOf[p.kind] })), ...extraSteps] }));
     await transition(lead, created.id, 'submit');
     await transition(authoriser, created.id, 'approve');
     expect((await transition(lead, created.id, 'accept')).state).toBe('accepted');
@@ -185,6 +191,12 @@ export async function takeLive(permitId: string) {
       201,
     );
     expect(test.verdict).toBe('pass');
+    // A plug in the plan: the atmosphere inside the pipe on both sides of it is tested before work starts too.
+    if (plan.items.some((s) => s.kind === 'plug')) {
+      for (const place of ['inside_pipe_upstream', 'inside_pipe_downstream']) {
+        await ok(tech.post(`/api/permits/${permit.id}/gas-tests`, { instrumentId: monitor.id, place, purpose: 'before_work', testedAt: new Date().toISOString(), readings: { o2Pct: 20.9, lelPct: 0, h2sPpm: 0, coPpm: 1 } }), 201);
+      }
+    }
     expect((await transition(lead, permit.id, 'start_work')).state).toBe('live');
   } finally {
     await Promise.all([lead, authoriser, tech, tech2, control].map((u) => u.close()));
