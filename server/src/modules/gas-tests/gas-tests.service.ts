@@ -4,7 +4,7 @@ import { assessOptionsFor, checkPermitLimitRequest, permitLimits } from '@shared
 import { instrumentStatus } from '@shared/gas-tests/instrument-status';
 import { failureSummary } from '@shared/gas-tests/verdict-text';
 import { assessVentOutlet } from '@shared/gas-tests/vent-outlet';
-import { siteDay, siteTimeOfDay } from '@shared/time/zone';
+import { formatInZone } from '@shared/time/zone';
 import { gasTestPlaceLabels, type GasTestData, type GasTestPlace, type GasTestPurpose, type PermitGasLimitsInput } from '@shared/schemas/gas-tests.schema';
 import type { GasTestResult } from '@shared/types/gas-tests';
 import { editableStates, limitsFixedStates, liveStates, workUnderWayStates } from '@shared/permit/states';
@@ -62,7 +62,8 @@ export async function usableInstrument(
  * the reading in the audit reason; resuming needs a new passing test (the guard of 'resume').
  */
 export async function suspendForFailure(deps: AppDeps, permit: PermitRow, assessment: AtmosphereAssessment, where: { place: GasTestPlace; testedAt: Date; tester: string; timeZone: string }) {
-  const when = `${siteDay(where.testedAt, where.timeZone)} ${siteTimeOfDay(where.testedAt, where.timeZone)} site time`;
+  // The reason is read on screens and paper as it is: the site's time with its zone, as everywhere else.
+  const when = formatInZone(where.testedAt, where.timeZone);
   const reason = `Gas test failed: ${failureSummary(assessment)} (${gasTestPlaceLabels[where.place].toLowerCase()}, ${where.tester}, ${when}).`;
   return applyTransition(deps, permit, 'suspend', { reason }, { system: 'failing gas test' });
 }
