@@ -11,27 +11,11 @@ import { withTenant } from '../../db/sequelize';
 import { authorizeType } from '../../lib/authorize';
 import type { CallerContext } from '../../lib/caller';
 import { loadTenantSettings } from '../tenants/tenant-settings';
+import type { StoredEvent } from './audit.service';
 
-interface EventRow {
-  seq: number;
-  tenant_id: string;
-  entity_type: string;
-  entity_id: string;
-  permit_id: string | null;
+/** A stored event with the number of the permit it belongs to, as the log lists it. */
+interface EventRow extends StoredEvent {
   permit_number: string | null;
-  action: string;
-  from_state: string | null;
-  to_state: string | null;
-  actor_user_id: string | null;
-  actor_name: string | null;
-  actor_role: string | null;
-  membership_id: string | null;
-  reason: string | null;
-  ip: string | null;
-  data: Record<string, unknown>;
-  occurred_at: Date;
-  prev_hash: string;
-  hash: string;
 }
 
 /** The WHERE clause of the filters; every value travels as a bound parameter. */

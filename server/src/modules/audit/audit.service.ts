@@ -22,7 +22,7 @@ export interface AuditInput {
   occurredAt: Date;
 }
 
-interface StoredEvent {
+export interface StoredEvent {
   seq: number;
   tenant_id: string;
   entity_type: string;
