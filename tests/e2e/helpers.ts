@@ -42,7 +42,16 @@ export async function signedInPage(browser: Browser, email: string, viewport = {
 
 /** A screenshot for the user guide: what is on the screen (not the whole page), with `target` scrolled into view. */
 export async function guideShot(page: Page, name: string, target?: Locator) {
-  if (target) await target.scrollIntoViewIfNeeded();
+  // A live screen may redraw the row between finding it and scrolling to it: find it again and retry.
+  for (let attempt = 1; target; attempt++) {
+    try {
+      await target.scrollIntoViewIfNeeded({ timeout: 5_000 });
+      break;
+    } catch (err) {
+      if (attempt >= 5) throw err;
+      await page.waitForTimeout(300);
+    }
+  }
   await page.screenshot({ path: `${shotDir}/guide-${name}.png` });
 }
 

@@ -264,6 +264,8 @@ test('when the state filter is set, then it is kept in the address and the list 
   await page.locator('summary').filter({ hasText: 'State' }).click();
   await page.getByRole('checkbox', { name: 'Draft', exact: true }).check();
   await expect(page).toHaveURL(/state=draft/);
+  // Until the filtered page arrives, the last rows stand in and the list says it is updating.
+  await expect(page.getByTestId('permit-list')).toHaveAttribute('aria-busy', 'false');
   const states = page.getByTestId('permit-row').getByTestId('permit-state');
   await expect(states.first()).toBeVisible();
   for (const text of await states.allInnerTexts()) expect(text).toBe('Draft');
@@ -273,6 +275,8 @@ test('when the state filter is set, then it is kept in the address and the list 
   await page.getByRole('checkbox', { name: 'Closed', exact: true }).check();
   await page.getByRole('checkbox', { name: 'Draft', exact: true }).uncheck();
   await expect(page).toHaveURL(/state=closed/);
+  // Updating, or no closed permit at all (then the list gives way to "No permit matches").
+  await expect(page.locator('[data-testid="permit-list"][aria-busy="true"]')).toHaveCount(0);
   // Other specs may have closed permits by now: whatever shows is closed, and the drafts are gone.
   await expect(page.getByTestId('permit-row').getByTestId('permit-state').filter({ hasText: 'Draft' })).toHaveCount(0);
   for (const text of await states.allInnerTexts()) expect(text).toBe('Closed');

@@ -118,7 +118,8 @@ export default function PermitsPage() {
             </div>
           </EmptyState>
         ) : (
-          <>
+          // While the rows of the previous filters stand in for the new ones, the list says it is updating.
+          <div data-testid="permit-list" aria-busy={permits.isPlaceholderData}>
             <div className="hidden md:block">
               <DataTable
                 caption="Permits to work"
@@ -147,7 +148,7 @@ export default function PermitsPage() {
                 </Button>
               </nav>
             </div>
-          </>
+          </div>
         )}
       </div>
     </>
