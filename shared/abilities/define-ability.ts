@@ -19,6 +19,8 @@ export const subjects = [
   'IsolationCertificate',
   // The management figures (issue 21): aggregates over the whole tenant, no single record.
   'Report',
+  // The site's settings (time zone, records address, safety margins): the tenant admin reads and changes them.
+  'TenantSettings',
   'all',
 ] as const;
 export type SubjectName = (typeof subjects)[number];
@@ -65,6 +67,7 @@ const rulesByRole: Record<Role, (can: Can, actor: Actor, m: ActorMembership) => 
     can('verify_chain', 'AuditEvent', t);
     can('read', 'IsolationCertificate', t);
     can('read', 'Report', t);
+    can(['read', 'update'], 'TenantSettings', t);
   },
   authoriser(can, a) {
     const t = { tenantId: a.tenantId };

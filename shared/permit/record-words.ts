@@ -36,6 +36,7 @@ const actionWords: Record<string, string> = {
   certificate_recheck_passed: 'Long-term isolation re-check passed',
   certificate_recheck_failed: 'Long-term isolation re-check failed',
   certificate_recheck_overdue: 'Long-term isolation re-check overdue',
+  settings_changed: 'Site settings changed',
 };
 
 /** "plan_saved" → "Isolation plan saved"; an action without its own words is written as a sentence. */

@@ -129,6 +129,9 @@ const routes: RouteCase[] = [
     body: (c) => ({ userId: c.actor?.userId ?? c.users['admin@bramblecote.example'], kind: 'excavation', issuedOn: isoDay(c.srv.clock.now()), expiresOn: isoDay(new Date(c.srv.clock.now().getTime() + 365 * 86_400_000)) }),
   },
   { method: 'POST', path: '/api/invitations', access: can('create', 'Invitation'), body: (c) => ({ email: `${c.unique('invited')}@matrix.example`, organisationId: c.tenant.operatorOrgId, role: 'auditor' }) },
+  // the site's settings (tenant admin only)
+  { method: 'GET', path: '/api/tenant/settings', access: can('read', 'TenantSettings') },
+  { method: 'PATCH', path: '/api/tenant/settings', access: can('update', 'TenantSettings'), body: () => ({ auditCheckpointHours: 12, recordsEmail: 'records@bramblecote.example' }) },
 
   // calculator
   { method: 'GET', path: '/api/calc/mud-plug', query: '?diameterIn=10', access: can('read', 'Calculator') },

@@ -25,6 +25,7 @@ export const navItems: NavItem[] = [
   { to: '/admin/users', label: 'People', subject: 'Membership', action: 'create' },
   { to: '/admin/organisations', label: 'Organisations', subject: 'Organisation', action: 'create' },
   { to: '/admin/qualifications', label: 'Qualifications', subject: 'Qualification' },
+  { to: '/admin/settings', label: 'Settings', subject: 'TenantSettings' },
   { to: '/audit', label: 'Audit log', subject: 'AuditEvent' },
   { to: '/calculator', label: 'Calculator', subject: 'Calculator' },
 ];

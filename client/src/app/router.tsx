@@ -8,6 +8,7 @@ const appRoutes: RouteObject[] = [
   { path: 'admin/users', lazy: page(() => import('@client/features/admin/pages/users-page')) },
   { path: 'admin/organisations', lazy: page(() => import('@client/features/admin/pages/organisations-page')) },
   { path: 'admin/qualifications', lazy: page(() => import('@client/features/admin/pages/qualifications-page')) },
+  { path: 'admin/settings', lazy: page(() => import('@client/features/admin/pages/settings-page')) },
   { path: 'calculator', lazy: page(() => import('@client/features/calculator/pages/calculator-page')) },
   { path: 'permits', lazy: page(() => import('@client/features/permits/pages/permits-page')) },
   { path: 'permits/new', lazy: page(() => import('@client/features/permits/pages/new-permit-page')) },

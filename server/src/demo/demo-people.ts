@@ -134,9 +134,10 @@ export async function seedPeople(sequelize: Sequelize, passwordHash: string, t: 
 
   for (const tenant of demoTenants) {
     const row = await one<{ id: string }>(
-      `INSERT INTO tenants (name, slug, time_zone, location_unit) VALUES (:name, :slug, :tz, :unit)
-       ON CONFLICT (slug) DO UPDATE SET name = EXCLUDED.name RETURNING id`,
-      { name: tenant.name, slug: tenant.slug, tz: tenant.timeZone, unit: tenant.locationUnit },
+      // Each demo tenant mails its signed audit checkpoints to a records address on its own domain (shown in the demo's mail catcher); one set by hand is kept.
+      `INSERT INTO tenants (name, slug, time_zone, location_unit, settings) VALUES (:name, :slug, :tz, :unit, jsonb_build_object('recordsEmail', CAST(:records AS text)))
+       ON CONFLICT (slug) DO UPDATE SET name = EXCLUDED.name, settings = EXCLUDED.settings || coalesce(tenants.settings, '{}'::jsonb) RETURNING id`,
+      { name: tenant.name, slug: tenant.slug, tz: tenant.timeZone, unit: tenant.locationUnit, records: `records@${tenant.slug}.example` },
     );
     ids.tenants[tenant.slug] = row.id;
     ids.organisations[tenant.slug] = {};

@@ -16,6 +16,7 @@ import { createMyWorkRouter } from './my-work/my-work.routes';
 import { createDossierRouter } from './dossier/dossier.routes';
 import { createPlanRouter } from './plan/plan.routes';
 import { createReportsRouter } from './reports/reports.routes';
+import { createTenantSettingsRouter } from './tenants/tenant-settings.routes';
 
 /** Every feature's router, mounted under /api after sign-in checks. Add one line per feature. */
-export const featureRouters: Array<(deps: AppDeps) => Router> = [createAdminRouter, createCalcRouter, createPermitsRouter, createIsolationsRouter, createAuditRouter, createAssetsRouter, createAttachmentsRouter, createGasTestsRouter, createCrewRouter, createCertificatesRouter, createMyWorkRouter, createLiveRouter, createLabelsRouter, createDossierRouter, createPlanRouter, createReportsRouter];
+export const featureRouters: Array<(deps: AppDeps) => Router> = [createAdminRouter, createCalcRouter, createPermitsRouter, createIsolationsRouter, createAuditRouter, createAssetsRouter, createAttachmentsRouter, createGasTestsRouter, createCrewRouter, createCertificatesRouter, createMyWorkRouter, createLiveRouter, createLabelsRouter, createDossierRouter, createPlanRouter, createReportsRouter, createTenantSettingsRouter];

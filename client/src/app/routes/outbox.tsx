@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { useState, type ReactNode } from 'react';
 import { Link } from 'react-router-dom';
 import { useQueryClient } from '@tanstack/react-query';
 import type { z } from 'zod';
@@ -7,7 +7,7 @@ import { checkInputSchema, fireWatchObservationLabels, fireWatchObservations, pl
 import { formatInZone, isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { useMe } from '@client/features/auth';
 import { Button } from '@client/components/ui/button';
-import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
+import { LabelledOptions, SelectField, TextAreaField, TextField } from '@client/components/ui/field';
 import { Notice, SafetyCaution } from '@client/components/ui/notice';
 import { Card, EmptyState, Loading, PageHeader } from '@client/components/ui/page';
 import { useConnection } from '@client/lib/connection';
@@ -45,23 +45,13 @@ function EditGasTest({ record, timeZone, onDone }: { record: OutboxRecord; timeZ
     onDone();
   };
   return (
-    <form
-      className="flex flex-col gap-3"
-      noValidate
-      onSubmit={(e) => {
-        e.preventDefault();
-        void submit();
-      }}
-      aria-label="Change the gas test and send again"
-    >
-      <TextField label={`Tested at (${timeZone})`} type="datetime-local" value={wall} onChange={(e) => setWall(e.target.value)} error={errors.testedAt} />
+    <EditForm name="the gas test" timeLabel={`Tested at (${timeZone})`} wall={wall} setWall={setWall} timeError={errors.testedAt} onSubmit={submit} onCancel={onDone}>
       <div className="grid grid-cols-2 gap-3">
         {READINGS.map((r) => (
           <TextField key={r.field} label={r.label} inputMode="decimal" value={readings[r.field]} onChange={(e) => setReadings((v) => ({ ...v, [r.field]: e.target.value }))} error={errors[`readings.${r.field}`]} />
         ))}
       </div>
-      <EditButtons onCancel={onDone} />
-    </form>
+    </EditForm>
   );
 }
 
@@ -79,32 +69,15 @@ function EditCheck({ record, timeZone, onDone }: { record: OutboxRecord; timeZon
     onDone();
   };
   return (
-    <form
-      className="flex flex-col gap-3"
-      noValidate
-      onSubmit={(e) => {
-        e.preventDefault();
-        void submit();
-      }}
-      aria-label="Change the check and send again"
-    >
-      <TextField label={`Checked at (${timeZone})`} type="datetime-local" value={wall} onChange={(e) => setWall(e.target.value)} error={errors.checkedAt} />
+    <EditForm name="the check" timeLabel={`Checked at (${timeZone})`} wall={wall} setWall={setWall} timeError={errors.checkedAt} onSubmit={submit} onCancel={onDone}>
       {body.kind === 'plug' ? (
         <SelectField label="Plug face" value={String(values.face ?? '')} onChange={(e) => set('face', e.target.value)} error={errors.face}>
-          {plugFaces.map((f) => (
-            <option key={f} value={f}>
-              {plugFaceLabels[f]}
-            </option>
-          ))}
+          <LabelledOptions values={plugFaces} labels={plugFaceLabels} />
         </SelectField>
       ) : null}
       {body.kind === 'fire_watch' ? (
         <SelectField label="What the fire watch found" value={String(values.observation ?? '')} onChange={(e) => set('observation', e.target.value)} error={errors.observation}>
-          {fireWatchObservations.map((o) => (
-            <option key={o} value={o}>
-              {fireWatchObservationLabels[o]}
-            </option>
-          ))}
+          <LabelledOptions values={fireWatchObservations} labels={fireWatchObservationLabels} />
         </SelectField>
       ) : null}
       {body.kind === 'vent' ? (
@@ -120,19 +93,31 @@ function EditCheck({ record, timeZone, onDone }: { record: OutboxRecord; timeZon
         </>
       ) : null}
       <TextAreaField label="Action taken" value={String(values.actionTaken ?? '')} onChange={(e) => set('actionTaken', e.target.value)} error={errors.actionTaken} />
-      <EditButtons onCancel={onDone} />
-    </form>
+    </EditForm>
   );
 }
 
-function EditButtons({ onCancel }: { onCancel: () => void }) {
+/** The edit form of a refused record: when it was done (site time), its own fields, then send again or cancel. */
+function EditForm({ name, timeLabel, wall, setWall, timeError, onSubmit, onCancel, children }: { name: string; timeLabel: string; wall: string; setWall: (v: string) => void; timeError?: string; onSubmit: () => Promise<void>; onCancel: () => void; children: ReactNode }) {
   return (
-    <div className="flex flex-wrap gap-2">
-      <Button type="submit">Send again</Button>
-      <Button type="button" variant="secondary" onClick={onCancel}>
-        Cancel
-      </Button>
-    </div>
+    <form
+      className="flex flex-col gap-3"
+      noValidate
+      onSubmit={(e) => {
+        e.preventDefault();
+        void onSubmit();
+      }}
+      aria-label={`Change ${name} and send again`}
+    >
+      <TextField label={timeLabel} type="datetime-local" value={wall} onChange={(e) => setWall(e.target.value)} error={timeError} />
+      {children}
+      <div className="flex flex-wrap gap-2">
+        <Button type="submit">Send again</Button>
+        <Button type="button" variant="secondary" onClick={onCancel}>
+          Cancel
+        </Button>
+      </div>
+    </form>
   );
 }
 

@@ -65,3 +65,17 @@ export const TextAreaField = forwardRef<HTMLTextAreaElement, AreaProps>(function
     </FieldShell>
   );
 });
+
+/** The `<option>`s of a select over a fixed list, each shown by its label in words; `blank` adds a first empty choice. */
+export function LabelledOptions<T extends string>({ values, labels, blank }: { values: readonly T[]; labels: Record<T, string>; blank?: string }) {
+  return (
+    <>
+      {blank !== undefined ? <option value="">{blank}</option> : null}
+      {values.map((v) => (
+        <option key={v} value={v}>
+          {labels[v]}
+        </option>
+      ))}
+    </>
+  );
+}

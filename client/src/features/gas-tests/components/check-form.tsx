@@ -9,7 +9,7 @@ import { isoToWallTime, wallTimeToIso } from '@shared/time/zone';
 import { isQueued } from '@client/lib/outbox/send-or-queue';
 import { ApiError } from '@client/lib/api-client';
 import { Button } from '@client/components/ui/button';
-import { SelectField, TextAreaField, TextField } from '@client/components/ui/field';
+import { SelectField, TextAreaField, TextField, LabelledOptions } from '@client/components/ui/field';
 import { useToast } from '@client/components/ui/toast';
 import { usePlanSteps, useRecordCheck } from '../api/checks';
 
@@ -96,22 +96,12 @@ function KindForm({ permitId, kind, timeZone, screen }: { permitId: string; kind
         ) : null}
         {kind === 'plug' ? (
           <SelectField label="Plug face" {...form.register('face' as never, { setValueAs: (v: string) => v || undefined })} error={errors.face?.message}>
-            <option value="">Choose…</option>
-            {plugFaces.map((f) => (
-              <option key={f} value={f}>
-                {plugFaceLabels[f]}
-              </option>
-            ))}
+            <LabelledOptions values={plugFaces} labels={plugFaceLabels} blank="Choose…" />
           </SelectField>
         ) : null}
         {kind === 'fire_watch' ? (
           <SelectField label="What the fire watch found" {...form.register('observation' as never, { setValueAs: (v: string) => v || undefined })} error={errors.observation?.message}>
-            <option value="">Choose…</option>
-            {fireWatchObservations.map((o) => (
-              <option key={o} value={o}>
-                {fireWatchObservationLabels[o]}
-              </option>
-            ))}
+            <LabelledOptions values={fireWatchObservations} labels={fireWatchObservationLabels} blank="Choose…" />
           </SelectField>
         ) : null}
       </div>

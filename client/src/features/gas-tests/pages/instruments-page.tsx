@@ -107,6 +107,9 @@ export default function InstrumentsPage() {
   const { data: me } = useMe();
   const tenantId = me?.activeTenantId ?? '';
   const canUpdate = ability.can('update', subject('Instrument', { tenantId }));
+  // The status is judged no earlier than the answer it reads: a bump test recorded a moment after
+  // the clock last ticked must not count as "after the test".
+  const asOf = new Date(Math.max(now.getTime(), instruments.dataUpdatedAt));
   return (
     <>
       <PageHeader title="Instruments" subtitle="Gas monitors: a monitor past its calibration due date, or without a bump test on the day, cannot be used for a gas test." />
@@ -126,7 +129,7 @@ export default function InstrumentsPage() {
         ) : (
           <ul className="grid gap-3 md:grid-cols-2" aria-label="Instruments">
             {instruments.data.items.map((row) => {
-              const s = instrumentStatus(row, now, timeZone, instruments.data.requireDailyBumpTest);
+              const s = instrumentStatus(row, asOf, timeZone, instruments.data.requireDailyBumpTest);
               const tone = !s.usable ? 'border-danger bg-danger-soft' : s.calibration === 'due_soon' ? 'border-caution bg-caution-soft' : 'border-safe bg-surface';
               return (
                 <li key={row.id} className={`flex min-w-0 flex-col gap-2 rounded-card border-l-4 p-3 ${tone}`} data-testid="instrument-row">
