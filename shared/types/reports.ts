@@ -1,4 +1,6 @@
 import type { SuspendedByKind } from '../permit/suspension';
+import type { PermitState } from '../permit/states';
+import type { StepKind } from '../isolations/step-kinds';
 
 export const reportStages = ['request_to_approval', 'approval_to_live', 'live_to_return'] as const;
 export type ReportStage = (typeof reportStages)[number];
@@ -34,6 +36,56 @@ export interface ExpiringQualificationRow {
   within90: number;
 }
 
+/**
+ * Permits by state over time: at the end of each site day (30-day period) or each site week (90 and
+ * 365 days), how many of the tenant's permits stood in each state, read from the audit trail's state
+ * changes. States with no permit are left out of `counts`.
+ */
+export interface StatesOverTimeRow {
+  /** "YYYY-MM-DD": the last site day of the bucket; counts are as at the end of that day. */
+  day: string;
+  counts: Partial<Record<PermitState, number>>;
+}
+
+/** What is timed: a repeat gas test, or a vent, plug or fire-watch check. */
+export const timelinessKinds = ['gas_test', 'vent', 'plug', 'fire_watch'] as const;
+export type TimelinessKind = (typeof timelinessKinds)[number];
+export const timelinessKindLabels: Record<TimelinessKind, string> = {
+  gas_test: 'Repeat gas tests',
+  vent: 'Vent checks',
+  plug: 'Plug checks',
+  fire_watch: 'Fire-watch checks',
+};
+
+/**
+ * Timed records in the period that fell due: done by their due time (on time), done after it (late),
+ * or never done while the work stood (missed).
+ */
+export interface TimelinessRow {
+  kind: TimelinessKind;
+  onTime: number;
+  late: number;
+  missed: number;
+}
+
+/** How long isolations now in place have stood, in site days since they were applied. */
+export const isolationAgeBands = ['under_1_day', 'days_1_to_7', 'days_8_to_30', 'days_31_to_90', 'over_90_days'] as const;
+export type IsolationAgeBand = (typeof isolationAgeBands)[number];
+export const isolationAgeBandLabels: Record<IsolationAgeBand, string> = {
+  under_1_day: 'Under a day',
+  days_1_to_7: '1 to 7 days',
+  days_8_to_30: '8 to 30 days',
+  days_31_to_90: '31 to 90 days',
+  over_90_days: 'Over 90 days',
+};
+
+export interface IsolationAgeRow {
+  band: IsolationAgeBand;
+  /** Isolations in place now, by the kind of step (valve, vent, drain, plug, blind …); kinds with none left out. */
+  byKind: Partial<Record<StepKind, number>>;
+  total: number;
+}
+
 export interface ReportsOverview<T = string> {
   days: number;
   since: T;
@@ -41,5 +93,8 @@ export interface ReportsOverview<T = string> {
   stageTimes: StageTimeRow[];
   suspensionsByCause: SuspensionCauseRow[];
   qualificationsExpiring: ExpiringQualificationRow[];
+  statesOverTime: StatesOverTimeRow[];
+  timeliness: TimelinessRow[];
+  isolationsByAge: IsolationAgeRow[];
   generatedAt: T;
 }

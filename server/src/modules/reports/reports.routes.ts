@@ -1,5 +1,6 @@
 // The numbers for management.
-//   GET /api/reports/overview   tenant admin, authoriser, auditor (read Report): stage times, suspensions by cause, qualifications expiring
+//   GET /api/reports/overview   tenant admin, authoriser, auditor (read Report): stage times, suspensions by cause, qualifications expiring,
+//                               permits by state over time, gas tests and checks on time, isolations in place by age
 import { Router } from 'express';
 import { reportsQuerySchema } from '@shared/schemas/reports.schema';
 import type { AppDeps } from '../../deps';

@@ -10,6 +10,7 @@ import { withTenant } from '../../db/sequelize';
 import { authorizeType } from '../../lib/authorize';
 import type { CallerContext } from '../../lib/caller';
 import { loadTenantSettings } from '../tenants/tenant-settings';
+import { isolationsByAge, stateBuckets, statesOverTime, timeliness } from './report-figures';
 
 const DAY_MS = 86_400_000;
 
@@ -17,14 +18,15 @@ const DAY_MS = 86_400_000;
  * How long each stage took, over the permits that reached the stage's end in the period: from the
  * first time the permit was sent for approval to its first approval, from that to the first start of
  * work, and from that to its return to service. Median and 90th percentile are PostgreSQL's
- * percentile_cont (linear interpolation). Read from the audit trail's state changes
- * (`audit_events_state_change_idx`, migration 0220).
+ * percentile_cont (linear interpolation). Read from the audit trail's state changes of the permit
+ * itself (`audit_events_state_change_idx`, migration 0220): an isolation certificate's "live" on
+ * the same permit is not its work starting.
  */
 async function stageTimes(sequelize: Sequelize, tenantId: string, since: Date): Promise<StageTimeRow[]> {
   const rows = await sequelize.query<StageTimeRow>(
     `WITH ended AS (
        SELECT DISTINCT permit_id FROM audit_events
-       WHERE tenant_id = :tenantId AND to_state IN (:approved, :live, :returned) AND occurred_at >= :since AND permit_id IS NOT NULL),
+       WHERE tenant_id = :tenantId AND to_state IN (:approved, :live, :returned) AND occurred_at >= :since AND permit_id IS NOT NULL AND entity_type = 'permit'),
      marks AS (
        SELECT e.permit_id,
               min(e.occurred_at) FILTER (WHERE e.to_state = :requested) AS requested_at,
@@ -32,7 +34,7 @@ async function stageTimes(sequelize: Sequelize, tenantId: string, since: Date): 
               min(e.occurred_at) FILTER (WHERE e.to_state = :live) AS live_at,
               min(e.occurred_at) FILTER (WHERE e.to_state = :returned) AS returned_at
        FROM audit_events e JOIN ended USING (permit_id)
-       WHERE e.tenant_id = :tenantId AND e.to_state IN (:requested, :approved, :live, :returned)
+       WHERE e.tenant_id = :tenantId AND e.to_state IN (:requested, :approved, :live, :returned) AND e.entity_type = 'permit'
        GROUP BY e.permit_id),
      durations AS (
        SELECT 'request_to_approval' AS stage, extract(epoch FROM approved_at - requested_at) / 3600 AS hours FROM marks WHERE approved_at >= :since AND requested_at <= approved_at
@@ -77,27 +79,32 @@ async function qualificationsExpiring(sequelize: Sequelize, tenantId: string, to
 
 /** Answers kept per process, at most one per tenant and period. */
 const MAX_CACHED = 500;
+/** The longest an answer is reused, however quiet the data: missed checks and isolation ages move with the clock alone. */
+const MAX_AGE_MS = 10 * 60_000;
 const cache = new Map<string, { version: string; answer: ReportsOverview<Date> }>();
 
 /**
  * The management figures of the caller's tenant. Every change to tenant data appends to the tenant's
  * audit chain in its own transaction, so the chain head's sequence number is the data version (as for
- * the board): an answer is reused while it and the site day are unchanged. The periods and the
- * "expiring within" bands count in days, so a figure at most a day old is the price of reuse.
+ * the board): an answer is reused while it and the site day are unchanged, and for at most ten
+ * minutes. Some figures move with the clock alone, with no new data: a check not done becomes missed
+ * once its due time passes, an isolation grows older, the period's start slides on; the age limit
+ * keeps those at most ten minutes behind.
  */
 export async function reportsOverview(deps: AppDeps, caller: CallerContext, q: ReportsQuery): Promise<ReportsOverview<Date>> {
   const { tenantId } = caller.actor;
   authorizeType(caller.ability, 'read', 'Report', { tenantId }, 'the reports');
   const { sequelize, clock } = deps;
   return withTenant(sequelize, tenantId, async () => {
-    const { timeZone } = await loadTenantSettings(sequelize, tenantId);
+    const { timeZone, ventCheckIntervalMinutes, plugCheckIntervalMinutes } = await loadTenantSettings(sequelize, tenantId);
     const now = clock.now();
     const today = siteDay(now, timeZone);
     const [head] = await sequelize.query<{ seq: string | number }>(`SELECT seq FROM audit_chain_heads WHERE tenant_id = :tenantId`, { replacements: { tenantId }, type: QueryTypes.SELECT });
     const key = `${tenantId}|${q.days}`;
     const version = `${head?.seq ?? 0}|${today}`;
     const hit = cache.get(key);
-    if (hit && hit.version === version) return hit.answer;
+    const age = hit ? now.getTime() - hit.answer.generatedAt.getTime() : -1;
+    if (hit && hit.version === version && age >= 0 && age < MAX_AGE_MS) return hit.answer;
 
     const days = Number(q.days);
     const since = new Date(now.getTime() - days * DAY_MS);
@@ -108,6 +115,9 @@ export async function reportsOverview(deps: AppDeps, caller: CallerContext, q: R
       stageTimes: await stageTimes(sequelize, tenantId, since),
       suspensionsByCause: await suspensionsByCause(sequelize, tenantId, since),
       qualificationsExpiring: await qualificationsExpiring(sequelize, tenantId, today),
+      statesOverTime: await statesOverTime(sequelize, tenantId, stateBuckets(days, today, timeZone)),
+      timeliness: await timeliness(sequelize, tenantId, { since, now, ventMinutes: ventCheckIntervalMinutes, plugMinutes: plugCheckIntervalMinutes }),
+      isolationsByAge: await isolationsByAge(sequelize, tenantId, today, timeZone),
       generatedAt: now,
     };
     cache.delete(key);
