@@ -66,6 +66,9 @@ const envSchema = z.object({
   SERVER_PROCESSES: z.union([z.literal('auto'), z.coerce.number().int().min(1).max(64)]).default(1),
   // The live board reuses its answer while the tenant's data is unchanged (modules/isolations/board-cache.ts).
   BOARD_CACHE: z.enum(['on', 'off']).default('on'),
+  // The longest a request holding an Idempotency-Key may sit idle in its transaction: past it PostgreSQL
+  // ends that transaction, so a key held by a process that froze or lost its machine becomes free again.
+  IDEMPOTENCY_LEASE_SECONDS: z.coerce.number().int().min(1).max(600).default(30),
   TRUST_PROXY: trustProxySchema,
   // The Ed25519 private key that signs the audit checkpoints: a PEM file's path, or the PEM itself. Kept
   // out of the database on purpose (someone who can write the database must not be able to sign).

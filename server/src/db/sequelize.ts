@@ -12,6 +12,8 @@ Sequelize.useCLS({
   run: (fn: (ctx: unknown) => unknown) => store.run(new Map(), () => fn(store.getStore())),
   bind: <F>(fn: F) => fn,
 });
+/** The store's entry naming the transaction a whole request runs in (withRequestTransaction). */
+const REQUEST_TRANSACTION = 'requestTransaction';
 
 // DATE columns come back as JS Dates; BIGINT counts as numbers (our counts stay far below 2^53).
 pg.types.setTypeParser(20, (v) => Number(v));
@@ -77,6 +79,23 @@ function beginWithTenant(sequelize: Sequelize) {
 export async function withTenant<T>(sequelize: Sequelize, tenantId: string, fn: (t: Transaction) => Promise<T>): Promise<T> {
   const current = store.getStore();
   const open = current?.get('transaction') as Transaction | null | undefined;
+  if (open && (open as unknown as { sequelize: Sequelize }).sequelize === sequelize && current?.get(REQUEST_TRANSACTION) === open) {
+    // A call at the top of a request held in one transaction (withRequestTransaction) gets a savepoint:
+    // when it fails, only its own work is undone, as its own transaction would have been.
+    const outerTenant = current.get('tenantId');
+    return sequelize.transaction({ transaction: open } as TransactionOptions, async (savepoint) => {
+      const inner = store.getStore();
+      inner?.set(REQUEST_TRANSACTION, open);
+      inner?.set('tenantId', outerTenant);
+      if (outerTenant !== tenantId) {
+        await sequelize.query(`SELECT set_config('app.tenant_id', :tenantId, true)`, { replacements: { tenantId }, transaction: savepoint });
+        inner?.set('tenantId', tenantId);
+        // Kept or undone with the savepoint: the next call sets it again.
+        current.delete('tenantId');
+      }
+      return fn(savepoint);
+    });
+  }
   if (open && (open as unknown as { sequelize: Sequelize }).sequelize === sequelize) {
     if (current?.get('tenantId') !== tenantId) {
       await sequelize.query(`SELECT set_config('app.tenant_id', :tenantId, true)`, { replacements: { tenantId }, transaction: open });
@@ -89,6 +108,29 @@ export async function withTenant<T>(sequelize: Sequelize, tenantId: string, fn: 
     store.getStore()?.set('tenantId', tenantId);
     return fn(t);
   });
+}
+
+/**
+ * One transaction around a whole request, with `app.tenant_id` set: a request with an Idempotency-Key
+ * (middleware/idempotency.ts) stores its answer under the key in the same transaction as its write, so
+ * both are kept or neither. The services' own withTenant calls inside it become savepoints.
+ */
+export async function withRequestTransaction<T>(sequelize: Sequelize, tenantId: string, fn: (t: Transaction) => Promise<T>): Promise<T> {
+  return withTenant(sequelize, tenantId, (t) => {
+    store.getStore()?.set(REQUEST_TRANSACTION, t);
+    return fn(t);
+  });
+}
+
+/**
+ * Work that outlives the request (a dossier built in the background, a chain check) and reads what the
+ * request wrote: inside a request transaction it starts once that transaction ends without a rollback,
+ * outside the request's context (its own transactions); otherwise at once.
+ */
+export function whenCommitted(work: () => void): void {
+  const request = store.getStore()?.get(REQUEST_TRANSACTION) as (Transaction & { finished?: string }) | undefined;
+  if (request && !request.finished) request.afterCommit(() => store.exit(work));
+  else work();
 }
 
 /**

@@ -1,7 +1,7 @@
 import { QueryTypes } from 'sequelize';
 import type { AuditChainCheck } from '@shared/types/audit';
 import type { AppDeps } from '../../deps';
-import { withTenant } from '../../db/sequelize';
+import { whenCommitted, withTenant } from '../../db/sequelize';
 import { authorizeType } from '../../lib/authorize';
 import type { CallerContext } from '../../lib/caller';
 import { verifyChain } from './audit.service';
@@ -102,7 +102,7 @@ export async function startChainCheck(deps: AppDeps, caller: CallerContext): Pro
     );
     return { row: created, started: true };
   });
-  if (started) void runCheck(deps, tenantId, row.id);
+  if (started) whenCommitted(() => void runCheck(deps, tenantId, row.id));
   return toCheck(row);
 }
 

@@ -4,7 +4,7 @@ import { QueryTypes } from 'sequelize';
 import type { DossierJob } from '@shared/types/dossier';
 import { editableStates } from '@shared/permit/states';
 import type { AppDeps } from '../../deps';
-import { withTenant } from '../../db/sequelize';
+import { whenCommitted, withTenant } from '../../db/sequelize';
 import { AppError } from '../../errors/app-error';
 import { authorizeRecord } from '../../lib/authorize';
 import type { CallerContext } from '../../lib/caller';
@@ -124,11 +124,14 @@ export async function startDossier(deps: AppDeps, caller: CallerContext, permitI
     );
     return { jobId: row.id, background: n > BACKGROUND_PHOTOS };
   });
-  const running = build(deps, caller, jobId, permitId);
   if (background) {
-    inFlight.add(running);
-    void running.finally(() => inFlight.delete(running));
-  } else await running;
+    // Under an Idempotency-Key the job row commits with the answer: the build starts after that.
+    whenCommitted(() => {
+      const running = build(deps, caller, jobId, permitId);
+      inFlight.add(running);
+      void running.finally(() => inFlight.delete(running));
+    });
+  } else await build(deps, caller, jobId, permitId);
   return dossierJob(deps, caller, permitId, jobId);
 }
 
