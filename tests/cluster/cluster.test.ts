@@ -202,13 +202,14 @@ describe('issue 20 part 2: load while processes die and the standby stops', () =
 
   it('when the standby is stopped and started under reads, then the reads go to the primary and none fails', async () => {
     const from = '198.51.100.11';
-    const reader = await signIn(backendUrl(0), AUTHORISER, from);
     const url = clusterState().url;
-    // Wait until every process is back and ready after the previous test.
+    // Wait until every process is back and ready after the previous test (which killed and restarted some),
+    // then sign in: before, the sign-in through process 1 could meet it still starting.
     for (const deadline = Date.now() + 30_000; Date.now() < deadline; await sleep(200)) {
       const ok = await Promise.all([0, 1, 2].map((i) => fetch(`${backendUrl(i)}/api/health/ready`).then((r) => r.ok, () => false)));
       if (ok.every(Boolean)) break;
     }
+    const reader = await signIn(backendUrl(0), AUTHORISER, from);
     const { standbyRoot, ports } = clusterState();
     const standby = startCluster({ root: standbyRoot, port: ports.standby });
     const statuses = new Map<number, number>();
