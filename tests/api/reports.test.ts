@@ -7,6 +7,7 @@ import { addDays, siteDay, startOfSiteDay } from '@shared/time/zone';
 import { startTestServer, type ApiClient, type TestServer } from '../fixtures/test-server';
 import { demoIds, users } from '../fixtures/permit-fixtures';
 import type { Ids } from '../fixtures/permit-journey';
+import { reportTuning } from '../../server/src/modules/reports/reports.service';
 
 const HOUR = 3_600_000;
 const DAY = 24 * HOUR;
@@ -152,6 +153,47 @@ describe('issue 21 part 4: the numbers for management', () => {
     srv.clock.set(new Date(now.getTime() + 1000));
     const fresh = await overview(authoriser);
     expect(fresh.suspensionsByCause.find((s) => s.cause === 'lead')?.suspensions).toBe(2);
+  });
+
+  it('finding 21.4g: when the figures took long to work out and the data changes, then the last answer comes at once with its time and the new one follows from the background', async () => {
+    const bumpHead = () =>
+      srv.deps.sequelize.query(`INSERT INTO audit_chain_heads (tenant_id, seq) VALUES (:t, 1) ON CONFLICT (tenant_id) DO UPDATE SET seq = audit_chain_heads.seq + 1`, { replacements: { t: ids.tenantId } });
+    const before = { ...reportTuning };
+    try {
+      // Every answer counts as slow here: the scale dataset's 365 days take seconds.
+      reportTuning.slowMs = -1;
+      const tick = () => srv.clock.set(new Date(srv.clock.now().getTime() + 1000));
+      /** Asks until the answer was made at the clock's present time (an older one may come first, as below). */
+      const current = async () => {
+        const at = srv.clock.now().toISOString();
+        let r = await overview(authoriser, '365');
+        for (const deadline = Date.now() + 10_000; r.generatedAt !== at && Date.now() < deadline; r = await overview(authoriser, '365')) await new Promise((ok) => setTimeout(ok, 100));
+        expect(r.generatedAt).toBe(at);
+        return r;
+      };
+      await bumpHead();
+      tick();
+      const first = await current();
+      const suspensions = first.suspensionsByCause.find((s) => s.cause === 'lead')!.suspensions;
+      await event(ids.tenantId, await uuid(), 'suspended', ago(2), 'contractor_lead');
+      await bumpHead();
+      tick();
+      // The data moved: the last answer comes at once, as it was, with the time it was made …
+      const stale = await overview(authoriser, '365');
+      expect(stale.generatedAt).toBe(first.generatedAt);
+      expect(stale.suspensionsByCause.find((s) => s.cause === 'lead')!.suspensions).toBe(suspensions);
+      // … and the new one, worked out in the background meanwhile, comes next.
+      const fresh = await current();
+      expect(fresh.suspensionsByCause.find((s) => s.cause === 'lead')!.suspensions).toBe(suspensions + 1);
+      // Past the time an old answer may stand in, the request waits for new figures.
+      reportTuning.staleForMs = 0;
+      await event(ids.tenantId, await uuid(), 'suspended', ago(2), 'contractor_lead');
+      await bumpHead();
+      const waited = await overview(authoriser, '365');
+      expect(waited.suspensionsByCause.find((s) => s.cause === 'lead')!.suspensions).toBe(suspensions + 2);
+    } finally {
+      Object.assign(reportTuning, before);
+    }
   });
 
   it('when the period is not one offered or the query names an unknown field, then it is refused with 400; a contractor lead and the control room are refused', async () => {

@@ -127,6 +127,14 @@ export async function withRequestTransaction<T>(sequelize: Sequelize, tenantId: 
  * request wrote: inside a request transaction it starts once that transaction ends without a rollback,
  * outside the request's context (its own transactions); otherwise at once.
  */
+/**
+ * Runs `work` outside any transaction of the caller: for background work started while a request's
+ * transaction is open, which must open its own (an inherited one would be committed under it).
+ */
+export function detached(work: () => void): void {
+  store.exit(work);
+}
+
 export function whenCommitted(work: () => void): void {
   const request = store.getStore()?.get(REQUEST_TRANSACTION) as (Transaction & { finished?: string }) | undefined;
   if (request && !request.finished) request.afterCommit(() => store.exit(work));

@@ -6,7 +6,7 @@ import { suspendedByKinds } from '@shared/permit/suspension';
 import { stageMilestones, suspendedStates } from '@shared/permit/states';
 import { addDays, siteDay } from '@shared/time/zone';
 import type { AppDeps } from '../../deps';
-import { withTenant } from '../../db/sequelize';
+import { detached, withTenant } from '../../db/sequelize';
 import { authorizeType } from '../../lib/authorize';
 import type { CallerContext } from '../../lib/caller';
 import { loadTenantSettings } from '../tenants/tenant-settings';
@@ -81,34 +81,38 @@ async function qualificationsExpiring(sequelize: Sequelize, tenantId: string, to
 const MAX_CACHED = 500;
 /** The longest an answer is reused, however quiet the data: missed checks and isolation ages move with the clock alone. */
 const MAX_AGE_MS = 10 * 60_000;
-const cache = new Map<string, { version: string; answer: ReportsOverview<Date> }>();
-
 /**
- * The management figures of the caller's tenant. Every change to tenant data appends to the tenant's
- * audit chain in its own transaction, so the chain head's sequence number is the data version (as for
- * the board): an answer is reused while it and the site day are unchanged, and for at most ten
- * minutes. Some figures move with the clock alone, with no new data: a check not done becomes missed
- * once its due time passes, an isolation grows older, the period's start slides on; the age limit
- * keeps those at most ten minutes behind.
+ * A tenant whose figures took longer than `slowMs` to work out gets its last answer at once, with the time
+ * it was made, while the new one is worked out in the background, for at most `staleForMs` after that
+ * answer was made (the page says "as of" that time). Small tenants always get figures made for the request.
  */
-export async function reportsOverview(deps: AppDeps, caller: CallerContext, q: ReportsQuery): Promise<ReportsOverview<Date>> {
-  const { tenantId } = caller.actor;
-  authorizeType(caller.ability, 'read', 'Report', { tenantId }, 'the reports');
+export const reportTuning = { slowMs: 500, staleForMs: 60 * 60_000 };
+
+interface Kept {
+  version: string;
+  answer: ReportsOverview<Date>;
+  /** How long working it out took. */
+  tookMs: number;
+}
+const cache = new Map<string, Kept>();
+/** Figures being worked out, one at a time per tenant and period, so that concurrent requests share one run. */
+const running = new Map<string, Promise<Kept>>();
+
+function keep(key: string, kept: Kept) {
+  cache.delete(key);
+  if (cache.size >= MAX_CACHED) cache.delete(cache.keys().next().value as string);
+  cache.set(key, kept);
+}
+
+async function workOut(deps: AppDeps, tenantId: string, days: number, version: string): Promise<Kept> {
   const { sequelize, clock } = deps;
-  return withTenant(sequelize, tenantId, async () => {
+  const started = Date.now();
+  const answer = await withTenant(sequelize, tenantId, async () => {
     const { timeZone, ventCheckIntervalMinutes, plugCheckIntervalMinutes } = await loadTenantSettings(sequelize, tenantId);
     const now = clock.now();
     const today = siteDay(now, timeZone);
-    const [head] = await sequelize.query<{ seq: string | number }>(`SELECT seq FROM audit_chain_heads WHERE tenant_id = :tenantId`, { replacements: { tenantId }, type: QueryTypes.SELECT });
-    const key = `${tenantId}|${q.days}`;
-    const version = `${head?.seq ?? 0}|${today}`;
-    const hit = cache.get(key);
-    const age = hit ? now.getTime() - hit.answer.generatedAt.getTime() : -1;
-    if (hit && hit.version === version && age >= 0 && age < MAX_AGE_MS) return hit.answer;
-
-    const days = Number(q.days);
     const since = new Date(now.getTime() - days * DAY_MS);
-    const answer: ReportsOverview<Date> = {
+    return {
       days,
       since,
       timeZone,
@@ -119,10 +123,55 @@ export async function reportsOverview(deps: AppDeps, caller: CallerContext, q: R
       timeliness: await timeliness(sequelize, tenantId, { since, now, ventMinutes: ventCheckIntervalMinutes, plugMinutes: plugCheckIntervalMinutes }),
       isolationsByAge: await isolationsByAge(sequelize, tenantId, today, timeZone),
       generatedAt: now,
-    };
-    cache.delete(key);
-    if (cache.size >= MAX_CACHED) cache.delete(cache.keys().next().value as string);
-    cache.set(key, { version, answer });
-    return answer;
+    } satisfies ReportsOverview<Date>;
   });
+  return { version, answer, tookMs: Date.now() - started };
+}
+
+/** Works the figures out once for all who ask at the same time, and keeps the answer. */
+function shared(deps: AppDeps, tenantId: string, days: number, key: string, version: string): Promise<Kept> {
+  let run = running.get(key);
+  if (!run) {
+    run = workOut(deps, tenantId, days, version)
+      .then((kept) => {
+        keep(key, kept);
+        return kept;
+      })
+      .finally(() => running.delete(key));
+    running.set(key, run);
+  }
+  return run;
+}
+
+/**
+ * The management figures of the caller's tenant. Every change to tenant data appends to the tenant's
+ * audit chain in its own transaction, so the chain head's sequence number is the data version (as for
+ * the board): an answer is reused while it and the site day are unchanged, and for at most ten
+ * minutes. Some figures move with the clock alone, with no new data: a check not done becomes missed
+ * once its due time passes, an isolation grows older, the period's start slides on; the age limit
+ * keeps those at most ten minutes behind. A large tenant's figures take seconds to work out: past
+ * `reportTuning.slowMs` the last answer is given at once (it carries when it was made) and the new one
+ * is worked out in the background, so the page stays quick (`reportTuning`).
+ */
+export async function reportsOverview(deps: AppDeps, caller: CallerContext, q: ReportsQuery): Promise<ReportsOverview<Date>> {
+  const { tenantId } = caller.actor;
+  authorizeType(caller.ability, 'read', 'Report', { tenantId }, 'the reports');
+  const { sequelize, clock } = deps;
+  const days = Number(q.days);
+  const key = `${tenantId}|${days}`;
+  const version = await withTenant(sequelize, tenantId, async () => {
+    const { timeZone } = await loadTenantSettings(sequelize, tenantId);
+    const [head] = await sequelize.query<{ seq: string | number }>(`SELECT seq FROM audit_chain_heads WHERE tenant_id = :tenantId`, { replacements: { tenantId }, type: QueryTypes.SELECT });
+    return `${head?.seq ?? 0}|${siteDay(clock.now(), timeZone)}`;
+  });
+  const hit = cache.get(key);
+  const age = hit ? clock.now().getTime() - hit.answer.generatedAt.getTime() : -1;
+  if (hit && hit.version === version && age >= 0 && age < MAX_AGE_MS) return hit.answer;
+  if (hit && hit.tookMs > reportTuning.slowMs && age >= 0 && age < reportTuning.staleForMs) {
+    detached(() => {
+      shared(deps, tenantId, days, key, version).catch((err: unknown) => deps.logger.warn({ err, tenantId, days }, 'report figures not worked out in the background'));
+    });
+    return hit.answer;
+  }
+  return (await shared(deps, tenantId, days, key, version)).answer;
 }
