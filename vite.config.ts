@@ -172,6 +172,8 @@ export default defineConfig({
       workbox: {
         // Fonts: only the Latin subsets the screens are written in; other scripts load when a name needs them.
         globPatterns: ['**/*.{js,css,html}', 'assets/noto-sans-latin-[0-9]*-normal-*.woff2'],
+        // The report page's charts need the server's figures to draw anything, so the charting library is not kept for offline use.
+        globIgnores: ['assets/report-chart-*.js'],
         navigateFallback: '/index.html',
         navigateFallbackDenylist: [/^\/api\//, /^\/dev\//],
         cleanupOutdatedCaches: true,

@@ -60,13 +60,13 @@ test('an unknown address inside the app shows the not-found page', async ({ page
 });
 
 const expectations: Record<string, { sees: string[]; hidden: string[] }> = {
-  'admin@bramblecote.example': { sees: ['People', 'Organisations', 'Qualifications'], hidden: [] },
-  'authoriser@bramblecote.example': { sees: ['Qualifications'], hidden: ['People', 'Organisations'] },
-  'control@bramblecote.example': { sees: ['My work'], hidden: ['People', 'Organisations', 'Qualifications'] },
-  'lead@oxbow-repair.example': { sees: ['My work'], hidden: ['People', 'Organisations', 'Qualifications'] },
-  'tech@oxbow-repair.example': { sees: ['My work'], hidden: ['People', 'Organisations', 'Qualifications'] },
-  'auditor@bramblecote.example': { sees: ['Qualifications'], hidden: ['People', 'Organisations'] },
-  'authoriser@harlowridge.example': { sees: ['Qualifications'], hidden: ['People', 'Organisations'] },
+  'admin@bramblecote.example': { sees: ['People', 'Organisations', 'Qualifications', 'Reports'], hidden: [] },
+  'authoriser@bramblecote.example': { sees: ['Qualifications', 'Reports'], hidden: ['People', 'Organisations'] },
+  'control@bramblecote.example': { sees: ['My work'], hidden: ['People', 'Organisations', 'Qualifications', 'Reports'] },
+  'lead@oxbow-repair.example': { sees: ['My work'], hidden: ['People', 'Organisations', 'Qualifications', 'Reports'] },
+  'tech@oxbow-repair.example': { sees: ['My work'], hidden: ['People', 'Organisations', 'Qualifications', 'Reports'] },
+  'auditor@bramblecote.example': { sees: ['Qualifications', 'Reports'], hidden: ['People', 'Organisations'] },
+  'authoriser@harlowridge.example': { sees: ['Qualifications', 'Reports'], hidden: ['People', 'Organisations'] },
 };
 
 for (const [email, { sees, hidden }] of Object.entries(expectations)) {

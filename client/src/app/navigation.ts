@@ -27,6 +27,7 @@ export const navItems: NavItem[] = [
   { to: '/admin/qualifications', label: 'Qualifications', subject: 'Qualification' },
   { to: '/admin/settings', label: 'Settings', subject: 'TenantSettings' },
   { to: '/audit', label: 'Audit log', subject: 'AuditEvent' },
+  { to: '/reports', label: 'Reports', subject: 'Report' },
   { to: '/calculator', label: 'Calculator', subject: 'Calculator' },
 ];
 

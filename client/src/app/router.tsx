@@ -38,6 +38,7 @@ const appRoutes: RouteObject[] = [
   { path: 'certificates', lazy: page(() => import('@client/features/certificates/pages/certificates-page')) },
   { path: 'certificates/:id', lazy: page(() => import('@client/features/certificates/pages/certificate-page')) },
   { path: 'audit', lazy: page(() => import('@client/features/audit/pages/audit-page')) },
+  { path: 'reports', lazy: page(() => import('@client/features/reports/pages/reports-page')) },
   { path: 'outbox', lazy: page(() => import('./routes/outbox')) },
   { path: '*', lazy: page(() => import('./routes/not-found')) },
 ];
