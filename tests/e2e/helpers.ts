@@ -55,6 +55,19 @@ export async function guideShot(page: Page, name: string, target?: Locator) {
   await page.screenshot({ path: `${shotDir}/guide-${name}.png` });
 }
 
+/**
+ * A virtual list (the live board) keeps only the rows near the screen in the page, so a row further down is
+ * not found until the page is scrolled to it: scroll from the top, most of a screen at a time, as a person
+ * would, until `row` is drawn.
+ */
+export async function scrollUntilDrawn(page: Page, row: Locator, timeout = 20_000) {
+  await page.evaluate(() => window.scrollTo(0, 0));
+  await expect(async () => {
+    if ((await row.count()) === 0) await page.evaluate(() => window.scrollBy(0, Math.round(window.innerHeight * 0.75)));
+    await expect(row).toHaveCount(1, { timeout: 500 });
+  }).toPass({ timeout });
+}
+
 /** The wall-clock time in a time zone, as a datetime-local field takes it (yyyy-MM-ddTHH:mm). */
 export function wallTime(at: Date, timeZone: string) {
   const parts = Object.fromEntries(

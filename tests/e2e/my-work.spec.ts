@@ -2,7 +2,7 @@ import AxeBuilder from '@axe-core/playwright';
 import { expect, test, type Browser, type Page } from '@playwright/test';
 import pg from 'pg';
 import { apiAs, ok, takeLive, transition, type ApiUser } from './api-helpers';
-import { DEMO_PASSWORD, guideShot, noSideScroll } from './helpers';
+import { DEMO_PASSWORD, guideShot, noSideScroll, scrollUntilDrawn } from './helpers';
 
 /*
  * "My work" (issue 18, "A start page per role") on a phone held in a gloved hand: each person lands on
@@ -132,15 +132,15 @@ test('the gas tester lands on My work and sees the live permit’s repeat gas te
   await page.context().close();
 });
 
-// Fails only after the whole browser suite has filled the shared database: the board's virtualised list drops
-// the MW-BV-1 row from the page while the test scrolls to it (it passes alone). Open finding, see the closing note.
-test.fixme('the control room lands on My work, sees the isolation and its remote inhibition to acknowledge, and on the board "Not acknowledged only" keeps it and both are acknowledged there', async ({ browser }) => {
+// FIXME 2: after the whole suite, other specs' isolations on the line put this row below the first screen of the
+// board, where a virtual list draws no row; the acknowledgement's link names the row and the board scrolls to it.
+test('the control room lands on My work, sees the isolation and its remote inhibition to acknowledge, and on the board "Not acknowledged only" keeps it and both are acknowledged there', async ({ browser }) => {
   const page = await phoneSignIn(browser, 'control@bramblecote.example');
   const item = list(page, 'to-acknowledge').getByRole('link', { name: /Acknowledge applied MW-BV-1/ }).filter({ hasText: made.toApply.number });
   await expect(item).toBeVisible();
   await expect(list(page, 'to-acknowledge').getByRole('link', { name: /Acknowledge remote inhibition MW-BV-1/ }).filter({ hasText: made.toApply.number })).toBeVisible();
   await item.tap();
-  await expect(page).toHaveURL(/\/board\?unacknowledged=true&pipelineId=[0-9a-f-]{36}$/);
+  await expect(page).toHaveURL(/\/board\?unacknowledged=true&pipelineId=[0-9a-f-]{36}#step-[0-9a-f-]{36}$/);
   const filter = page.getByRole('checkbox', { name: 'Not acknowledged only' });
   await expect(filter).toBeChecked();
   await noSideScroll(page);
@@ -163,10 +163,10 @@ test.fixme('the control room lands on My work, sees the isolation and its remote
   await dialog.getByRole('button', { name: 'Acknowledge', exact: true }).tap();
   await expect(dialog).toHaveCount(0);
   await expect(valve).toHaveCount(0);
-  // Off the filter, it is on the board, acknowledged.
+  // Off the filter, it is on the board, acknowledged (further down a long board: scrolled to, as a person would).
   await filter.tap();
   await expect(page).not.toHaveURL(/unacknowledged/);
-  await expect(valve).toHaveCount(1);
+  await scrollUntilDrawn(page, valve);
   await expect(valve).not.toHaveAttribute('data-unacknowledged', 'true');
   await page.context().close();
 });

@@ -235,9 +235,7 @@ test('when a permit address does not exist, then the not-found text shows', asyn
   await expect(page.getByRole('heading', { name: 'Not found' })).toBeVisible();
 });
 
-// Fails only after the whole browser suite has run (a live permit's row still listed under the Draft filter);
-// passes alone. Open finding, see the closing note.
-test.fixme('when the state filter is set, then it is kept in the address and the list shows only that state', async ({ browser }) => {
+test('when the state filter is set, then it is kept in the address and the list shows only that state', async ({ browser }) => {
   // A draft of its own, made through the API as the lead, so the test does not lean on the one above.
   const lead = await signedInPage(browser, LEAD);
   const [pipelines, organisations, csrf] = await Promise.all([
@@ -263,14 +261,20 @@ test.fixme('when the state filter is set, then it is kept in the address and the
 
   const page = await signedInPage(browser, AUTHORISER);
   await page.goto('/permits');
+  await expect(page.getByTestId('permit-row').first()).toBeVisible();
+  // FIXME 1: on a slow tablet (a loaded machine, or here a processor made eight times slower) the address bar
+  // says state=draft a moment before the page renders it; meanwhile every state's rows are still on screen.
+  const cpu = await page.context().newCDPSession(page);
+  await cpu.send('Emulation.setCPUThrottlingRate', { rate: 8 });
   await page.locator('summary').filter({ hasText: 'State' }).click();
   await page.getByRole('checkbox', { name: 'Draft', exact: true }).check();
   await expect(page).toHaveURL(/state=draft/);
-  // Until the filtered page arrives, the last rows stand in and the list says it is updating.
+  // Until the new address is rendered and its page has arrived, the last rows stand in and the list says it is updating.
   await expect(page.getByTestId('permit-list')).toHaveAttribute('aria-busy', 'false');
   const states = page.getByTestId('permit-row').getByTestId('permit-state');
   await expect(states.first()).toBeVisible();
   for (const text of await states.allInnerTexts()) expect(text).toBe('Draft');
+  await cpu.send('Emulation.setCPUThrottlingRate', { rate: 1 });
   await page.reload();
   await page.locator('summary').filter({ hasText: 'State' }).click();
   await expect(page.getByRole('checkbox', { name: 'Draft', exact: true })).toBeChecked();

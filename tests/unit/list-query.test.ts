@@ -9,7 +9,7 @@ import { permitsQuerySchema } from '@shared/schemas/permit.schema';
 import { usersQuerySchema } from '@shared/schemas/auth.schema';
 import { inventoryQuerySchema, pipelinesQuerySchema } from '@shared/schemas/assets.schema';
 import { boardQuerySchema } from '@shared/schemas/isolation.schema';
-import { patchParams, readListQuery, useListQuery } from '@client/lib/list-query';
+import { addressPending, patchParams, readListQuery, useListQuery } from '@client/lib/list-query';
 
 const PIPE = '3f1c2a34-5b6d-4e7f-8a9b-0c1d2e3f4a5b';
 const read = <S extends z.ZodType>(schema: S, address: string) => readListQuery(schema, new URLSearchParams(address));
@@ -78,5 +78,25 @@ describe('finding 2: list pages read their address with the server’s query sch
     }
     const html = renderToStaticMarkup(createElement(MemoryRouter, { initialEntries: ['/permits?state=live,flying&page=2&sort=colour'] }, createElement(Probe)));
     expect(JSON.parse(html.replace(/^<output>|<\/output>$/g, '').replace(/&quot;/g, '"'))).toEqual({ page: 2, pageSize: 25, state: ['live'], sort: 'updatedAt', dir: 'desc' });
+  });
+});
+
+describe('FIXME 1: a list never passes the rows of its last address for those of the new one', () => {
+  it('FIXME 1: when a state is ticked and the page still renders the old address, then the list counts as updating until the address it renders moves', () => {
+    const asked = { from: 'page=1', to: patchParams(new URLSearchParams('page=1'), { state: 'draft', page: undefined }).toString() };
+    // The address bar already says state=draft; the page renders page=1 until the router's transition lands.
+    expect(addressPending(asked, 'page=1')).toBe(true);
+    expect(addressPending(asked, 'state=draft')).toBe(false);
+    // Moved elsewhere meanwhile (Back, a link): not left waiting for an address that never comes.
+    expect(addressPending(asked, 'state=closed')).toBe(false);
+  });
+
+  it('FIXME 1: when nothing was asked, or a change asked for the address already shown, then the list is not updating', () => {
+    expect(addressPending(null, 'state=draft')).toBe(false);
+    expect(addressPending({ from: 'state=draft', to: 'state=draft' }, 'state=draft')).toBe(false);
+    function Probe() {
+      return createElement('output', null, String(useListQuery(permitsQuerySchema).pending));
+    }
+    expect(renderToStaticMarkup(createElement(MemoryRouter, { initialEntries: ['/permits?state=draft'] }, createElement(Probe)))).toBe('<output>false</output>');
   });
 });

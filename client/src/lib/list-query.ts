@@ -1,4 +1,4 @@
-import { useCallback, useMemo } from 'react';
+import { useCallback, useMemo, useState } from 'react';
 import { useSearchParams } from 'react-router-dom';
 import type { z } from 'zod';
 
@@ -60,15 +60,40 @@ export function patchParams(current: URLSearchParams, patch: Record<string, stri
   return next;
 }
 
+/** A change of the address the page asked for: the address it was asked on, and the one asked for. */
+export interface AskedAddress {
+  from: string;
+  to: string;
+}
+
+/**
+ * True while the page still renders the address a change was asked on. The router writes the new
+ * address to the address bar at once but renders it in a transition, which lags on a slow device:
+ * until then the list on screen belongs to the old address, so it must not pass for the new one.
+ * Any move of the address (to the one asked for, or elsewhere) ends it.
+ */
+export function addressPending(asked: AskedAddress | null, current: string): boolean {
+  return asked !== null && asked.from !== asked.to && asked.from === current;
+}
+
 /**
  * The list's query from the address bar (see readListQuery), with `set` to change some parameters
- * and `clear` to drop them all; both replace the history entry, so Back leaves the list.
+ * and `clear` to drop them all; both replace the history entry, so Back leaves the list. `pending`
+ * is true from a change until the page renders the new address (see addressPending).
  * Pass a schema defined once at module level: a new one on every render re-reads the address.
  */
 export function useListQuery<S extends z.ZodType>(schema: S) {
   const [params, setParams] = useSearchParams();
   const query = useMemo(() => readListQuery(schema, params), [schema, params]);
-  const set = useCallback((patch: Record<string, string | undefined>) => setParams((current) => patchParams(current, patch), { replace: true }), [setParams]);
-  const clear = useCallback(() => setParams(new URLSearchParams(), { replace: true }), [setParams]);
-  return { query, set, clear };
+  const [asked, setAsked] = useState<AskedAddress | null>(null);
+  const go = useCallback(
+    (next: URLSearchParams) => {
+      setAsked({ from: params.toString(), to: next.toString() });
+      setParams(next, { replace: true });
+    },
+    [params, setParams],
+  );
+  const set = useCallback((patch: Record<string, string | undefined>) => go(patchParams(params, patch)), [go, params]);
+  const clear = useCallback(() => go(new URLSearchParams()), [go]);
+  return { query, set, clear, pending: addressPending(asked, params.toString()) };
 }

@@ -1,8 +1,10 @@
 import { useCallback, useEffect, useMemo, useRef, useState, useSyncExternalStore, type FocusEvent, type RefObject } from 'react';
+import { useLocation } from 'react-router-dom';
 import { defaultRangeExtractor, useWindowVirtualizer, type Range } from '@tanstack/react-virtual';
 import type { LocationUnit } from '@shared/schemas/assets.schema';
 import type { BoardItem } from '@shared/types/board';
-import { boardEntries, groupByPipeline, type BoardEntry } from '../lib/board-entries';
+import { stepInHash } from '@client/lib/board-address';
+import { boardEntries, boardRowKey, groupByPipeline, type BoardEntry } from '../lib/board-entries';
 import { BoardGroupHeading } from './board-group-heading';
 import { BoardRow, type BoardAcknowledgement } from './board-row';
 
@@ -33,9 +35,9 @@ function estimate(entry: BoardEntry | undefined, layout: Layout) {
   return layout === 'wide' ? 112 : layout === 'medium' ? 230 : 420;
 }
 
-/** The list's distance from the top of the document, which the window virtualizer needs; it moves when anything above it changes height. */
+/** The list's distance from the top of the document, which the window virtualizer needs (null until measured); it moves when anything above it changes height. */
 function useDocumentTop(ref: RefObject<HTMLElement | null>) {
-  const [top, setTop] = useState(0);
+  const [top, setTop] = useState<number | null>(null);
   useEffect(() => {
     const el = ref.current;
     if (!el) return;
@@ -95,9 +97,23 @@ export function BoardList({ items, tenantId, unit, timeZone, now, onAcknowledge 
     estimateSize,
     getItemKey,
     overscan: 6,
-    scrollMargin: top,
+    scrollMargin: top ?? 0,
     rangeExtractor,
   });
+
+  // An address naming a step (My work's "Acknowledge …", see boardStepAddress) names the row the person came for:
+  // on a long board it is seldom on the first screen, and rows off the screen are not in the page, so bring it
+  // on screen once, as soon as it is on the board and the list's place on the page is known.
+  const step = stepInHash(useLocation().hash);
+  const wanted = step ? boardRowKey(step) : null;
+  const shown = useRef<string | null>(null);
+  useEffect(() => {
+    if (!wanted || shown.current === wanted || top === null) return;
+    const index = entries.findIndex((e) => e.key === wanted);
+    if (index < 0) return;
+    shown.current = wanted;
+    virtualizer.scrollToIndex(index, { align: 'center' });
+  }, [wanted, entries, top, virtualizer]);
 
   // Heights measured at another breakpoint are wrong for entries not on screen now; start again from the estimates.
   useEffect(() => {

@@ -23,12 +23,15 @@ export function groupByPipeline(items: BoardItem[]): BoardGroup[] {
   return [...groups.values()];
 }
 
+/** The key of a step's row on the board. */
+export const boardRowKey = (stepId: string) => `step:${stepId}`;
+
 /** Flattens the groups into one list (heading, then its rows) so headings scroll and virtualise like rows. */
 export function boardEntries(groups: BoardGroup[]): BoardEntry[] {
   const entries: BoardEntry[] = [];
   for (const group of groups) {
     entries.push({ kind: 'group', key: `pipeline:${group.pipelineId}`, group });
-    group.items.forEach((item, i) => entries.push({ kind: 'row', key: `step:${item.stepId}`, item, last: i === group.items.length - 1 }));
+    group.items.forEach((item, i) => entries.push({ kind: 'row', key: boardRowKey(item.stepId), item, last: i === group.items.length - 1 }));
   }
   return entries;
 }

@@ -5,6 +5,7 @@ import { timedCheckLabels } from '@shared/permit/due-times';
 import { formatInZone } from '@shared/time/zone';
 import type { MyWorkDue, MyWorkGasItem, MyWorkPermitItem, MyWorkPermitRef, MyWorkStepAction, MyWorkStepItem } from '@shared/types/my-work';
 import { PermitStateBadge, formatSpan, useNow } from '@client/features/permits';
+import { boardStepAddress } from '@client/lib/board-address';
 
 /** A list of "My work": its heading with the count, and the rows or, when empty, what that means in words. */
 export function WorkList({ id, title, count, empty, children }: { id: string; title: string; count: number; empty: string; children: ReactNode }) {
@@ -124,8 +125,7 @@ const stepAddress = (item: MyWorkStepItem) => {
       return `/permits/${item.permit.id}/steps/${item.stepId}/${item.action}`;
     case 'applied':
     case 'remote_inhibited':
-      // The board narrowed to what waits for the control room on that line, so the row is near the top.
-      return `/board?unacknowledged=true&pipelineId=${item.permit.pipelineId}`;
+      return boardStepAddress(item.permit.pipelineId, item.stepId);
     default:
       return `/permits/${item.permit.id}`;
   }

@@ -32,7 +32,7 @@ function RequestLink() {
 }
 
 export default function PermitsPage() {
-  const { query, set, clear } = useListQuery(permitsQuerySchema);
+  const { query, set, clear, pending } = useListQuery(permitsQuerySchema);
   const permits = usePermits(query);
   const { timeZone, unit } = useTenantSettings();
 
@@ -118,8 +118,9 @@ export default function PermitsPage() {
             </div>
           </EmptyState>
         ) : (
-          // While the rows of the previous filters stand in for the new ones, the list says it is updating.
-          <div data-testid="permit-list" aria-busy={permits.isPlaceholderData}>
+          // While the rows of the previous filters stand in for the new ones (the new address not yet
+          // rendered, or its page not yet arrived), the list says it is updating.
+          <div data-testid="permit-list" aria-busy={pending || permits.isPlaceholderData}>
             <div className="hidden md:block">
               <DataTable
                 caption="Permits to work"
