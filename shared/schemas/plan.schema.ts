@@ -3,6 +3,8 @@ import { isoDateField, isoDateTimeField, uuidSchema } from './common.schema';
 
 /** The longest stretch of time the week-ahead view reads at once. */
 export const planMaxDays = 62;
+/** How many of the permits one permit meets the week ahead names; the rest are counted (as the permit page's warning). */
+export const planOverlapsPerPermit = 10;
 
 /**
  * GET /api/plan: the permits whose validity window falls in [from, to). Without from and to the

@@ -61,7 +61,13 @@ export interface PlanAnswer<T = string> {
   permits: PlanPermit<T>[];
   /** Permits in the window beyond those listed (the list stops at planPermitLimit). */
   more: number;
+  /**
+   * Where permits meet: for each listed permit, its meetings with the first `planOverlapsPerPermit`
+   * other permits it meets (by number), at most a few thousand in all.
+   */
   overlaps: PlanOverlap<T>[];
+  /** Meetings beyond those in `overlaps` (a permit meeting many others, or the list's limit). */
+  overlapsMore: number;
   pipelines: PlanOption[];
   contractors: PlanOption[];
   generatedAt: T;

@@ -146,6 +146,30 @@ describe('issue 21 part 3: the week ahead', () => {
     expect(badId.status).toBe(400);
   });
 
+  it('finding PLAN-PERF: when a permit meets more than ten others, then the plan names the first ten by number, counts every one on the permit and counts the meetings not listed', async () => {
+    // Twelve permits sent for approval on one stretch at the same hours (written as the owner, numbered in order):
+    // each meets the other eleven, 66 meetings in all. Each permit names the first ten others by number, so the
+    // only meeting no permit names is the one of the eleventh and the twelfth.
+    await srv.deps.sequelize.query(
+      `INSERT INTO permits (tenant_id, number, state, kinds, title, pipeline_id, from_position, to_position, valid_from, valid_to, contractor_organisation_id, requester_user_id)
+       SELECT :t, 'PLAN-CAP-' || lpad(n::text, 2, '0'), 'requested', ARRAY['cold_work'], 'Plan cap test ' || n, :p, 60.0, 60.5, :from, :to, :o, u.id
+       FROM users u, generate_series(1, 12) n WHERE u.email = :email`,
+      { replacements: { t: ids.tenantId, p: ids.pipelineId, o: ids.oxbowId, from: at(5), to: at(6), email: users.lead } },
+    );
+    const answer = await plan();
+    const cap = (n: number) => `PLAN-CAP-${String(n).padStart(2, '0')}`;
+    const numbers = (from: number, to: number) => Array.from({ length: to - from + 1 }, (_, i) => cap(from + i));
+    const listed = answer.permits.filter((p) => p.number.startsWith('PLAN-CAP-'));
+    expect(listed).toHaveLength(12);
+    expect(listed.every((p) => p.workOverlaps === 11)).toBe(true);
+    expect(pairsOf(answer, 'work_range', cap(12))).toEqual(numbers(1, 10));
+    expect(pairsOf(answer, 'work_range', cap(11))).toEqual(numbers(1, 10));
+    expect(pairsOf(answer, 'work_range', cap(1))).toEqual(numbers(2, 12));
+    expect(answer.overlaps.filter((o) => o.first.number.startsWith('PLAN-CAP-') && o.second.number.startsWith('PLAN-CAP-'))).toHaveLength(65);
+    // Everything else in this tenant's plan meets fewer than ten others and is listed in full.
+    expect(answer.overlapsMore).toBe(1);
+  });
+
   it('when a contractor lead asks for the plan, then it is refused; the control room and the auditor may read it', async () => {
     expect((await crew.lead.get('/api/plan')).status).toBe(403);
     expect((await crew.control.get('/api/plan')).status).toBe(200);

@@ -1,5 +1,5 @@
 // The week ahead: permits per pipeline on a timeline, with the ones that meet.
-//   GET /api/plan   authoriser, control room, tenant admin, auditor (read Board): permits in the window, filtered by pipeline and contractor, and every overlap
+//   GET /api/plan   authoriser, control room, tenant admin, auditor (read Board): permits in the window, filtered by pipeline and contractor, and where they meet (per permit the first ten others, the rest counted)
 import { Router } from 'express';
 import { planQuerySchema } from '@shared/schemas/plan.schema';
 import type { AppDeps } from '../../deps';

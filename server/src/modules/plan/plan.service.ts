@@ -1,6 +1,6 @@
 import { QueryTypes } from 'sequelize';
-import type { PlanQuery } from '@shared/schemas/plan.schema';
-import type { PlanAnswer, PlanOption, PlanOverlap, PlanPermit } from '@shared/types/plan';
+import { planOverlapsPerPermit, type PlanQuery } from '@shared/schemas/plan.schema';
+import type { PlanAnswer, PlanOption, PlanOverlap, PlanPermit, PlanPermitRef } from '@shared/types/plan';
 import { notPlannedStates, workOverlapStates } from '@shared/permit/states';
 import { statesFrom } from '@shared/permit/state-machine';
 import { addDays, siteDay, startOfSiteDay } from '@shared/time/zone';
@@ -9,39 +9,32 @@ import { withTenant } from '../../db/sequelize';
 import { authorizeType } from '../../lib/authorize';
 import type { CallerContext } from '../../lib/caller';
 import { loadTenantSettings } from '../tenants/tenant-settings';
+import { findMeetings, type MeetingPermit } from './plan-meetings';
 
 /** The most permits one answer lists; the rest are counted. A timeline of more is no longer readable. */
 export const planPermitLimit = 1000;
-/** The most meetings of two permits one answer lists. */
-const overlapLimit = 2000;
+/** The most meetings of two permits one answer lists; the rest are counted. */
+export const planOverlapLimit = 2000;
 const daysBack = 7;
 const daysAhead = 14;
 
-
-interface PermitRow extends PlanPermit<Date> {
-  total: number;
-}
-interface OverlapRow {
-  kind: PlanOverlap['kind'];
-  first: PlanOverlap['first'];
-  second: PlanOverlap['second'];
+type PermitRow = Omit<PlanPermit<Date>, 'workOverlaps' | 'sharedPoints'> & { total: number };
+interface PointRow {
+  id: string;
   pipelineId: string;
-  pipelineName: string;
-  fromPosition: number;
-  toPosition: number;
-  pointLabel: string | null;
-  from: Date;
-  to: Date;
+  position: number;
+  tagCode: string;
 }
 
 /**
- * The permits whose validity window meets [from, to), by pipeline and position, with every pair of
- * them that meets: work ranges overlapping on one pipeline, or an isolation planned or in place on
- * the same point, while both windows are open (simultaneous operations, HSE HSG250). Pairs count only
- * between permits sent for approval and not yet handed back, the same states the permit page warns
- * about (`workOverlapStates`). The contractor filter narrows the permits listed, never the pairs:
- * another contractor's permit on the same stretch is what the meeting has to see. Served by
- * `permits_plan_window_idx` (migration 0220).
+ * The permits whose validity window meets [from, to), by pipeline and position, with where they meet:
+ * work ranges overlapping on one pipeline, or an isolation planned or in place on the same point, while
+ * both windows are open (simultaneous operations, HSE HSG250). Meetings count only between permits sent
+ * for approval and not yet handed back, the same states the permit page warns about (`workOverlapStates`).
+ * The contractor filter narrows the permits listed, never the meetings: another contractor's permit on
+ * the same stretch is what the meeting has to see. Each permit carries the count of the permits it meets;
+ * the meetings listed are, per permit, those with the first `planOverlapsPerPermit` by number, the rest
+ * counted (`plan-meetings.ts` finds them). Served by `permits_plan_window_idx` (migration 0220).
  */
 export async function planFor(deps: AppDeps, caller: CallerContext, q: PlanQuery): Promise<PlanAnswer<Date>> {
   const { tenantId } = caller.actor;
@@ -54,70 +47,40 @@ export async function planFor(deps: AppDeps, caller: CallerContext, q: PlanQuery
     const to = q.to ? new Date(q.to) : startOfSiteDay(addDays(today, daysAhead), timeZone);
     const replacements = {
       tenantId, from, to, pipelineId: q.pipelineId ?? null, contractorId: q.contractorId ?? null,
-      notPlanned: notPlannedStates, awaitingApproval: statesFrom('approve'), active: workOverlapStates, permitLimit: planPermitLimit, overlapLimit,
+      notPlanned: notPlannedStates, awaitingApproval: statesFrom('approve'), active: workOverlapStates, permitLimit: planPermitLimit,
     };
-    const window = `
-      win AS (
-        SELECT p.id, p.number, p.title, p.state, p.pipeline_id, p.contractor_organisation_id, p.from_position, p.to_position, p.valid_from, p.valid_to,
-               p.state IN (:active) AS active
-        FROM permits p
-        WHERE p.tenant_id = :tenantId AND p.valid_to > :from AND p.valid_from < :to AND p.state NOT IN (:notPlanned)
-          AND (CAST(:pipelineId AS uuid) IS NULL OR p.pipeline_id = CAST(:pipelineId AS uuid))),
-      shown AS (SELECT * FROM win WHERE CAST(:contractorId AS uuid) IS NULL OR contractor_organisation_id = CAST(:contractorId AS uuid)),
-      ranges AS (
-        SELECT a.id AS a_id, b.id AS b_id, a.pipeline_id, greatest(a.from_position, b.from_position) AS from_pos, least(a.to_position, b.to_position) AS to_pos,
-               greatest(a.valid_from, b.valid_from) AS t_from, least(a.valid_to, b.valid_to) AS t_to
-        FROM win a JOIN win b ON b.pipeline_id = a.pipeline_id AND a.id < b.id
-          AND a.from_position <= b.to_position AND b.from_position <= a.to_position
-          AND a.valid_from < b.valid_to AND b.valid_from < a.valid_to
-        WHERE a.active AND b.active),
-      steps AS (
-        SELECT DISTINCT s.permit_id, s.point_id FROM isolation_steps s JOIN win w ON w.id = s.permit_id
-        WHERE s.tenant_id = :tenantId AND w.active AND s.status <> 'removed' AND s.point_id IS NOT NULL),
-      points AS (
-        SELECT a.id AS a_id, b.id AS b_id, sa.point_id, greatest(a.valid_from, b.valid_from) AS t_from, least(a.valid_to, b.valid_to) AS t_to
-        FROM steps sa JOIN steps sb ON sb.point_id = sa.point_id AND sa.permit_id < sb.permit_id
-        JOIN win a ON a.id = sa.permit_id JOIN win b ON b.id = sb.permit_id
-        WHERE a.valid_from < b.valid_to AND b.valid_from < a.valid_to),
-      range_counts AS (SELECT id, count(*)::int AS n FROM (SELECT a_id AS id FROM ranges UNION ALL SELECT b_id FROM ranges) x GROUP BY id),
-      point_counts AS (
-        SELECT id, count(DISTINCT other)::int AS n FROM (SELECT a_id AS id, b_id AS other FROM points UNION ALL SELECT b_id, a_id FROM points) x GROUP BY id)`;
+    const inWindow = `p.tenant_id = :tenantId AND p.valid_to > :from AND p.valid_from < :to
+          AND (CAST(:pipelineId AS uuid) IS NULL OR p.pipeline_id = CAST(:pipelineId AS uuid))`;
 
-    const permits = await sequelize.query<PermitRow>(
-      `WITH ${window}
-       SELECT s.id, s.number, s.title, s.state, s.pipeline_id AS "pipelineId", pl.name AS "pipelineName",
-              s.contractor_organisation_id AS "contractorId", o.name AS "contractorName",
-              s.from_position::float8 AS "fromPosition", s.to_position::float8 AS "toPosition", s.valid_from AS "validFrom", s.valid_to AS "validTo",
-              s.state IN (:awaitingApproval) AS "awaitingApproval",
-              coalesce(rc.n, 0) AS "workOverlaps", coalesce(pc.n, 0) AS "sharedPoints",
-              count(*) OVER ()::int AS total
-       FROM shown s
-       LEFT JOIN range_counts rc ON rc.id = s.id
-       LEFT JOIN point_counts pc ON pc.id = s.id
-       JOIN pipelines pl ON pl.tenant_id = :tenantId AND pl.id = s.pipeline_id
-       JOIN organisations o ON o.tenant_id = :tenantId AND o.id = s.contractor_organisation_id
-       ORDER BY pl.name, s.from_position, s.valid_from, s.number
-       LIMIT :permitLimit`,
+    // The permits that can meet: where and when each one works (the window as PostgreSQL compares it, in
+    // microseconds) and the points it isolates, read per permit through its steps' index.
+    const meeting = await sequelize.query<MeetingPermit>(
+      `SELECT p.id, p.number, p.pipeline_id AS "pipelineId", p.from_position::float8 AS "fromPosition", p.to_position::float8 AS "toPosition",
+              (extract(epoch FROM p.valid_from) * 1000000)::float8 AS "validFrom", (extract(epoch FROM p.valid_to) * 1000000)::float8 AS "validTo",
+              (CAST(:contractorId AS uuid) IS NULL OR p.contractor_organisation_id = CAST(:contractorId AS uuid)) AS shown,
+              ARRAY(SELECT DISTINCT s.point_id FROM isolation_steps s
+                    WHERE s.tenant_id = p.tenant_id AND s.permit_id = p.id AND s.status <> 'removed' AND s.point_id IS NOT NULL) AS "pointIds"
+       FROM permits p WHERE ${inWindow} AND p.state IN (:active)`,
       { replacements, type: QueryTypes.SELECT },
     );
+    const meetings = findMeetings(meeting, planOverlapsPerPermit);
+    const counts = new Map(meeting.map((p, i) => [p.id, { workOverlaps: meetings.workOverlaps[i], sharedPoints: meetings.sharedPoints[i] }]));
 
-    const ref = (alias: string) =>
-      `jsonb_build_object('id', ${alias}.id, 'number', ${alias}.number, 'title', ${alias}.title, 'contractorName', (SELECT name FROM organisations WHERE tenant_id = :tenantId AND id = ${alias}.contractor_organisation_id))`;
-    const overlaps = await sequelize.query<OverlapRow>(
-      `WITH ${window},
-       pairs AS (
-         SELECT 'work_range' AS kind, r.a_id, r.b_id, r.pipeline_id, r.from_pos::float8 AS from_pos, r.to_pos::float8 AS to_pos, NULL::text AS label, r.t_from, r.t_to FROM ranges r
-         UNION ALL
-         SELECT 'shared_point', pt.a_id, pt.b_id, ip.pipeline_id, ip.position::float8, ip.position::float8, ip.tag_code, pt.t_from, pt.t_to
-         FROM points pt JOIN isolation_points ip ON ip.tenant_id = :tenantId AND ip.id = pt.point_id)
-       SELECT x.kind, ${ref('a')} AS first, ${ref('b')} AS second, x.pipeline_id AS "pipelineId", pl.name AS "pipelineName",
-              x.from_pos AS "fromPosition", x.to_pos AS "toPosition", x.label AS "pointLabel", x.t_from AS "from", x.t_to AS "to"
-       FROM pairs x
-       JOIN win a ON a.id = x.a_id JOIN win b ON b.id = x.b_id
-       JOIN pipelines pl ON pl.tenant_id = :tenantId AND pl.id = x.pipeline_id
-       WHERE x.a_id IN (SELECT id FROM shown) OR x.b_id IN (SELECT id FROM shown)
-       ORDER BY pl.name, x.from_pos, x.t_from, a.number, b.number
-       LIMIT :overlapLimit`,
+    const permits = await sequelize.query<PermitRow>(
+      // The names come from scalar subqueries rather than joins: joined, the planner walks the pipelines in
+      // name order hoping to stop early at the limit, and compares every permit with every pipeline.
+      `SELECT p.id, p.number, p.title, p.state, p.pipeline_id AS "pipelineId",
+              (SELECT name FROM pipelines WHERE tenant_id = :tenantId AND id = p.pipeline_id) AS "pipelineName",
+              p.contractor_organisation_id AS "contractorId",
+              (SELECT name FROM organisations WHERE tenant_id = :tenantId AND id = p.contractor_organisation_id) AS "contractorName",
+              p.from_position::float8 AS "fromPosition", p.to_position::float8 AS "toPosition", p.valid_from AS "validFrom", p.valid_to AS "validTo",
+              p.state IN (:awaitingApproval) AS "awaitingApproval",
+              count(*) OVER ()::int AS total
+       FROM permits p
+       WHERE ${inWindow} AND p.state NOT IN (:notPlanned)
+         AND (CAST(:contractorId AS uuid) IS NULL OR p.contractor_organisation_id = CAST(:contractorId AS uuid))
+       ORDER BY "pipelineName", p.from_position, p.valid_from, p.number
+       LIMIT :permitLimit`,
       { replacements, type: QueryTypes.SELECT },
     );
 
@@ -127,17 +90,98 @@ export async function planFor(deps: AppDeps, caller: CallerContext, q: PlanQuery
       type: QueryTypes.SELECT,
     });
 
+    const overlaps = await listOverlaps(deps, tenantId, meeting, meetings.listed, pipelines);
     const total = permits[0]?.total ?? 0;
     return {
       from,
       to,
       timeZone,
-      permits: permits.map(({ total: _total, ...p }) => p),
+      permits: permits.map(({ total: _total, ...p }) => ({ ...p, workOverlaps: counts.get(p.id)?.workOverlaps ?? 0, sharedPoints: counts.get(p.id)?.sharedPoints ?? 0 })),
       more: Math.max(0, total - permits.length),
       overlaps,
+      overlapsMore: meetings.total - overlaps.length,
       pipelines,
       contractors,
       generatedAt: clock.now(),
     };
   });
+}
+
+/**
+ * The meetings to list, in words' order: by pipeline, along the line, by time, then by the two numbers;
+ * at most `planOverlapLimit`. Names and points are read only for the meetings listed.
+ */
+async function listOverlaps(
+  deps: AppDeps,
+  tenantId: string,
+  permits: readonly MeetingPermit[],
+  listed: ReturnType<typeof findMeetings>['listed'],
+  pipelines: readonly PlanOption[],
+): Promise<PlanOverlap<Date>[]> {
+  if (!listed.length) return [];
+  const { sequelize } = deps;
+  const pointIds = [...new Set(listed.flatMap((m) => (m.pointId ? [m.pointId] : [])))];
+  const points = new Map(
+    (pointIds.length
+      ? await sequelize.query<PointRow>(
+          `SELECT id, pipeline_id AS "pipelineId", position::float8 AS position, tag_code AS "tagCode" FROM isolation_points WHERE tenant_id = :tenantId AND id IN (:pointIds)`,
+          { replacements: { tenantId, pointIds }, type: QueryTypes.SELECT },
+        )
+      : []
+    ).map((p) => [p.id, p]),
+  );
+  const lineName = new Map(pipelines.map((p) => [p.id, p.name]));
+  const at = (us: number) => new Date(Math.trunc(us / 1000));
+  const candidates = listed.map((m) => {
+    const a = permits[m.first];
+    const b = permits[m.second];
+    const point = m.pointId ? points.get(m.pointId) : undefined;
+    const pipelineId = point ? point.pipelineId : a.pipelineId;
+    return {
+      m,
+      pipelineId,
+      pipelineName: lineName.get(pipelineId) ?? '',
+      fromPosition: point ? point.position : Math.max(a.fromPosition, b.fromPosition),
+      toPosition: point ? point.position : Math.min(a.toPosition, b.toPosition),
+      pointLabel: point ? point.tagCode : null,
+      from: Math.max(a.validFrom, b.validFrom),
+      to: Math.min(a.validTo, b.validTo),
+      numbers: [a.number, b.number] as const,
+    };
+  });
+  const text = (x: string, y: string) => (x < y ? -1 : x > y ? 1 : 0);
+  candidates.sort(
+    (x, y) =>
+      text(x.pipelineName, y.pipelineName) ||
+      x.fromPosition - y.fromPosition ||
+      x.from - y.from ||
+      text(x.numbers[0], y.numbers[0]) ||
+      text(x.numbers[1], y.numbers[1]) ||
+      text(x.pointLabel ?? '', y.pointLabel ?? ''),
+  );
+  const chosen = candidates.slice(0, planOverlapLimit);
+  const ids = [...new Set(chosen.flatMap(({ m }) => [permits[m.first].id, permits[m.second].id]))];
+  const refs = new Map(
+    (
+      await sequelize.query<PlanPermitRef>(
+        `SELECT p.id, p.number, p.title, o.name AS "contractorName" FROM permits p
+         JOIN organisations o ON o.tenant_id = p.tenant_id AND o.id = p.contractor_organisation_id
+         WHERE p.tenant_id = :tenantId AND p.id IN (:ids)`,
+        { replacements: { tenantId, ids }, type: QueryTypes.SELECT },
+      )
+    ).map((r) => [r.id, r]),
+  );
+  const ref = (i: number): PlanPermitRef => refs.get(permits[i].id)!;
+  return chosen.map((c) => ({
+    kind: c.m.kind,
+    first: ref(c.m.first),
+    second: ref(c.m.second),
+    pipelineId: c.pipelineId,
+    pipelineName: c.pipelineName,
+    fromPosition: c.fromPosition,
+    toPosition: c.toPosition,
+    pointLabel: c.pointLabel,
+    from: at(c.from),
+    to: at(c.to),
+  }));
 }

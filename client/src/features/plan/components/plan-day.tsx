@@ -2,6 +2,7 @@ import { Link } from 'react-router-dom';
 import { formatPosition } from '@shared/assets/format';
 import { permitStateLabels } from '@shared/permit/states';
 import type { LocationUnit } from '@shared/schemas/assets.schema';
+import { planOverlapsPerPermit } from '@shared/schemas/plan.schema';
 import { endOfSiteDay, formatInZone, startOfSiteDay } from '@shared/time/zone';
 import type { PlanOverlap, PlanPermit } from '@shared/types/plan';
 import { overlapWords, permitFlags } from '../lib/plan-words';
@@ -10,6 +11,8 @@ interface Props {
   day: string;
   permits: PlanPermit[];
   overlaps: PlanOverlap[];
+  /** Meetings in the plan's weeks that the answer counts without listing. */
+  overlapsMore: number;
   timeZone: string;
   unit: LocationUnit;
 }
@@ -20,7 +23,7 @@ const dayTitle = (day: string) => new Date(`${day}T12:00:00Z`).toLocaleDateStrin
 const meetsDay = (from: string, to: string, dayStart: number, dayEnd: number) => Date.parse(from) < dayEnd && Date.parse(to) > dayStart;
 
 /** One site day for the morning meeting: the permits open that day and where they meet, printable as it stands. */
-export function PlanDay({ day, permits, overlaps, timeZone, unit }: Props) {
+export function PlanDay({ day, permits, overlaps, overlapsMore, timeZone, unit }: Props) {
   const dayStart = startOfSiteDay(day, timeZone).getTime();
   const dayEnd = endOfSiteDay(day, timeZone).getTime();
   const open = permits.filter((p) => meetsDay(p.validFrom, p.validTo, dayStart, dayEnd));
@@ -31,8 +34,15 @@ export function PlanDay({ day, permits, overlaps, timeZone, unit }: Props) {
         Morning meeting: {dayTitle(day)}
       </h2>
       <p className="text-sm">
-        {open.length} permit{open.length === 1 ? '' : 's'} open this day, {meeting.length} place{meeting.length === 1 ? '' : 's'} where permits meet.
+        {open.length} permit{open.length === 1 ? '' : 's'} open this day, {meeting.length} place{meeting.length === 1 ? '' : 's'} where permits meet
+        {overlapsMore ? ' listed' : ''}.
       </p>
+      {overlapsMore ? (
+        <p className="text-sm">
+          Not every place is listed: where a permit meets more than {planOverlapsPerPermit} others, only the first {planOverlapsPerPermit} by permit number are named. The count
+          beside each permit below is the full number.
+        </p>
+      ) : null}
       {meeting.length ? (
         <div>
           <h3 className="font-semibold">Where permits meet</h3>

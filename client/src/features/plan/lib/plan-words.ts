@@ -12,6 +12,11 @@ export function overlapWords(o: PlanOverlap, unit: LocationUnit, timeZone: strin
   return `${who} both work ${where} on ${o.pipelineName}, ${when}.`;
 }
 
+/** "1 place", "1,003,168 places": a count with its word, the thousands grouped for reading aloud. */
+export function countWords(n: number, word: string): string {
+  return `${n.toLocaleString('en-GB')} ${word}${n === 1 ? '' : 's'}`;
+}
+
 /** The marks a permit carries on the timeline, in words (never colour alone). */
 export function permitFlags(p: PlanPermit): string[] {
   const flags: string[] = [];

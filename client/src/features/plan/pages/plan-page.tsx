@@ -1,5 +1,5 @@
 import { useMemo } from 'react';
-import { planPageQuerySchema } from '@shared/schemas/plan.schema';
+import { planOverlapsPerPermit, planPageQuerySchema } from '@shared/schemas/plan.schema';
 import { formatInZone, siteDay } from '@shared/time/zone';
 import { Button } from '@client/components/ui/button';
 import { SelectField, TextField } from '@client/components/ui/field';
@@ -11,7 +11,7 @@ import { useNow } from '@client/features/permits';
 import { usePlan } from '../api/get-plan';
 import { PlanTimeline } from '../components/plan-timeline';
 import { PlanDay } from '../components/plan-day';
-import { overlapWords } from '../lib/plan-words';
+import { countWords, overlapWords } from '../lib/plan-words';
 
 export default function PlanPage() {
   const { query, set } = useListQuery(planPageQuerySchema);
@@ -23,6 +23,9 @@ export default function PlanPage() {
   const unit = me?.activeTenant?.locationUnit ?? 'mi';
   const data = plan.data;
   const awaiting = data?.permits.filter((p) => p.awaitingApproval).length ?? 0;
+  // Every meeting, listed or only counted (a permit that meets many others names the first few).
+  const meetings = data ? data.overlaps.length + data.overlapsMore : 0;
+  const listed = Math.min(50, data?.overlaps.length ?? 0);
 
   return (
     <>
@@ -68,7 +71,7 @@ export default function PlanPage() {
         {data ? (
           <p className="text-sm text-ink-soft print:hidden" aria-live="polite" data-testid="plan-summary">
             {data.permits.length} permit{data.permits.length === 1 ? '' : 's'}
-            {data.more ? ` (and ${data.more} more not drawn)` : ''}, {data.overlaps.length} place{data.overlaps.length === 1 ? '' : 's'} where permits meet, {awaiting} waiting for
+            {data.more ? ` (and ${data.more} more not drawn)` : ''}, {countWords(meetings, 'place')} where permits meet, {awaiting} waiting for
             approval · from {formatInZone(data.from, timeZone)} to {formatInZone(data.to, timeZone)} · as of {formatInZone(data.generatedAt, timeZone)}
           </p>
         ) : null}
@@ -83,10 +86,10 @@ export default function PlanPage() {
           </Notice>
         ) : data ? (
           <>
-            {query.day ? <PlanDay day={query.day} permits={data.permits} overlaps={data.overlaps} timeZone={timeZone} unit={unit} /> : null}
+            {query.day ? <PlanDay day={query.day} permits={data.permits} overlaps={data.overlaps} overlapsMore={data.overlapsMore} timeZone={timeZone} unit={unit} /> : null}
             <div className={query.day ? 'print:hidden' : ''}>
-              {data.overlaps.length ? (
-                <Notice tone="danger" title={`Permits meet in ${data.overlaps.length} place${data.overlaps.length === 1 ? '' : 's'}`}>
+              {meetings ? (
+                <Notice tone="danger" title={`Permits meet in ${countWords(meetings, 'place')}`}>
                   <ul className="list-disc pl-5" data-testid="plan-overlaps">
                     {data.overlaps.slice(0, 50).map((o) => (
                       <li key={`${o.kind}-${o.first.id}-${o.second.id}-${o.pointLabel ?? ''}`}>
@@ -95,7 +98,14 @@ export default function PlanPage() {
                       </li>
                     ))}
                   </ul>
-                  {data.overlaps.length > 50 ? <p>And {data.overlaps.length - 50} more: filter by pipeline to see them all.</p> : null}
+                  {data.overlapsMore ? (
+                    <p data-testid="plan-overlaps-more">
+                      And {countWords(meetings - listed, 'more place')}. Where a permit meets more than {planOverlapsPerPermit} others, only the first {planOverlapsPerPermit} by permit
+                      number are listed; the count on each permit is the full number. Filter by pipeline or contractor to narrow the list.
+                    </p>
+                  ) : meetings > listed ? (
+                    <p>And {meetings - listed} more: filter by pipeline to see them all.</p>
+                  ) : null}
                 </Notice>
               ) : null}
               {!data.permits.length ? (
