@@ -7,6 +7,7 @@ import { createPgPool, createReplicaSequelize, createSequelize } from './db/sequ
 import { migrateUp } from './db/migrator';
 import { systemClock } from './lib/clock';
 import { drainState } from './lib/draining';
+import { RestartBackoff } from './lib/restart-backoff';
 // Type only: the mailbox and its SMTP catcher (a development package) load on demand below, never in production.
 import type { DevMailbox } from './modules/dev-mail/dev-mailbox';
 import type { AppDeps } from './deps';
@@ -31,7 +32,8 @@ function configOrExit() {
  * like `npm run db:migrate`), then one server process per core, which share the port (node:cluster)
  * and nothing in memory that another would need (sessions, attempt counters, uploads and the board's
  * version are in PostgreSQL or the bucket). A process that dies is started again. Still per process:
- * the development mailbox (so with DEV_MAILBOX=on one process runs).
+ * the development mailbox (so with DEV_MAILBOX=on one process runs). Restarts back off (lib/restart-backoff.ts):
+ * a process that fails at start is started again ever more slowly, not in a tight loop.
  */
 async function primary(config: Config, processes: number) {
   const logger = createLogger(config.LOG_LEVEL);
@@ -39,13 +41,20 @@ async function primary(config: Config, processes: number) {
   await migrateUp(owner);
   await owner.close();
   let stopping = false;
+  const backoffs = new Map<number, RestartBackoff>();
   const fork = (index: number) => {
+    const backoff = backoffs.get(index) ?? new RestartBackoff();
+    backoffs.set(index, backoff);
+    backoff.started(Date.now());
     // Every process runs the background loops; each round is elected by an advisory lock (workers.ts).
     const worker = cluster.fork({ HP_MIGRATED: '1', WORKERS: config.WORKERS });
     worker.on('exit', (code, signal) => {
       if (stopping) return;
-      logger.warn({ code, signal, index }, 'a server process ended; starting another');
-      setTimeout(() => fork(index), 500);
+      const delayMs = backoff.ended(Date.now());
+      logger.warn({ code, signal, index, delayMs }, `a server process ended; starting another in ${delayMs / 1000} s`);
+      setTimeout(() => {
+        if (!stopping) fork(index);
+      }, delayMs);
     });
   };
   for (let i = 0; i < processes; i++) fork(i);

@@ -14,6 +14,7 @@ import { pageQuerySchema, uuidSchema } from '@shared/schemas/common.schema';
 import type { AppDeps } from '../../deps';
 import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
+import { requireAbility, requireRecordAbility } from '../../middleware/require-ability';
 import { clientIp } from '../../lib/client-ip';
 import type { CallerContext } from '../../lib/caller';
 import * as admin from './admin.service';
@@ -35,20 +36,21 @@ export function createAdminRouter(deps: AppDeps) {
   const router = Router();
   router.use(['/organisations', '/users', '/memberships', '/qualifications', '/invitations'], requireTenant);
   const caller = (req: Request): CallerContext => ({ ...actorOf(req), ip: clientIp(req) });
+  const readMembership = (req: Request, id: string) => admin.readMembership(deps, caller(req), id);
 
   router.get('/organisations', async (req, res) => {
     res.json(await admin.listOrganisations(deps, caller(req), parse(pageQuerySchema, req.query, 'query')));
   });
 
-  router.post('/organisations', async (req, res) => {
+  router.post('/organisations', requireAbility('create', 'Organisation', 'organisations'), async (req, res) => {
     res.status(201).json(await admin.createOrganisation(deps, caller(req), parse(organisationInputSchema, req.body, 'organisation')));
   });
 
-  router.get('/users', async (req, res) => {
+  router.get('/users', requireAbility('read', ['User', 'Membership'], 'people'), async (req, res) => {
     res.json(await admin.listUsers(deps, caller(req), parse(usersQuerySchema, req.query, 'query')));
   });
 
-  router.patch('/memberships/:id', async (req, res) => {
+  router.patch('/memberships/:id', requireRecordAbility('update', 'Membership', 'membership', readMembership), async (req, res) => {
     const c = caller(req);
     const { id } = parse(idParams, req.params, 'path');
     const { role } = parse(membershipRoleInputSchema, req.body, 'membership');
@@ -57,7 +59,7 @@ export function createAdminRouter(deps: AppDeps) {
     res.json(membership);
   });
 
-  router.delete('/memberships/:id', async (req, res) => {
+  router.delete('/memberships/:id', requireRecordAbility('delete', 'Membership', 'membership', readMembership), async (req, res) => {
     const c = caller(req);
     const { id } = parse(idParams, req.params, 'path');
     await admin.removeMembership(deps, c, id);
@@ -65,15 +67,15 @@ export function createAdminRouter(deps: AppDeps) {
     res.status(204).end();
   });
 
-  router.get('/qualifications', async (req, res) => {
+  router.get('/qualifications', requireAbility('read', 'Qualification', 'qualifications'), async (req, res) => {
     res.json(await admin.listQualifications(deps, caller(req), parse(pageQuerySchema.extend({ userId: uuidSchema.optional() }), req.query, 'query')));
   });
 
-  router.post('/qualifications', async (req, res) => {
+  router.post('/qualifications', requireAbility('create', 'Qualification', 'qualifications'), async (req, res) => {
     res.status(201).json(await admin.createQualification(deps, caller(req), parse(qualificationBodySchema, req.body, 'qualification')));
   });
 
-  router.post('/invitations', async (req, res) => {
+  router.post('/invitations', requireAbility('create', 'Invitation', 'invitations'), async (req, res) => {
     const input = parse(inviteInputSchema, req.body, 'invitation');
     await admin.inviteMember(deps, caller(req), input);
     res.status(202).json({ ok: true, email: input.email });

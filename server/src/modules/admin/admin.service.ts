@@ -111,6 +111,18 @@ const adminActor = (caller: CallerContext) => {
 
 const lastAdmin = () => AppError.unprocessable('This is the last tenant admin of this tenant. Give someone else the tenant admin role first.');
 
+/** One membership the caller may read (404 otherwise): what a refused change of it is answered against. */
+export async function readMembership(deps: AppDeps, caller: CallerContext, id: string): Promise<MembershipRow> {
+  const { tenantId } = caller.actor;
+  return withTenant(deps.sequelize, tenantId, async () => {
+    const [row] = await deps.sequelize.query<MembershipRow>(
+      `SELECT id, tenant_id AS "tenantId", user_id AS "userId", organisation_id AS "organisationId", role FROM memberships WHERE tenant_id = :tenantId AND id = :id`,
+      { replacements: { id, tenantId }, type: QueryTypes.SELECT },
+    );
+    return authorizeRecord(caller.ability, 'read', 'Membership', row ?? null, 'membership');
+  });
+}
+
 /** Changes the role of one membership; the change and its audit event commit together or not at all. */
 export async function changeMembershipRole(deps: AppDeps, caller: CallerContext, id: string, role: Role): Promise<{ membership: MembershipRow; from: Role }> {
   const { sequelize } = deps;

@@ -28,6 +28,7 @@ import type { AppDeps } from '../../deps';
 import { AppError } from '../../errors/app-error';
 import { requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
+import { requireAbility, requireRecordAbility } from '../../middleware/require-ability';
 import { idempotentBody } from '../../middleware/idempotency';
 import { assetContext } from './asset-context';
 import { createPipeline, getPipeline, listPipelines, updatePipeline } from './pipelines.service';
@@ -76,7 +77,7 @@ export function createAssetsRouter(deps: AppDeps) {
     res.json(await listPipelines(ctx(req), parse(pipelinesQuerySchema, req.query, 'query')));
   });
 
-  router.post('/pipelines', async (req, res) => {
+  router.post('/pipelines', requireAbility('create', 'Pipeline', 'pipelines'), async (req, res) => {
     res.status(201).json(await createPipeline(ctx(req), parse(pipelineInputSchema, req.body, 'pipeline')));
   });
 
@@ -84,7 +85,7 @@ export function createAssetsRouter(deps: AppDeps) {
     res.json(await getPipeline(ctx(req), idOf(req)));
   });
 
-  router.patch('/pipelines/:id', async (req, res) => {
+  router.patch('/pipelines/:id', requireRecordAbility('update', 'Pipeline', 'pipeline', (req, id) => getPipeline(ctx(req), id)), async (req, res) => {
     const id = idOf(req);
     res.json(await updatePipeline(ctx(req), id, parse(pipelinePatchSchema, req.body, 'pipeline')));
   });
@@ -93,7 +94,7 @@ export function createAssetsRouter(deps: AppDeps) {
     res.json(await listPoints(ctx(req), parse(pointsQuerySchema, req.query, 'query')));
   });
 
-  router.post('/isolation-points', async (req, res) => {
+  router.post('/isolation-points', requireAbility('create', 'IsolationPoint', 'isolation points'), async (req, res) => {
     res.status(201).json(await createPoint(ctx(req), parse(pointInputSchema, req.body, 'isolation point')));
   });
 
@@ -101,22 +102,23 @@ export function createAssetsRouter(deps: AppDeps) {
     res.json(await getPoint(ctx(req), idOf(req)));
   });
 
-  router.patch('/isolation-points/:id', async (req, res) => {
+  router.patch('/isolation-points/:id', requireRecordAbility('update', 'IsolationPoint', 'isolation point', (req, id) => getPoint(ctx(req), id)), async (req, res) => {
     const id = idOf(req);
     res.json(await updatePoint(ctx(req), id, parse(pointPatchSchema, req.body, 'isolation point')));
   });
 
   const inventory = (kind: InventoryKind, path: string) => {
+    const type = kind === 'lock' ? 'Lock' : 'Tag';
     router.get(path, async (req, res) => {
       res.json(await listInventory(ctx(req), kind, parse(inventoryQuerySchema, req.query, 'query')));
     });
-    router.post(path, async (req, res) => {
+    router.post(path, requireAbility('create', type, `${kind}s`), async (req, res) => {
       res.status(201).json(await createInventory(ctx(req), kind, parse(inventoryInputSchema, req.body, kind)));
     });
     router.get(`${path}/:id`, async (req, res) => {
       res.json(await getInventory(ctx(req), kind, idOf(req)));
     });
-    router.patch(`${path}/:id`, async (req, res) => {
+    router.patch(`${path}/:id`, requireRecordAbility('update', type, kind, (req, id) => getInventory(ctx(req), kind, id)), async (req, res) => {
       const id = idOf(req);
       res.json(await updateInventory(ctx(req), kind, id, parse(inventoryPatchSchema, req.body, kind)));
     });
@@ -124,7 +126,8 @@ export function createAssetsRouter(deps: AppDeps) {
   inventory('lock', '/locks');
   inventory('tag', '/tags');
 
-  router.post('/imports/assets', csvText, csvUpload, idempotentBody(deps), async (req, res) => {
+  // The rights come before the upload is read: a caller who may not import gets 403 for any file.
+  router.post('/imports/assets', requireAbility('update', 'Pipeline', 'the asset register'), requireAbility('update', 'IsolationPoint', 'the asset register'), csvText, csvUpload, idempotentBody(deps), async (req, res) => {
     const { dryRun } = parse(importQuerySchema, req.query, 'query');
     const csv = csvFromRequest(req);
     res.json(await importRegisterCsv(ctx(req), csv, dryRun === 'true' || dryRun === '1'));

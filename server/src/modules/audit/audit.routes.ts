@@ -13,6 +13,7 @@ import { auditActionInputSchema, auditEventsQuerySchema, auditExportQuerySchema 
 import type { AppDeps } from '../../deps';
 import { actorOf, requireTenant } from '../../middleware/authenticate';
 import { parse } from '../../middleware/validate';
+import { requireAbility } from '../../middleware/require-ability';
 import { verifyTenantChain } from './audit.service';
 import { listAuditActors, listAuditLog, prepareAuditExport } from './audit-log';
 import { getChainCheck, startChainCheck } from './chain-checks';
@@ -31,7 +32,7 @@ export function createAuditRouter(deps: AppDeps) {
     res.json(await verifyTenantChain(deps, actorOf(req)));
   });
 
-  router.get('/audit/events', async (req, res) => {
+  router.get('/audit/events', requireAbility('read', 'AuditEvent', 'the audit trail'), async (req, res) => {
     const caller = actorOf(req);
     const q = parse(auditEventsQuerySchema, req.query, 'query');
     res.json(await onReadPool(deps, req, caller.actor.tenantId, (d) => listAuditLog(d, caller, q)));
@@ -41,7 +42,7 @@ export function createAuditRouter(deps: AppDeps) {
     res.json(await listAuditActors(deps, actorOf(req)));
   });
 
-  router.get('/audit/export', async (req, res) => {
+  router.get('/audit/export', requireAbility('read', 'AuditEvent', 'the audit trail'), async (req, res) => {
     const q = parse(auditExportQuerySchema, req.query, 'query');
     const out = prepareAuditExport(deps, actorOf(req), q);
     res.setHeader('Content-Type', out.contentType);
@@ -56,7 +57,7 @@ export function createAuditRouter(deps: AppDeps) {
     }
   });
 
-  router.post('/audit/chain-checks', async (req, res) => {
+  router.post('/audit/chain-checks', requireAbility('verify_chain', 'AuditEvent', 'the audit trail'), async (req, res) => {
     parse(auditActionInputSchema, req.body ?? {}, 'chain check');
     res.status(202).json(await startChainCheck(deps, actorOf(req)));
   });
@@ -69,7 +70,7 @@ export function createAuditRouter(deps: AppDeps) {
     res.json(await listCheckpoints(deps, actorOf(req)));
   });
 
-  router.post('/audit/checkpoints', async (req, res) => {
+  router.post('/audit/checkpoints', requireAbility('verify_chain', 'AuditEvent', 'the audit trail'), async (req, res) => {
     parse(auditActionInputSchema, req.body ?? {}, 'checkpoint');
     res.status(201).json(await requestCheckpoint(deps, actorOf(req)));
   });

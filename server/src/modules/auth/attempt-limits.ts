@@ -16,6 +16,8 @@ export interface AuthLimits {
   signatureFailures?: number;
   /** Password-reset requests per e-mail address and hour, then 429 (the same for known and unknown addresses). */
   resetsPerAddress?: number;
+  /** Failed tries to accept one invitation per window, from any address, then 429 until the window ends. */
+  invitationFailures?: number;
 }
 
 export const defaultAuthLimits: Required<AuthLimits> = {
@@ -25,6 +27,7 @@ export const defaultAuthLimits: Required<AuthLimits> = {
   failureDelay: { baseMs: 1_000, maxMs: 10_000 },
   signatureFailures: 5,
   resetsPerAddress: 3,
+  invitationFailures: 10,
 };
 
 export const RESET_WINDOW_SECONDS = 3600;

@@ -4,11 +4,11 @@
 //   POST /api/auth/sign-out          anyone (ends the session when there is one; clears the cookie)
 //   GET  /api/auth/me                signed in
 //   POST /api/auth/switch-tenant     signed in, member of that tenant
-//   POST /api/auth/accept-invitation anyone holding a valid invitation token
+//   POST /api/auth/accept-invitation anyone holding a valid invitation token (hard limit per IP, and per invitation on failed tries)
 //   POST /api/auth/forgot-password   anyone (same answer whether or not the account exists; a few per address and hour)
 //   POST /api/auth/reset-password    anyone holding a valid reset token
 import { Router } from 'express';
-import { rateLimit, ipKeyGenerator } from 'express-rate-limit';
+import { rateLimit, ipKeyGenerator, type Options } from 'express-rate-limit';
 import {
   acceptInvitationInputSchema,
   forgotPasswordInputSchema,
@@ -29,7 +29,7 @@ import { PostgresRateLimitStore } from './rate-limit-store';
 
 export { defaultAuthLimits, type AuthLimits } from './attempt-limits';
 
-function limiter(store: PostgresRateLimitStore, max: number, windowMs: number, key: (req: import('express').Request) => string, message: string) {
+function limiter(store: PostgresRateLimitStore, max: number, windowMs: number, key: (req: import('express').Request) => string, message: string, more: Partial<Options> = {}) {
   const minutes = Math.max(1, Math.ceil(windowMs / 60_000));
   return rateLimit({
     windowMs,
@@ -42,6 +42,7 @@ function limiter(store: PostgresRateLimitStore, max: number, windowMs: number, k
     // X-Forwarded-For from anyone but a proxy named in TRUST_PROXY is ignored on purpose, not a misconfiguration.
     validate: { xForwardedForHeader: false },
     handler: (_req, _res, next) => next(new AppError('rate_limited', `${message} Wait ${minutes} minute${minutes === 1 ? '' : 's'} and try again.`)),
+    ...more,
   });
 }
 
@@ -78,7 +79,15 @@ export function createAuthRouter(deps: AppDeps, authLimits?: AuthLimits) {
     res.json(await switchTenant(deps, req, tenantId));
   });
 
-  router.post('/auth/accept-invitation', perIp, async (req, res) => {
+  // An invitation to an address that already has an account asks for that account's password, so failed
+  // tries are also counted per invitation: guesses spread over many addresses still run out. Accepted
+  // invitations take their try back; the store keeps only a hash of the token.
+  const invitationToken = (req: import('express').Request): unknown => (req.body as { token?: unknown } | undefined)?.token;
+  const perInvitation = limiter(new PostgresRateLimitStore(deps, 'invite'), limits.invitationFailures, limits.windowMs, (req) => `invite:${String(invitationToken(req))}`, 'Too many failed tries with this invitation.', {
+    skip: (req) => typeof invitationToken(req) !== 'string',
+    skipSuccessfulRequests: true,
+  });
+  router.post('/auth/accept-invitation', perIp, perInvitation, async (req, res) => {
     await acceptInvitation(deps, parse(acceptInvitationInputSchema, req.body, 'invitation'));
     res.json({ ok: true });
   });
