@@ -187,3 +187,71 @@ test('issue 18: when the gas tester opens a live permit on a phone, then its sum
   await openPermitSection(page, 'Summary');
   await expect(page.getByTestId('permit-summary')).toBeVisible();
 });
+
+test('journey 4 finding: when the gas tester types the next test while the last one is still being saved, then the save\'s answer keeps the typed readings and place, clears only what was not touched since, and keeps the instrument', async ({ page }) => {
+  test.setTimeout(120_000);
+  // A permit of this test's own (on this file's valve), so the counts of the tests above stay theirs.
+  const own = await acceptedPermit(`Stroke-test ${VALVE} (next test typed while saving)`, [VALVE]);
+  await signIn(page, TESTER);
+  // The server saves the test at once; its answer reaches the phone only when released (a slow signal).
+  let release = () => {};
+  const held = new Promise<void>((resolve) => (release = resolve));
+  let saved = 0;
+  await page.route(`**/api/permits/${own.id}/gas-tests`, async (route) => {
+    if (route.request().method() !== 'POST') return route.fallback();
+    const response = await route.fetch();
+    saved++;
+    await held;
+    await route.fulfill({ response });
+  });
+  await page.goto(`/permits/${own.id}/gas-test`);
+  const form = page.getByRole('form', { name: 'Record a gas test' });
+  const o2 = form.getByLabel('Oxygen, O₂ (% vol)');
+  const lel = form.getByLabel('Flammable gas (% LEL)');
+  const h2s = form.getByLabel('H₂S (ppm)');
+  const co = form.getByLabel('CO (ppm)');
+  const where = form.getByLabel('Where');
+  await form.getByLabel('Instrument', { exact: true }).selectOption(monitor.id);
+  await where.selectOption('inside_pipe_upstream');
+  await typeReadings(form);
+  await form.getByLabel(/Notes/).fill('Upstream of the plug');
+  await form.getByRole('button', { name: 'Record gas test' }).tap();
+  await expect.poll(() => saved).toBe(1);
+
+  // The next test, typed while the first one's answer is still on its way.
+  await where.selectOption('work_area');
+  await o2.fill('20.8');
+  await lel.fill('1');
+  release();
+  await expect(form.getByText('Last test recorded: pass')).toBeVisible();
+  // Give the permit's pages time to be read again after the save: nothing may change under the person then either.
+  await expect(form.getByRole('button', { name: 'Record gas test' })).toBeEnabled();
+  await page.waitForTimeout(2_000);
+  await expect(o2).toHaveValue('20.8');
+  await expect(lel).toHaveValue('1');
+  await expect(where).toHaveValue('work_area');
+  // What was not touched since the first test was sent starts afresh; the instrument stays for the next test.
+  await expect(h2s).toHaveValue('');
+  await expect(co).toHaveValue('');
+  await expect(form.getByLabel(/Notes/)).toHaveValue('');
+  await expect(form.getByLabel('Instrument', { exact: true })).toHaveValue(monitor.id);
+
+  await h2s.fill('0');
+  await co.fill('2');
+  await form.getByRole('button', { name: 'Record gas test' }).tap();
+  await expect.poll(() => saved).toBe(2);
+  const api = await apiAs(TESTER);
+  try {
+    await expect
+      .poll(async () => {
+        const tests = await ok<{ items: { place: string; readings: { o2Pct: number; lelPct: number; h2sPpm: number; coPpm: number }; instrument: { id: string } | null }[] }>(api.get(`/api/permits/${own.id}/gas-tests?pageSize=10`));
+        return tests.items.map(({ place, readings: r, instrument }) => ({ place, readings: { o2Pct: r.o2Pct, lelPct: r.lelPct, h2sPpm: r.h2sPpm, coPpm: r.coPpm }, instrument: instrument?.id })).sort((a, b) => a.place.localeCompare(b.place));
+      })
+      .toEqual([
+        { place: 'inside_pipe_upstream', readings: { o2Pct: 20.9, lelPct: 0, h2sPpm: 0, coPpm: 1 }, instrument: monitor.id },
+        { place: 'work_area', readings: { o2Pct: 20.8, lelPct: 1, h2sPpm: 0, coPpm: 2 }, instrument: monitor.id },
+      ]);
+  } finally {
+    await api.close();
+  }
+});

@@ -25,6 +25,10 @@ export function useRecordGasTest(permitId: string) {
         },
         (key) => recordGasTest(permitId, input, key),
       ),
-    onSuccess: () => Promise.all([qc.invalidateQueries({ queryKey: gasKeys.permit(permitId) }), qc.invalidateQueries({ queryKey: permitsPrefix })]),
+    // Not awaited: the form gets the save's answer at once, not after the permit's pages have been read again.
+    onSuccess: () => {
+      void qc.invalidateQueries({ queryKey: gasKeys.permit(permitId) });
+      void qc.invalidateQueries({ queryKey: permitsPrefix });
+    },
   });
 }

@@ -1,4 +1,4 @@
-import { useEffect, useMemo, useState } from 'react';
+import { useEffect, useMemo, useRef, useState, type FormEvent } from 'react';
 import { useForm, useWatch } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { assessAtmosphere, CalcInputError, type AtmosphereLimits } from '@shared/calc';
@@ -95,29 +95,55 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
     if (rememberedUsable && lastUsed && !form.getValues('instrumentId')) form.setValue('instrumentId', lastUsed.instrumentId);
   }, [rememberedUsable, lastUsed, form]);
 
-  const submit = form.handleSubmit((values) => {
+  // What the person changes while a test is being saved belongs to the next test: the save's answer must not clear it.
+  const editedSinceSubmit = useRef(new Set<string>());
+  const timeEditedSinceSubmit = useRef(false);
+  useEffect(
+    () =>
+      // Only a person's own input carries an event type; values the form sets itself do not.
+      form.subscribe({
+        formState: { values: true },
+        callback: ({ name, type }) => {
+          if (name && type) editedSinceSubmit.current.add(name);
+        },
+      }),
+    [form],
+  );
+
+  /** The next test starts with the same instrument and place; readings, notes and time start afresh unless changed since the save began. */
+  const startNextTest = () => {
+    const edited = editedSinceSubmit.current;
+    const current = form.getValues();
+    const keepTime = timeEditedSinceSubmit.current;
+    const w = isoToWallTime(new Date(), timeZone);
+    if (!keepTime) {
+      setWall(w);
+      setTimeTouched(false);
+    }
+    const readingsNext = { ...current.readings };
+    for (const { field } of READINGS) if (!edited.has(`readings.${field}`)) readingsNext[field] = '';
+    form.reset({ ...current, testedAt: keepTime ? current.testedAt : wallTimeToIso(w, timeZone), readings: readingsNext, notes: edited.has('notes') ? current.notes : '' });
+  };
+
+  const save = (values: GasTestData) => {
     setQueued(false);
+    editedSinceSubmit.current = new Set();
+    timeEditedSinceSubmit.current = false;
     record.mutate(
       { ...values, testedAt: timeTouched ? values.testedAt : new Date().toISOString(), placeNote: values.place === 'other' ? values.placeNote : undefined, notes: values.notes || undefined },
       {
         onSuccess: (result) => {
           writeLastUsed(userId, { instrumentId: values.instrumentId, place: values.place, placeNote: values.place === 'other' ? (values.placeNote ?? '') : '' });
-          const w = isoToWallTime(new Date(), timeZone);
+          startNextTest();
           if (isQueued(result)) {
             setLast(null);
             setQueued(true);
             toast('success', 'Saved on this device; it will send when you have signal.');
-            setWall(w);
-            setTimeTouched(false);
-            form.reset({ ...values, testedAt: wallTimeToIso(w, timeZone), readings: { o2Pct: '', lelPct: '', h2sPpm: '', coPpm: '' }, notes: '' });
             return;
           }
           setLast(result);
           if (result.suspended) toast('error', `Gas test failed: ${permit.number} is suspended.`);
           else toast(result.verdict === 'pass' ? 'success' : 'error', result.verdict === 'pass' ? 'Gas test recorded: pass.' : 'Gas test recorded: FAIL.');
-          setWall(w);
-          setTimeTouched(false);
-          form.reset({ ...values, testedAt: wallTimeToIso(w, timeZone), readings: { o2Pct: '', lelPct: '', h2sPpm: '', coPpm: '' }, notes: '' });
         },
         onError: (err) => {
           if (!(err instanceof ApiError)) return toast('error', err.message);
@@ -126,7 +152,9 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
         },
       },
     );
-  });
+  };
+  // Handed to handleSubmit at the moment of submitting, not while drawing the form.
+  const submit = (e: FormEvent<HTMLFormElement>) => form.handleSubmit(save)(e);
 
   return (
     <form noValidate onSubmit={submit} className="flex flex-col gap-3" aria-label="Record a gas test">
@@ -148,6 +176,7 @@ export function RecordGasTestForm({ permit, limits, timeZone, requireDailyBumpTe
           onChange={(e) => {
             setWall(e.target.value);
             setTimeTouched(true);
+            timeEditedSinceSubmit.current = true;
             form.setValue('testedAt', wallTimeToIso(e.target.value, timeZone), { shouldValidate: form.formState.isSubmitted });
           }}
           error={errors.testedAt?.message}
