@@ -3,7 +3,7 @@
 // client when dist/ is missing, compiles the server, then runs scripts/bench/run.ts (or, with
 // `-- profile [entry]`, scripts/bench/profile.ts; with `-- cluster`, scripts/bench/cluster.ts; with `-- browser`,
 // only run.ts's browser figures). Not part of `npm test`.
-import { existsSync, mkdirSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -30,10 +30,9 @@ try {
   const ownerUrl = ensureRoleAndDatabase(cluster, { role: 'holdpoint', password: keptSecret(join(dataDir, 'db-password')), database });
   // As `npm start`: the server logs in as the app role (row-level security binds it), migrations run as the owner.
   const appUrl = withCredentials(ownerUrl, ensureAppRole(cluster, { role: 'holdpoint_app', password: keptSecret(join(dataDir, 'db-app-password')) }));
-  if (!existsSync(join(root, 'dist/client/index.html'))) {
-    console.log('[bench] building the client');
-    if (spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: root, stdio: 'inherit' }).status !== 0) throw new Error('the client build failed');
-  }
+  // Built every run, as the server is below: a client left from an older checkout would be measured against a newer server.
+  console.log('[bench] building the client');
+  if (spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: root, stdio: 'inherit', env: { ...process.env, NODE_ENV: 'production' } }).status !== 0) throw new Error('the client build failed');
   // The server runs as in production: compiled, with plain node.
   const { buildServer } = await import('./build-server.mjs');
   await buildServer(root);
